@@ -1,0 +1,55 @@
+#include "analysis/curvature.hpp"
+
+#include <algorithm>
+#include <random>
+
+#include <fmt/format.h>
+
+namespace stepgate {
+
+namespace {
+
+Curvature exact(const Problem& problem, const Vec& w) {
+  Eigen::SelfAdjointEigenSolver<Mat> eig(problem.hessian(w), Eigen::EigenvaluesOnly);
+  return {eig.eigenvalues().maxCoeff(), eig.eigenvalues().minCoeff(), "eigen-decomposition"};
+}
+
+// Lanczos (Golub & Van Loan, Matrix Computations, 4th ed., sect. 10.1) with full
+// reorthogonalisation; the extreme Ritz values converge first.
+Curvature lanczos(const Problem& problem, const Vec& w, const CurvatureOptions& opt) {
+  const Index p = problem.dim();
+  const Index m = std::min(opt.lanczos_steps, p);
+  Mat Q(p, m);
+  std::mt19937_64 rng(opt.seed);
+  Vec q(p);
+  for (Index i = 0; i < p; ++i) q[i] = static_cast<double>(rng() >> 11) * 0x1.0p-53 - 0.5;
+  q.normalize();
+  Vec alpha(m), beta(m), z(p);
+  Index steps = 0;
+  for (Index j = 0; j < m; ++j) {
+    Q.col(j) = q;
+    problem.hessian_vector(w, q, z);
+    alpha[j] = q.dot(z);
+    // Full reorthogonalisation against all previous vectors (twice is enough: Kahan's rule).
+    for (int pass = 0; pass < 2; ++pass) z.noalias() -= Q.leftCols(j + 1) * (Q.leftCols(j + 1).transpose() * z);
+    beta[j] = z.norm();
+    steps = j + 1;
+    if (beta[j] <= 1e-14 * std::abs(alpha[j]) || j + 1 == m) break;
+    q = z / beta[j];
+  }
+  Mat T = Mat::Zero(steps, steps);
+  for (Index j = 0; j < steps; ++j) {
+    T(j, j) = alpha[j];
+    if (j + 1 < steps) T(j, j + 1) = T(j + 1, j) = beta[j];
+  }
+  Eigen::SelfAdjointEigenSolver<Mat> eig(T, Eigen::EigenvaluesOnly);
+  return {eig.eigenvalues().maxCoeff(), eig.eigenvalues().minCoeff(), fmt::format("lanczos({})", steps)};
+}
+
+}  // namespace
+
+Curvature curvature_at(const Problem& problem, const Vec& w, const CurvatureOptions& opt) {
+  return problem.dim() <= opt.exact_limit ? exact(problem, w) : lanczos(problem, w, opt);
+}
+
+}  // namespace stepgate

@@ -1,0 +1,38 @@
+// What one run produced: its trace, its outcome and its final point. Written by run/, read by
+// search/, sweep/, gate/ and report/ (through the Results model).
+#pragma once
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "core/outcome.hpp"
+#include "core/types.hpp"
+
+namespace stepgate {
+
+/// One evaluation of a run: after `iter` steps (0 = the start).
+struct TracePoint {
+  long iter = 0;
+  double cost = kMissing;       ///< J at the recorded point
+  double gap = kMissing;        ///< J − J*, NaN when J* is unknown
+  double grad_norm = kMissing;  ///< ‖∇J‖ on the full data
+};
+
+struct RunRecord {
+  double rate = 0.0;              ///< the searched (base) rate
+  std::uint64_t seed = 0;         ///< the derived seed of this run (start point, mini-batches)
+  long seed_index = 0;            ///< which of the case's seeds (0-based)
+  Outcome outcome = Outcome::failed;
+  std::string reason;             ///< why: e.g. "gap ≤ 1e-06·gap₀ from iteration 812", "non-finite cost"
+  std::optional<long> iterations; ///< converged: first iteration of the stretch that met the criterion
+  long steps = 0;                 ///< iterations actually run (early exit makes it < budget)
+  double overshoot = kMissing;    ///< Σ max(0, J_{k+1} − J_k) / (J_0 − min J) over the trace
+  std::vector<TracePoint> trace;  ///< every evaluation, in order
+  Vec final_params;               ///< parameters at the last evaluation
+  double wall_seconds = 0.0;      ///< not part of any comparison: timing only
+
+  const TracePoint* last() const { return trace.empty() ? nullptr : &trace.back(); }
+};
+
+}  // namespace stepgate

@@ -1,0 +1,19 @@
+// Per-feature mean and standard deviation, for reports and for checking scalings.
+#pragma once
+#include <string>
+#include <vector>
+
+#include "core/dataset.hpp"
+
+namespace stepgate {
+
+struct ColumnStats {
+  std::string name;  ///< feature name
+  double mean;       ///< arithmetic mean over the rows
+  double sd;         ///< SAMPLE standard deviation (divisor n − 1); NaN (kMissing) when n < 2
+};
+
+/// One entry per feature of data.X, in column order (two-pass: mean, then squared deviations).
+std::vector<ColumnStats> column_stats(const Dataset& data);
+
+}  // namespace stepgate

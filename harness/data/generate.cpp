@@ -1,0 +1,81 @@
+#include "data/generate.hpp"
+
+#include <cmath>
+
+#include "core/error.hpp"
+#include "core/seed.hpp"
+#include "data/random_draws.hpp"
+
+namespace stepgate {
+namespace {
+
+void check_spec(const GeneratedSpec& spec, const std::string& where) {
+  auto fail = [&](const std::string& message) { throw InputError(where, message); };
+  if (spec.rows < 1) fail("found rows = " + std::to_string(spec.rows) + "; expected at least 1");
+  if (spec.features < 1)
+    fail("found features = " + std::to_string(spec.features) + "; expected at least 1");
+  if (!(spec.noise >= 0.0) || !std::isfinite(spec.noise))
+    fail("found a noise sd that is negative or not finite; expected a finite value >= 0");
+  if (!std::isfinite(spec.intercept)) fail("found a non-finite intercept; expected a finite one");
+  const auto d = static_cast<std::size_t>(spec.features);
+  if (!spec.weights.empty() && spec.weights.size() != d)
+    fail("found " + std::to_string(spec.weights.size()) + " weights; expected " +
+         std::to_string(d) + ", one per feature");
+  for (double w : spec.weights)
+    if (!std::isfinite(w)) fail("found a non-finite weight; expected finite weights");
+  if (!spec.feature_scales.empty() && spec.feature_scales.size() != d)
+    fail("found " + std::to_string(spec.feature_scales.size()) + " feature scales; expected " +
+         std::to_string(d) + ", one per feature");
+  for (double s : spec.feature_scales)
+    if (!(s > 0.0) || !std::isfinite(s))
+      fail("found a feature scale that is not a positive finite number; expected sds > 0");
+}
+
+double sigmoid(double z) {  // without overflow for large |z|
+  return z >= 0 ? 1.0 / (1.0 + std::exp(-z)) : std::exp(z) / (1.0 + std::exp(z));
+}
+
+}  // namespace
+
+Generated generate(const GeneratedSpec& spec, std::string name) {
+  check_spec(spec, "generated dataset '" + name + "'");
+  const Index n = spec.rows, d = spec.features;
+
+  Generated out{Dataset{}, Vec(d), spec.intercept};
+  if (spec.weights.empty()) {
+    NormalDraws draws(derive_seed({std::string_view("weights"), spec.seed}));
+    for (Index j = 0; j < d; ++j) out.weights(j) = draws.next();
+  } else {
+    out.weights = Eigen::Map<const Vec>(spec.weights.data(), d);
+  }
+  const Vec sds = spec.feature_scales.empty() ? Vec::Ones(d).eval()
+                                              : Eigen::Map<const Vec>(spec.feature_scales.data(), d).eval();
+
+  Dataset& data = out.data;
+  data.name = std::move(name);
+  data.X.resize(n, d);
+  NormalDraws feature_draws(derive_seed({std::string_view("features"), spec.seed}));
+  for (Index i = 0; i < n; ++i)  // row by row: more rows keep the earlier ones
+    for (Index j = 0; j < d; ++j) data.X(i, j) = sds(j) * feature_draws.next();
+
+  data.y.noalias() = data.X * out.weights;
+  data.y.array() += spec.intercept;
+  NormalDraws outcome_draws(derive_seed({std::string_view("outcomes"), spec.seed}));
+  for (Index i = 0; i < n; ++i) {
+    if (spec.kind == GeneratedSpec::linear)
+      data.y(i) += spec.noise * outcome_draws.next();
+    else
+      data.y(i) = uniform01(outcome_draws.engine()) < sigmoid(data.y(i)) ? 1.0 : 0.0;
+  }
+
+  for (Index j = 0; j < d; ++j) data.features.push_back("x" + std::to_string(j + 1));
+  data.target = "y";
+  data.map = FeatureMap::identity(d);
+  return out;
+}
+
+Dataset generate_dataset(const GeneratedSpec& spec, std::string name) {
+  return generate(spec, std::move(name)).data;
+}
+
+}  // namespace stepgate

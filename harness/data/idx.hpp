@@ -1,0 +1,34 @@
+// IDX files (LeCun, Cortes & Burges, "The MNIST database of handwritten digits": a 4-byte
+// magic 00 00 TYPE NDIM, NDIM big-endian 32-bit dimensions, then the values row-major).
+// Only unsigned-byte arrays (TYPE 0x08) are read: images 0x00000803 (count x rows x cols) and
+// labels 0x00000801 (count). Files may be gzip-compressed (names ending in .gz) or plain.
+// Errors are InputError with `where` = "path:byte N" (0-based offset into the decompressed
+// content), since a binary file has no lines.
+#pragma once
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "core/dataset.hpp"
+
+namespace stepgate {
+
+/// An unsigned-byte IDX array: dimensions and the values in row-major order.
+struct IdxArray {
+  std::vector<std::uint32_t> dims;
+  std::vector<std::uint8_t> values;
+};
+
+/// Reads an unsigned-byte IDX array whose magic must be 0x0000 08 `expected_dims`.
+/// Errors: wrong magic, truncated header or data, bytes after the data.
+IdxArray read_idx(const std::string& path, int expected_dims);
+
+/// Images and labels as a Dataset: X(i, r*cols + c) = pixel(i, r, c) * pixel_scale (default
+/// 1/255 maps bytes to [0, 1]), y(i) = label (a class id 0..255). max_rows > 0 keeps the first
+/// max_rows samples (0 = all). Features are named "px_R_C" (0-based row, column), the target
+/// "label". sha256 = SHA-256 of the images file's stored bytes followed by the labels file's.
+/// Errors: as read_idx, image and label counts that differ, max_rows < 0.
+Dataset load_idx_dataset(const std::string& images_path, const std::string& labels_path,
+                         std::string name, double pixel_scale = 1.0 / 255.0, long max_rows = 0);
+
+}  // namespace stepgate

@@ -1,0 +1,27 @@
+// Shows a piece of user input inside an error message: quoted, control bytes escaped, and cut
+// to a readable length, so that a binary or huge cell cannot swamp the message.
+#pragma once
+#include <cstdio>
+#include <string>
+#include <string_view>
+
+namespace stepgate {
+
+/// 'text' with non-printable bytes as \xNN and at most `limit` bytes shown ("..." after).
+inline std::string quote_text(std::string_view text, std::size_t limit = 40) {
+  std::string out = "'";
+  for (std::size_t i = 0; i < text.size() && i < limit; ++i) {
+    const unsigned char c = static_cast<unsigned char>(text[i]);
+    if (c >= 0x20 && c < 0x7f) {
+      out += static_cast<char>(c);
+    } else {
+      char escaped[5];
+      std::snprintf(escaped, sizeof escaped, "\\x%02x", c);
+      out += escaped;
+    }
+  }
+  out += text.size() > limit ? "'..." : "'";
+  return out;
+}
+
+}  // namespace stepgate

@@ -1,0 +1,24 @@
+// AdaGrad, diagonal form: Duchi, Hazan & Singer (2011), "Adaptive subgradient methods for
+// online learning and stochastic optimization", JMLR 12. ε is added to the root, as is usual
+// in implementations (common practice), so that a zero gradient coordinate does not divide 0/0.
+#include "optimizers/update_rules.hpp"
+
+namespace stepgate::detail {
+
+void AdaGrad::reset(Index p, Index lanes) {
+  set_shape(p, lanes);
+  S_.setZero(p, lanes);
+}
+
+void AdaGrad::step(Mat& P, const Mat& G, const Vec& rates) {
+  check_step(P, G, rates);
+  S_.array() += G.array().square();
+  P.noalias() -= (G.array() / (S_.array().sqrt() + eps_)).matrix() * rates.asDiagonal();
+}
+
+void AdaGrad::keep_lanes(std::span<const Index> keep) {
+  check_keep(keep);
+  keep_columns(S_, keep);
+}
+
+}  // namespace stepgate::detail

@@ -1,0 +1,23 @@
+// RMSProp (Tieleman & Hinton 2012): a running mean square of the gradient,
+// S = ρ S + (1 − ρ) G², divides the step: P −= α G / (√S + ε).
+#include "optimizers/update_rules.hpp"
+
+namespace stepgate::detail {
+
+void RMSProp::reset(Index p, Index lanes) {
+  set_shape(p, lanes);
+  S_.setZero(p, lanes);
+}
+
+void RMSProp::step(Mat& P, const Mat& G, const Vec& rates) {
+  check_step(P, G, rates);
+  S_.array() = rho_ * S_.array() + (1.0 - rho_) * G.array().square();
+  P.noalias() -= (G.array() / (S_.array().sqrt() + eps_)).matrix() * rates.asDiagonal();
+}
+
+void RMSProp::keep_lanes(std::span<const Index> keep) {
+  check_keep(keep);
+  keep_columns(S_, keep);
+}
+
+}  // namespace stepgate::detail

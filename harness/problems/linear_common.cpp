@@ -1,0 +1,105 @@
+#include "problems/linear_common.hpp"
+
+#include <cmath>
+#include <random>
+#include <stdexcept>
+#include <string>
+
+#include "problems/normal_draws.hpp"
+
+namespace stepgate::detail {
+
+Mat augment_with_ones(const Mat& X, bool intercept) {
+  Mat out(X.rows(), X.cols() + (intercept ? 1 : 0));
+  out.leftCols(X.cols()) = X;
+  if (intercept) out.col(X.cols()).setOnes();
+  return out;
+}
+
+void gather_rows(const Mat& X, std::span<const Index> rows, Mat& out) {
+  out.resize(Index(rows.size()), X.cols());
+  for (std::size_t i = 0; i < rows.size(); ++i) {
+    if (rows[i] < 0 || rows[i] >= X.rows())
+      throw std::out_of_range("mini-batch row " + std::to_string(rows[i]) + " outside 0.." +
+                              std::to_string(X.rows() - 1));
+    out.row(Index(i)) = X.row(rows[i]);
+  }
+}
+
+LinearModel::LinearModel(const Dataset& data, const LinearModelOptions& opt, Index outputs)
+    : Xaug_(augment_with_ones(data.X, opt.intercept)),
+      y_(data.y),
+      opt_(opt),
+      features_(data.X.cols()),
+      outputs_(outputs),
+      rows_per_output_(data.X.cols() + (opt.intercept ? 1 : 0)),
+      data_weight_(opt.reduction == Reduction::mean ? 1.0 / double(data.X.rows()) : 1.0) {
+  const std::string who = "data set '" + data.name + "': ";
+  if (data.X.rows() == 0) throw std::invalid_argument(who + "has no rows");
+  if (data.y.size() != data.X.rows())
+    throw std::invalid_argument(who + std::to_string(data.y.size()) + " targets for " +
+                                std::to_string(data.X.rows()) + " rows");
+  if (!(opt.l2 >= 0.0) || !std::isfinite(opt.l2))
+    throw std::invalid_argument(who + "l2 must be finite and >= 0");
+  if (!(opt.init_scale >= 0.0)) throw std::invalid_argument(who + "init_scale must be >= 0");
+  if (!Xaug_.allFinite() || !y_.allFinite())
+    throw std::invalid_argument(who + "features and targets must be finite");
+}
+
+Vec LinearModel::start(std::uint64_t seed) const {
+  if (opt_.init_scale == 0.0) return Vec::Zero(dim());
+  std::mt19937_64 rng(seed);
+  return opt_.init_scale * standard_normal(rng, dim());
+}
+
+void LinearModel::add_ridge(const Mat& W, Vec* cost, Mat& grad) const {
+  if (opt_.l2 == 0.0) return;
+  const Index K = W.cols();
+  // View every (output, lane) column as one column of weights; its top `features_` rows are
+  // the regularised ones (the intercept, if any, is the last row).
+  Eigen::Map<const Mat> Wv(W.data(), rows_per_output_, outputs_ * K);
+  Eigen::Map<Mat> Gv(grad.data(), rows_per_output_, outputs_ * K);
+  Gv.topRows(features_) += opt_.l2 * Wv.topRows(features_);
+  if (cost == nullptr) return;
+  for (Index k = 0; k < K; ++k)
+    (*cost)[k] += 0.5 * opt_.l2 * Wv.middleCols(k * outputs_, outputs_).topRows(features_).squaredNorm();
+}
+
+void LinearModel::add_ridge(const Vec& v, Vec& out) const {
+  if (opt_.l2 == 0.0) return;
+  Eigen::Map<const Mat> Vv(v.data(), rows_per_output_, outputs_);
+  Eigen::Map<Mat> Ov(out.data(), rows_per_output_, outputs_);
+  Ov.topRows(features_) += opt_.l2 * Vv.topRows(features_);
+}
+
+double LinearModel::gram_lambda_max() const {
+  std::call_once(gram_once_, [this] {
+    const Index p = Xaug_.cols();
+    if (p <= 4000) {
+      Mat G(p, p);
+      G.setZero();
+      G.selfadjointView<Eigen::Lower>().rankUpdate(Xaug_.transpose());
+      gram_lambda_max_ = Eigen::SelfAdjointEigenSolver<Mat>(G, Eigen::EigenvaluesOnly)
+                             .eigenvalues()
+                             .maxCoeff();
+      return;
+    }
+    // Power iteration on XᵀX without forming it; a start from the seedless all-ones vector
+    // keeps it deterministic.
+    Vec v = Vec::Ones(p).normalized(), Xv(Xaug_.rows());
+    double lambda = 0.0;
+    for (int it = 0; it < 500; ++it) {
+      Xv.noalias() = Xaug_ * v;
+      v.noalias() = Xaug_.transpose() * Xv;
+      const double next = v.norm();
+      if (next == 0.0) break;
+      v /= next;
+      if (std::abs(next - lambda) <= 1e-10 * next) { lambda = next; break; }
+      lambda = next;
+    }
+    gram_lambda_max_ = lambda;
+  });
+  return gram_lambda_max_;
+}
+
+}  // namespace stepgate::detail

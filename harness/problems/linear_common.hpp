@@ -1,0 +1,61 @@
+// What least squares, logistic and softmax regression share: the feature matrix with a ones
+// column for the intercept, the reduction weight, the ridge term that skips intercepts, the
+// seeded start, mini-batch row gathering and the largest eigenvalue of XaugᵀXaug.
+#pragma once
+#include <mutex>
+#include <span>
+
+#include "core/dataset.hpp"
+#include "problems/linear_models.hpp"
+#include "problems/problem.hpp"
+
+namespace stepgate::detail {
+
+/// [X 1] when `intercept`, else a copy of X: n x (d + intercept).
+Mat augment_with_ones(const Mat& X, bool intercept);
+
+/// out = the rows `rows` of X, in that order (resized to |rows| x X.cols()).
+void gather_rows(const Mat& X, std::span<const Index> rows, Mat& out);
+
+/// Base of the three linear models. Parameters: a (d [+1]) x outputs matrix, column-major.
+class LinearModel : public Problem {
+ public:
+  LinearModel(const Dataset& data, const LinearModelOptions& opt, Index outputs);
+
+  Index dim() const override { return rows_per_output_ * outputs_; }
+  Index samples() const override { return Xaug_.rows(); }
+  /// w = 0, or N(0, init_scale²) entries drawn from `seed` when init_scale > 0.
+  Vec start(std::uint64_t seed) const override;
+  std::optional<LinearLayout> linear_layout() const override {
+    return LinearLayout{features_, outputs_, opt_.intercept};
+  }
+
+ protected:
+  /// Weight of the data term: 1/n for Reduction::mean, 1 for Reduction::sum.
+  double data_weight() const { return data_weight_; }
+  /// Weight of a mini-batch of m rows, so that the batch gradient estimates the full one
+  /// without bias: data_weight · n / m (mean: 1/m; sum: n/m).
+  double batch_weight(Index m) const { return data_weight_ * double(samples()) / double(m); }
+  /// grad += l2·w and, when `cost` is given, cost += (l2/2)‖w‖², per column of W, skipping
+  /// intercept entries.
+  void add_ridge(const Mat& W, Vec* cost, Mat& grad) const;
+  /// out += l2·v, skipping intercept entries.
+  void add_ridge(const Vec& v, Vec& out) const;
+  /// λ_max(XaugᵀXaug), computed on first use (thread-safe). Exact (dense symmetric eigen-
+  /// solver) up to 4000 columns; beyond, a power-iteration estimate.
+  double gram_lambda_max() const;
+
+  Mat Xaug_;
+  Vec y_;
+  LinearModelOptions opt_;
+  Index features_;
+  Index outputs_;
+  Index rows_per_output_;
+
+ private:
+  double data_weight_;
+  mutable std::once_flag gram_once_;
+  mutable double gram_lambda_max_ = 0.0;
+};
+
+}  // namespace stepgate::detail

@@ -1,0 +1,44 @@
+// Linear models on a data set: least squares, logistic regression, softmax regression.
+// Parameter layout (LinearLayout): (d [+1 intercept]) x outputs, column-major; the intercept is
+// the last entry of each output's column and is never regularised.
+#pragma once
+#include <memory>
+
+#include "core/dataset.hpp"
+#include "problems/problem.hpp"
+
+namespace stepgate {
+
+enum class Reduction {
+  mean,  ///< loss averaged over samples (default; what the formulas in DESIGN.md say)
+  sum,   ///< loss summed over samples: multiplies the gradient, and so the safe rates, by n
+};
+
+struct LinearModelOptions {
+  bool intercept = true;              ///< fit an intercept b (unregularised)
+  double l2 = 0.0;                    ///< ridge strength, >= 0: adds (l2/2)·‖w‖²
+  Reduction reduction = Reduction::mean;
+  double init_scale = 0.0;            ///< 0: start at w = 0 (common practice for convex GLMs);
+                                      ///< > 0: start ~ N(0, init_scale²) drawn from the run seed
+  /// least squares only: use the Gram matrix XᵀX/n when n >= gram_ratio · p (0 = never).
+  double gram_ratio = 4.0;
+};
+
+/// J(w) = 1/(2n)·‖Xw + b − y‖² + (l2/2)·‖w‖²  (sum: 1/2·‖…‖² + (l2/2)·‖w‖²).
+/// Optimum in closed form by column-pivoting Householder QR on centred, column-equilibrated
+/// data (adequate for Longley's conditioning).
+std::unique_ptr<Problem> make_least_squares(const Dataset& data, const LinearModelOptions& opt = {});
+
+/// Mean binary cross-entropy of sigmoid(Xw + b) against labels y in {0, 1}, plus (l2/2)·‖w‖².
+/// Optimum by Newton's method to near machine precision. Throws std::invalid_argument for
+/// labels other than 0/1.
+std::unique_ptr<Problem> make_logistic(const Dataset& data, const LinearModelOptions& opt = {});
+
+/// Mean multinomial cross-entropy of softmax(XW + b) against class ids y in {0..C-1}, plus
+/// (l2/2)·‖W‖². C = max label + 1 unless `classes` > 0. The parameterisation is the full
+/// (over-complete) one, so without l2 the optimum is not unique: its reference optimum is the
+/// minimum-norm Newton solution, and gaps use J* only.
+std::unique_ptr<Problem> make_softmax(const Dataset& data, const LinearModelOptions& opt = {},
+                                      Index classes = 0);
+
+}  // namespace stepgate

@@ -1,0 +1,140 @@
+// Logistic regression: J(w) = s·Σ_i [log(1 + exp(z_i)) − y_i z_i] + (l2/2)‖w‖², z = Xaug w,
+// s = 1/n (mean) or 1 (sum), labels y_i in {0, 1}.
+#include <cmath>
+#include <mutex>
+#include <stdexcept>
+#include <string>
+
+#include <fmt/format.h>
+
+#include "problems/linear_common.hpp"
+#include "problems/linear_models.hpp"
+#include "problems/newton.hpp"
+
+namespace stepgate {
+namespace {
+
+/// log(1 + exp(z)) without overflow or loss of digits for either sign of z.
+double softplus(double z) { return std::max(z, 0.0) + std::log1p(std::exp(-std::abs(z))); }
+
+/// 1 / (1 + exp(−z)) without overflow.
+double sigmoid(double z) {
+  if (z >= 0.0) return 1.0 / (1.0 + std::exp(-z));
+  const double e = std::exp(z);
+  return e / (1.0 + e);
+}
+
+class Logistic final : public detail::LinearModel {
+ public:
+  Logistic(const Dataset& data, const LinearModelOptions& opt) : LinearModel(data, opt, 1) {
+    for (Index i = 0; i < y_.size(); ++i)
+      if (y_[i] != 0.0 && y_[i] != 1.0)
+        throw std::invalid_argument(fmt::format("logistic: data set '{}': label {} in row {} is not 0 or 1",
+                                                data.name, y_[i], i));
+  }
+
+  std::string_view kind() const override { return "logistic"; }
+
+  void evaluate(const Mat& W, Evaluation& out, Scratch& s) const override {
+    const Index K = W.cols();
+    out.cost.resize(K);
+    out.grad.resize(dim(), K);
+    s.a.resize(Xaug_.rows(), K);
+    s.a.noalias() = Xaug_ * W;  // all lanes' margins in one product
+    // Loss per entry, then overwrite the margins with the residuals σ(z) − y.
+    for (Index k = 0; k < K; ++k) {
+      double loss = 0.0;
+      for (Index i = 0; i < s.a.rows(); ++i) {
+        const double z = s.a(i, k);
+        loss += softplus(z) - y_[i] * z;
+        s.a(i, k) = sigmoid(z) - y_[i];
+      }
+      out.cost[k] = data_weight() * loss;
+    }
+    out.grad.noalias() = data_weight() * (Xaug_.transpose() * s.a);
+    add_ridge(W, &out.cost, out.grad);
+  }
+
+  void gradient_rows(const Mat& W, std::span<const Index> rows, Mat& grad, Scratch& s) const override {
+    if (rows.empty()) throw std::invalid_argument("logistic: empty mini-batch");
+    detail::gather_rows(Xaug_, rows, s.c);
+    s.a.resize(s.c.rows(), W.cols());
+    s.a.noalias() = s.c * W;
+    for (Index k = 0; k < W.cols(); ++k)
+      for (std::size_t i = 0; i < rows.size(); ++i)
+        s.a(Index(i), k) = sigmoid(s.a(Index(i), k)) - y_[rows[i]];
+    grad.resize(dim(), W.cols());
+    grad.noalias() = batch_weight(Index(rows.size())) * (s.c.transpose() * s.a);
+    add_ridge(W, nullptr, grad);
+  }
+
+  void hessian_vector(const Vec& w, const Vec& v, Vec& out) const override {
+    const Vec z = Xaug_ * w;
+    Vec u = Xaug_ * v;
+    for (Index i = 0; i < u.size(); ++i) {
+      const double p = sigmoid(z[i]);
+      u[i] *= p * (1.0 - p);
+    }
+    out.noalias() = data_weight() * (Xaug_.transpose() * u);
+    add_ridge(v, out);
+  }
+
+  Mat hessian(const Vec& w) const override {
+    const Vec z = Xaug_ * w;
+    Vec curvature(z.size());
+    for (Index i = 0; i < z.size(); ++i) {
+      const double p = sigmoid(z[i]);
+      curvature[i] = data_weight() * p * (1.0 - p);
+    }
+    const Mat DX = curvature.cwiseSqrt().asDiagonal() * Xaug_;
+    Mat H = Mat::Zero(dim(), dim());
+    H.selfadjointView<Eigen::Lower>().rankUpdate(DX.transpose());
+    H.triangularView<Eigen::StrictlyUpper>() = H.transpose();
+    H.diagonal().head(features_).array() += opt_.l2;
+    return H;
+  }
+
+  /// Newton's method from w = 0. Without l2, separable data have no minimiser (the cost
+  /// tends to 0 as ‖w‖ → ∞): then nullopt, noticed when the final w classifies every row
+  /// strictly correctly or the Newton steps fail to shrink while ‖w‖ grows.
+  std::optional<Optimum> optimum() const override {
+    std::call_once(once_, [this] { solution_ = solve(); });
+    return solution_;
+  }
+
+  /// σ' ≤ 1/4, so ∇²J ⪯ s·XaugᵀXaug/4 + l2·I.
+  double smoothness_bound() const override { return data_weight() * gram_lambda_max() / 4.0 + opt_.l2; }
+
+ private:
+  std::optional<Optimum> solve() const {
+    detail::NewtonOracle oracle;
+    oracle.cost_grad = [this](const Vec& w, Vec& g) {
+      Evaluation e;
+      Scratch s;
+      evaluate(w, e, s);
+      g = e.grad.col(0);
+      return e.cost[0];
+    };
+    oracle.hessian = [this](const Vec& w) { return hessian(w); };
+    oracle.hvp = [this](const Vec& w, const Vec& v, Vec& out) { hessian_vector(w, v, out); };
+    const detail::NewtonResult r = detail::newton_minimise(oracle, Vec::Zero(dim()));
+    if (opt_.l2 == 0.0) {
+      const Vec z = Xaug_ * r.w;
+      bool separated = true;
+      for (Index i = 0; i < z.size() && separated; ++i) separated = y_[i] == 1.0 ? z[i] > 0.0 : z[i] < 0.0;
+      if (separated || !r.settled) return std::nullopt;
+    }
+    return Optimum{r.w, r.cost, fmt::format("Newton ({} steps, |grad| {:.2e})", r.steps, r.grad_norm)};
+  }
+
+  mutable std::once_flag once_;
+  mutable std::optional<Optimum> solution_;
+};
+
+}  // namespace
+
+std::unique_ptr<Problem> make_logistic(const Dataset& data, const LinearModelOptions& opt) {
+  return std::make_unique<Logistic>(data, opt);
+}
+
+}  // namespace stepgate

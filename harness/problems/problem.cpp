@@ -1,0 +1,24 @@
+#include "problems/problem.hpp"
+
+#include <stdexcept>
+
+namespace stepgate {
+
+void Problem::gradient_rows(const Mat&, std::span<const Index>, Mat&, Scratch&) const {
+  throw std::logic_error("problem '" + std::string(kind()) + "' has no samples to draw mini-batches from");
+}
+
+Mat Problem::hessian(const Vec& w) const {
+  const Index p = dim();
+  Mat H(p, p);
+  Vec e = Vec::Zero(p), col(p);
+  for (Index j = 0; j < p; ++j) {
+    e[j] = 1.0;
+    hessian_vector(w, e, col);
+    H.col(j) = col;
+    e[j] = 0.0;
+  }
+  return (0.5 * (H + H.transpose())).eval();
+}
+
+}  // namespace stepgate

@@ -1,0 +1,94 @@
+// The objective interface. Every built-in problem (least squares, logistic, softmax,
+// quadratic, test functions) and every user-registered objective implements it.
+//
+// Lanes: the parameters of K runs of one case are the K columns of a p x K matrix W, so that a
+// problem computes all K costs and gradients with matrix-matrix products. Implementations
+// must be const and thread-safe: one Problem object is shared by all threads of a sweep; all
+// mutable working memory lives in the caller's Scratch.
+#pragma once
+#include <cstdint>
+#include <optional>
+#include <span>
+#include <string>
+#include <string_view>
+
+#include "core/types.hpp"
+
+namespace stepgate {
+
+/// The known minimiser of a problem.
+struct Optimum {
+  Vec w;               ///< minimiser, size dim()
+  double cost = 0.0;   ///< J* = J(w*)
+  std::string method;  ///< how it was obtained, e.g. "column-pivoting QR", "Newton (9 steps)", "exact"
+};
+
+/// Where the parameters of a linear model sit in the parameter vector, so that a solution can be
+/// mapped back through a scaling: the vector is a (features + intercept) x outputs matrix stored
+/// column-major; column c holds the weights of output c, followed by its intercept if any.
+struct LinearLayout {
+  Index features = 0;
+  Index outputs = 1;
+  bool intercept = false;
+};
+
+/// Caller-owned working memory for evaluations. A problem resizes the members it needs;
+/// Eigen's resize to the same shape does not reallocate, so the steady state allocates nothing.
+struct Scratch {
+  Mat a, b, c;
+  Vec v;
+  std::vector<Index> rows;
+};
+
+/// Result buffers of a batched evaluation (sized by the problem to K lanes).
+struct Evaluation {
+  Vec cost;  ///< J(W.col(k))
+  Mat grad;  ///< ∇J(W.col(k)), p x K
+  Vec gap;   ///< J(W.col(k)) - J*, filled only when has_exact_gap(); otherwise left empty
+};
+
+class Problem {
+ public:
+  virtual ~Problem() = default;
+
+  /// "least_squares", "logistic", "softmax", "quadratic", "test_function", or a user's name.
+  virtual std::string_view kind() const = 0;
+  /// Number of parameters p.
+  virtual Index dim() const = 0;
+  /// Number of samples that mini-batches draw from; 0 when the problem has none.
+  virtual Index samples() const { return 0; }
+
+  /// Starting point of a run. `seed` comes from the run's coordinates; problems with a
+  /// published start (test functions) or a zero start ignore it.
+  virtual Vec start(std::uint64_t seed) const = 0;
+
+  /// Full-data cost and gradient of every column of W (p x K).
+  virtual void evaluate(const Mat& W, Evaluation& out, Scratch& scratch) const = 0;
+
+  /// True when evaluate() fills Evaluation::gap in closed form (quadratics and least squares:
+  /// gap = ½ (w - w*)ᵀ ∇J(w), which is better conditioned than J(w) - J*).
+  virtual bool has_exact_gap() const { return false; }
+
+  /// Mini-batch gradient: mean loss over `rows` plus the full regulariser. Problems without
+  /// samples throw std::logic_error.
+  virtual void gradient_rows(const Mat& W, std::span<const Index> rows, Mat& grad,
+                             Scratch& scratch) const;
+
+  /// Hessian-vector product ∇²J(w) v.
+  virtual void hessian_vector(const Vec& w, const Vec& v, Vec& out) const = 0;
+
+  /// Dense Hessian at w. Default: p Hessian-vector products with unit vectors (symmetrised).
+  virtual Mat hessian(const Vec& w) const;
+
+  /// The reference optimum, or nullopt when none is known. May be expensive the first time
+  /// (Newton's method); implementations cache it (thread-safely).
+  virtual std::optional<Optimum> optimum() const = 0;
+
+  /// A global bound on the Lipschitz constant of ∇J where one is known in closed form; NaN otherwise.
+  virtual double smoothness_bound() const { return kMissing; }
+
+  /// Layout of a linear model's parameters; nullopt for problems that are not linear models.
+  virtual std::optional<LinearLayout> linear_layout() const { return std::nullopt; }
+};
+
+}  // namespace stepgate

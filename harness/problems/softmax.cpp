@@ -1,0 +1,169 @@
+// Softmax regression: J(W) = s·Σ_i [logsumexp(z_i) − z_{i,y_i}] + (l2/2)‖W‖², z_i = W_augᵀ x_i,
+// s = 1/n (mean) or 1 (sum). Parameters: (d+1) x C, column c = weights of class c, then its
+// intercept; the full (over-complete) parameterisation.
+#include <cmath>
+#include <mutex>
+#include <stdexcept>
+
+#include <fmt/format.h>
+
+#include "problems/linear_common.hpp"
+#include "problems/linear_models.hpp"
+#include "problems/newton.hpp"
+
+namespace stepgate {
+namespace {
+
+Index class_count(const Dataset& data, Index classes) {
+  Index top = -1;
+  for (Index i = 0; i < data.y.size(); ++i) {
+    const double c = data.y[i];
+    if (!(c >= 0.0) || c != std::floor(c) || (classes > 0 && c >= double(classes)))
+      throw std::invalid_argument(fmt::format("softmax: data set '{}': label {} in row {} is not a class id 0..{}",
+                                              data.name, c, i, classes > 0 ? classes - 1 : Index(0)));
+    top = std::max(top, Index(c));
+  }
+  return classes > 0 ? classes : top + 1;
+}
+
+class Softmax final : public detail::LinearModel {
+ public:
+  Softmax(const Dataset& data, const LinearModelOptions& opt, Index classes)
+      : LinearModel(data, opt, class_count(data, classes)), label_(y_.size()) {
+    for (Index i = 0; i < y_.size(); ++i) label_[i] = Index(y_[i]);
+  }
+
+  std::string_view kind() const override { return "softmax"; }
+
+  void evaluate(const Mat& W, Evaluation& out, Scratch& s) const override {
+    const Index K = W.cols(), C = outputs_;
+    out.cost.resize(K);
+    out.grad.resize(dim(), K);
+    // All lanes at once: W viewed as (d+1) x (C·K), so one product gives every logit.
+    Eigen::Map<const Mat> Wv(W.data(), rows_per_output_, C * K);
+    s.a.resize(Xaug_.rows(), C * K);
+    s.a.noalias() = Xaug_ * Wv;
+    for (Index k = 0; k < K; ++k) out.cost[k] = data_weight() * residuals(s.a, k, Xaug_.rows(), nullptr);
+    Eigen::Map<Mat> Gv(out.grad.data(), rows_per_output_, C * K);
+    Gv.noalias() = data_weight() * (Xaug_.transpose() * s.a);
+    add_ridge(W, &out.cost, out.grad);
+  }
+
+  void gradient_rows(const Mat& W, std::span<const Index> rows, Mat& grad, Scratch& s) const override {
+    if (rows.empty()) throw std::invalid_argument("softmax: empty mini-batch");
+    const Index K = W.cols(), C = outputs_;
+    detail::gather_rows(Xaug_, rows, s.c);
+    Eigen::Map<const Mat> Wv(W.data(), rows_per_output_, C * K);
+    s.a.resize(s.c.rows(), C * K);
+    s.a.noalias() = s.c * Wv;
+    for (Index k = 0; k < K; ++k) residuals(s.a, k, s.c.rows(), &rows);
+    grad.resize(dim(), K);
+    Eigen::Map<Mat> Gv(grad.data(), rows_per_output_, C * K);
+    Gv.noalias() = batch_weight(Index(rows.size())) * (s.c.transpose() * s.a);
+    add_ridge(W, nullptr, grad);
+  }
+
+  void hessian_vector(const Vec& w, const Vec& v, Vec& out) const override {
+    const Index C = outputs_;
+    Mat P = Xaug_ * Eigen::Map<const Mat>(w.data(), rows_per_output_, C);
+    probabilities(P);
+    Mat U = Xaug_ * Eigen::Map<const Mat>(v.data(), rows_per_output_, C);
+    // Per row: (diag(p) − p pᵀ) u = p ⊙ (u − pᵀu).
+    const Vec pu = P.cwiseProduct(U).rowwise().sum();
+    U = P.cwiseProduct(U.colwise() - pu);
+    out.resize(dim());
+    Eigen::Map<Mat>(out.data(), rows_per_output_, C).noalias() = data_weight() * (Xaug_.transpose() * U);
+    add_ridge(v, out);
+  }
+
+  Mat hessian(const Vec& w) const override {
+    const Index C = outputs_, q = rows_per_output_;
+    Mat P = Xaug_ * Eigen::Map<const Mat>(w.data(), q, C);
+    probabilities(P);
+    Mat H(dim(), dim());
+    Vec weight(Xaug_.rows());
+    for (Index a = 0; a < C; ++a)
+      for (Index b = 0; b <= a; ++b) {
+        weight = -P.col(a).cwiseProduct(P.col(b));
+        if (a == b) weight += P.col(a);
+        H.block(a * q, b * q, q, q).noalias() = data_weight() * (Xaug_.transpose() * weight.asDiagonal() * Xaug_);
+        if (a != b) H.block(b * q, a * q, q, q) = H.block(a * q, b * q, q, q).transpose();
+      }
+    Vec ridge = Vec::Zero(dim());
+    add_ridge(Vec::Ones(dim()), ridge);
+    H.diagonal() += ridge;
+    return H;
+  }
+
+  /// Newton's method from W = 0. Without l2 the Hessian is singular (adding one vector to every
+  /// class's weights changes nothing): minimum-norm Newton steps keep the iterates in its range,
+  /// giving the minimum-norm minimiser. Without l2 a minimiser may not exist at all (a class
+  /// separable from the rest): then nullopt, noticed when the Newton steps stop shrinking.
+  std::optional<Optimum> optimum() const override {
+    std::call_once(once_, [this] { solution_ = solve(); });
+    return solution_;
+  }
+
+  /// λ_max(diag(p) − ppᵀ) ≤ 1/2, so ∇²J ⪯ s·λ_max(XaugᵀXaug)/2 + l2.
+  double smoothness_bound() const override { return data_weight() * gram_lambda_max() / 2.0 + opt_.l2; }
+
+ private:
+  /// Turns the logits of lane k in Z (columns k·C..k·C+C−1) into residuals softmax(z) − e_y and
+  /// returns the summed loss Σ logsumexp(z) − z_y. `rows` maps row i of Z to its sample.
+  double residuals(Mat& Z, Index k, Index n, const std::span<const Index>* rows) const {
+    const Index C = outputs_;
+    double loss = 0.0;
+    auto block = Z.middleCols(k * C, C);
+    for (Index i = 0; i < n; ++i) {
+      const Index label = label_[rows ? (*rows)[std::size_t(i)] : i];
+      auto z = block.row(i);
+      const double top = z.maxCoeff();
+      double total = 0.0;
+      for (Index c = 0; c < C; ++c) total += std::exp(z[c] - top);
+      const double lse = top + std::log(total);
+      loss += lse - z[label];
+      for (Index c = 0; c < C; ++c) z[c] = std::exp(z[c] - lse);
+      z[label] -= 1.0;
+    }
+    return loss;
+  }
+
+  /// Logits to probabilities, row by row (log-sum-exp stabilised).
+  void probabilities(Mat& Z) const {
+    for (Index i = 0; i < Z.rows(); ++i) {
+      auto z = Z.row(i);
+      const double top = z.maxCoeff();
+      z = (z.array() - top).exp();
+      z /= z.sum();
+    }
+  }
+
+  std::optional<Optimum> solve() const {
+    detail::NewtonOracle oracle;
+    oracle.cost_grad = [this](const Vec& w, Vec& g) {
+      Evaluation e;
+      Scratch s;
+      evaluate(w, e, s);
+      g = e.grad.col(0);
+      return e.cost[0];
+    };
+    oracle.hessian = [this](const Vec& w) { return hessian(w); };
+    oracle.hvp = [this](const Vec& w, const Vec& v, Vec& out) { hessian_vector(w, v, out); };
+    oracle.min_norm = opt_.l2 == 0.0;
+    const detail::NewtonResult r = detail::newton_minimise(oracle, Vec::Zero(dim()));
+    if (opt_.l2 == 0.0 && !r.settled) return std::nullopt;
+    return Optimum{r.w, r.cost, fmt::format("Newton ({} steps, |grad| {:.2e})", r.steps, r.grad_norm)};
+  }
+
+  std::vector<Index> label_;
+  mutable std::once_flag once_;
+  mutable std::optional<Optimum> solution_;
+};
+
+}  // namespace
+
+std::unique_ptr<Problem> make_softmax(const Dataset& data, const LinearModelOptions& opt, Index classes) {
+  return std::make_unique<Softmax>(data, opt, classes);
+}
+
+}  // namespace stepgate

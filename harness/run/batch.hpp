@@ -1,0 +1,45 @@
+// Executes a batch of runs of one case: the same problem, optimizer and seed at K rates. The
+// runs advance together as the K columns of one parameter matrix ("lanes"), so a step costs
+// one matrix-matrix product; a lane that is decided (diverged, converged) drops out at once.
+#pragma once
+#include <cstdint>
+#include <span>
+#include <vector>
+
+#include "analysis/outcome_rules.hpp"
+#include "core/run_record.hpp"
+#include "optimizers/optimizer.hpp"
+#include "problems/problem.hpp"
+
+namespace stepgate {
+
+struct RunSettings {
+  long budget = 10000;  ///< iterations per run (>= 1). 1e4: enough for gd at its best rate on a
+                        ///< problem with condition number up to ~1e3 to reach a 1e-6 gap
+  long eval_every = 0;  ///< iterations between evaluations; 0 = every iteration for full batch,
+                        ///< once per epoch for mini-batch
+  OutcomeSettings outcome;
+  bool keep_final_params = true;  ///< store each run's final parameters in its record
+};
+
+/// Identifies a batch's runs: its seed and which of the case's seeds it is.
+struct BatchSeed {
+  std::uint64_t seed = 0;  ///< derived from the run's coordinates (case id, seed index)
+  long index = 0;
+};
+
+/// Runs `rates` (any order, each > 0) together. Returns one record per rate, in the given order.
+/// Every record's outcome is set; an exception inside the problem makes every unfinished lane
+/// `failed` with the message as reason. Bitwise deterministic for given inputs.
+std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& spec,
+                                 const RunSettings& settings, std::span<const double> rates,
+                                 BatchSeed seed);
+
+/// The same for one rate.
+RunRecord run_single(const Problem& problem, const OptimizerSpec& spec, const RunSettings& settings,
+                     double rate, BatchSeed seed);
+
+/// Iterations between evaluations once `eval_every` = 0 (auto) is resolved.
+long resolved_eval_every(const Problem& problem, const OptimizerSpec& spec, const RunSettings& s);
+
+}  // namespace stepgate
