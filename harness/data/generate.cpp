@@ -68,8 +68,13 @@ Generated generate(const GeneratedSpec& spec, std::string name) {
       data.y(i) = uniform01(outcome_draws.engine()) < sigmoid(data.y(i)) ? 1.0 : 0.0;
   }
 
-  for (Index j = 0; j < d; ++j) data.features.push_back("x" + std::to_string(j + 1));
-  data.target = "y";
+  for (Index j = 0; j < d; ++j) {
+    // Built by appending: GCC 12 warns falsely (-Wrestrict, PR 105329) on "x" + to_string().
+    std::string feature(1, 'x');
+    feature += std::to_string(j + 1);
+    data.features.push_back(std::move(feature));
+  }
+  data.target = std::string(1, 'y');  // not = "y": GCC 12 false -Wrestrict (PR 105329)
   data.map = FeatureMap::identity(d);
   return out;
 }

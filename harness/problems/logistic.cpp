@@ -24,6 +24,9 @@ double sigmoid(double z) {
   return e / (1.0 + e);
 }
 
+/// σ(z) − y for y in {0, 1}; for y = 1 as −σ(−z), which keeps its digits when σ(z) ≈ 1.
+double residual(double z, double y) { return y == 1.0 ? -sigmoid(-z) : sigmoid(z); }
+
 class Logistic final : public detail::LinearModel {
  public:
   Logistic(const Dataset& data, const LinearModelOptions& opt) : LinearModel(data, opt, 1) {
@@ -47,7 +50,7 @@ class Logistic final : public detail::LinearModel {
       for (Index i = 0; i < s.a.rows(); ++i) {
         const double z = s.a(i, k);
         loss += softplus(z) - y_[i] * z;
-        s.a(i, k) = sigmoid(z) - y_[i];
+        s.a(i, k) = residual(z, y_[i]);
       }
       out.cost[k] = data_weight() * loss;
     }
@@ -62,7 +65,7 @@ class Logistic final : public detail::LinearModel {
     s.a.noalias() = s.c * W;
     for (Index k = 0; k < W.cols(); ++k)
       for (std::size_t i = 0; i < rows.size(); ++i)
-        s.a(Index(i), k) = sigmoid(s.a(Index(i), k)) - y_[rows[i]];
+        s.a(Index(i), k) = residual(s.a(Index(i), k), y_[rows[i]]);
     grad.resize(dim(), W.cols());
     grad.noalias() = batch_weight(Index(rows.size())) * (s.c.transpose() * s.a);
     add_ridge(W, nullptr, grad);

@@ -50,40 +50,34 @@ NewtonResult newton_minimise(const NewtonOracle& o, Vec w0) {
                                                 : newton_cg_direction(o, res.w, g);
     const double slope = g.dot(d);
     if (!d.allFinite() || !(slope < 0.0)) break;
-    // Armijo backtracking. Near the optimum the cost no longer resolves the decrease, so a
-    // step that leaves the cost within rounding and lowers the gradient norm is taken too.
-    bool accepted = false;
-    Vec w_try;
-    double cost_try = 0.0;
-    for (double t = 1.0; t > 1e-12 && !accepted; t *= 0.5) {
-      w_try = res.w + t * d;
-      cost_try = o.cost_grad(w_try, g_try);
+    // Armijo backtracking while the cost resolves the decrease. Once the change in cost is
+    // within rounding, the cost says nothing: a step is then taken only if it lowers the
+    // gradient norm, and the iteration ends when it does not.
+    const double rounding = 1e-13 * std::max(std::abs(res.cost), 1e-300);
+    bool accepted = false, done = false;
+    for (double t = 1.0; t > 1e-12 && !accepted && !done; t *= 0.5) {
+      Vec w_try = res.w + t * d;
+      const double cost_try = o.cost_grad(w_try, g_try);
       if (!std::isfinite(cost_try)) continue;
-      const double rounding = 1e-13 * std::abs(res.cost);
-      accepted = cost_try <= res.cost + 1e-4 * t * slope ||
-                 (cost_try <= res.cost + rounding && g_try.norm() < res.grad_norm);
-      if (accepted) res.last_step = t * d.norm();
-    }
-    if (!accepted) break;
-    const double g_try_norm = g_try.norm();
-    if (!(g_try_norm < res.grad_norm)) {
-      // The gradient stopped decreasing: keep the better point and stop.
-      if (cost_try < res.cost && g_try_norm <= 2.0 * res.grad_norm) {
+      const double g_try_norm = g_try.norm();
+      if (std::abs(cost_try - res.cost) <= rounding) {
+        accepted = g_try_norm < res.grad_norm;
+        done = !accepted;
+      } else {
+        accepted = cost_try <= res.cost + 1e-4 * t * slope;
+      }
+      if (accepted) {
+        res.last_step = t * d.norm();
         res.w = std::move(w_try);
         res.cost = cost_try;
         res.grad_norm = g_try_norm;
         g.swap(g_try);
         ++res.steps;
       }
-      break;
     }
-    res.w = std::move(w_try);
-    res.cost = cost_try;
-    res.grad_norm = g_try_norm;
-    g.swap(g_try);
-    ++res.steps;
+    if (!accepted) break;
   }
-  res.settled = res.grad_norm == 0.0 || res.last_step <= 1e-6 * (1.0 + res.w.norm());
+  res.settled = res.last_step <= 1e-6 * (1.0 + res.w.norm());
   return res;
 }
 

@@ -26,11 +26,13 @@ struct NewtonResult {
   int steps = 0;
   /// The steps collapsed (last ≤ 1e-6·(1 + ‖w‖)), as they do when Newton converges
   /// quadratically. When the infimum is not attained (separable data without l2) the steps
-  /// stay of constant size while ‖w‖ grows, and this stays false.
+  /// stay of constant size while ‖w‖ grows, and this stays false (even if the gradient
+  /// underflows to 0 on the way).
   bool settled = false;
 };
 
-/// Iterates from w0 until the gradient norm stops decreasing (or reaches 0, or max_steps).
+/// Iterates from w0 until no step lowers the cost (or, once the cost no longer resolves the
+/// progress, the gradient norm), the gradient is 0, or max_steps.
 NewtonResult newton_minimise(const NewtonOracle& oracle, Vec w0);
 
 }  // namespace stepgate::detail

@@ -95,9 +95,10 @@ class Softmax final : public detail::LinearModel {
     return H;
   }
 
-  /// Newton's method from W = 0. Without l2 the Hessian is singular (adding one vector to every
-  /// class's weights changes nothing): minimum-norm Newton steps keep the iterates in its range,
-  /// giving the minimum-norm minimiser. Without l2 a minimiser may not exist at all (a class
+  /// Newton's method from W = 0. The Hessian is singular: adding one number to every class's
+  /// intercept (and, without l2, one vector to every class's weights) changes nothing.
+  /// Minimum-norm Newton steps keep the iterates in its range, giving the minimum-norm
+  /// minimiser (intercepts summing to 0; without l2 also weights summing to 0 over classes). Without l2 a minimiser may not exist at all (a class
   /// separable from the rest): then nullopt, noticed when the Newton steps stop shrinking.
   std::optional<Optimum> optimum() const override {
     std::call_once(once_, [this] { solution_ = solve(); });
@@ -122,8 +123,13 @@ class Softmax final : public detail::LinearModel {
       for (Index c = 0; c < C; ++c) total += std::exp(z[c] - top);
       const double lse = top + std::log(total);
       loss += lse - z[label];
-      for (Index c = 0; c < C; ++c) z[c] = std::exp(z[c] - lse);
-      z[label] -= 1.0;
+      // p − e_y; p_y − 1 as −Σ_{c≠y} p_c, which keeps its digits when p_y ≈ 1.
+      double others = 0.0;
+      for (Index c = 0; c < C; ++c) {
+        z[c] = std::exp(z[c] - lse);
+        if (c != label) others += z[c];
+      }
+      z[label] = -others;
     }
     return loss;
   }
@@ -149,7 +155,7 @@ class Softmax final : public detail::LinearModel {
     };
     oracle.hessian = [this](const Vec& w) { return hessian(w); };
     oracle.hvp = [this](const Vec& w, const Vec& v, Vec& out) { hessian_vector(w, v, out); };
-    oracle.min_norm = opt_.l2 == 0.0;
+    oracle.min_norm = opt_.l2 == 0.0 || opt_.intercept;
     const detail::NewtonResult r = detail::newton_minimise(oracle, Vec::Zero(dim()));
     if (opt_.l2 == 0.0 && !r.settled) return std::nullopt;
     return Optimum{r.w, r.cost, fmt::format("Newton ({} steps, |grad| {:.2e})", r.steps, r.grad_norm)};
