@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "problems/linear_models.hpp"
+#include "problems/newton.hpp"
 #include "problems/normal_draws.hpp"
 #include "problems/quadratic.hpp"
 #include "problems/test_functions.hpp"
@@ -415,6 +416,45 @@ TEST_CASE("softmax on iris with l2 = 0.01 matches scikit-learn", "[problems]") {
   CHECK((sk - o->w).norm() <= 1e-6 * o->w.norm());
   CHECK(cost(*p, sk) >= o->cost - 1e-15);
   CHECK(cost(*p, sk) == Approx(o->cost).epsilon(1e-12));
+}
+
+TEST_CASE("iris subsets: existence of optima, softmax with two classes equals logistic, Newton-CG", "[problems]") {
+  const Dataset all = iris();
+  // Setosa is linearly separable from the other two species (checked with a scipy 1.10 linprog
+  // feasibility problem when this test was written; versicolor/virginica are not separable).
+  Dataset setosa = all;
+  for (Index i = 0; i < all.rows(); ++i) setosa.y[i] = all.y[i] == 0.0 ? 1.0 : 0.0;
+  CHECK_FALSE(make_logistic(setosa)->optimum().has_value());
+  CHECK_FALSE(make_softmax(all)->optimum().has_value());
+
+  Dataset two;
+  two.name = "versicolor_virginica";
+  two.X = all.X.bottomRows(100);
+  two.y = all.y.tail(100).array() - 1.0;
+  REQUIRE(two.y.minCoeff() == 0.0);
+  const auto logistic = make_logistic(two);
+  const auto o = logistic->optimum();
+  REQUIRE(o.has_value());
+  const auto softmax2 = make_softmax(two)->optimum();
+  REQUIRE(softmax2.has_value());
+  CHECK(softmax2->cost == Approx(o->cost).epsilon(1e-13));
+  // The two-class softmax's minimum-norm weights are ±w/2 of the logistic ones.
+  const Mat W = softmax2->w.reshaped(5, 2);
+  CHECK((W.col(1) - W.col(0) - o->w).norm() <= 1e-8 * o->w.norm());
+
+  // Newton-CG with Hessian-vector products (used for p > 2000) reaches the same optimum.
+  detail::NewtonOracle oracle;
+  oracle.cost_grad = [&](const Vec& w, Vec& g) {
+    g = grad(*logistic, w);
+    return cost(*logistic, w);
+  };
+  oracle.hessian = [&](const Vec& w) { return logistic->hessian(w); };
+  oracle.hvp = [&](const Vec& w, const Vec& v, Vec& out) { logistic->hessian_vector(w, v, out); };
+  oracle.dense_limit = 0;
+  const detail::NewtonResult cg = detail::newton_minimise(oracle, Vec::Zero(5));
+  CHECK(cg.settled);
+  CHECK((cg.w - o->w).norm() <= 1e-8 * o->w.norm());
+  CHECK(cg.cost == Approx(o->cost).epsilon(1e-14));
 }
 
 TEST_CASE("quadratic: exact spectrum, optimum and gap", "[problems]") {
