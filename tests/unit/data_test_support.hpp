@@ -8,13 +8,13 @@
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
+#include <functional>
 #include <string>
 #include <vector>
 
 namespace data_test {
 
 namespace fs = std::filesystem;
-
 
 inline std::string temp_path(const std::string& file) {
   const fs::path dir = fs::path(STEPGATE_BINARY_DIR) / "test_data_tmp";
@@ -36,7 +36,8 @@ inline void write_gzip(const std::string& path, const std::string& bytes) {
 // Runs /usr/bin/python3 on a script; "" when Python or the module is unavailable.
 inline std::string run_python(const std::string& script) {
   if (!fs::exists("/usr/bin/python3")) return "";
-  const std::string path = temp_path("reference.py");
+  // One file per script, so that tests run in parallel by ctest do not overwrite each other's.
+  const std::string path = temp_path("reference-" + std::to_string(std::hash<std::string>{}(script)) + ".py");
   write_file(path, script);
   std::FILE* pipe = popen(("/usr/bin/python3 " + path + " 2>/dev/null").c_str(), "r");
   if (!pipe) return "";
