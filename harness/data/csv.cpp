@@ -115,13 +115,12 @@ class CsvParser {
 
   void read_quoted_field() {
     const std::size_t open = pos_;
-    const std::string open_where = table_.location(open);
     starts_.push_back(open);
     std::string value;
     ++pos_;
     for (;;) {
       if (pos_ >= text_.size())
-        throw InputError(open_where, "found a quoted field that is never closed; expected a "
+        throw InputError(table_.location(open), "found a quoted field that is never closed; expected a "
                                      "closing quote before the end of the file");
       const char c = text_[pos_];
       if (c == opt_.quote) {
@@ -144,7 +143,7 @@ class CsvParser {
         text_[after] != '\r')
       throw InputError(table_.location(after),
                        "found " + quote_text(text_.substr(after, 1)) + " after the closing quote "
-                       "of the field that starts at " + open_where +
+                       "of the field that starts at " + table_.location(open) +
                        "; expected a delimiter or the end of the line");
     pos_ = after;
     fields_.push_back(std::move(value));
@@ -178,8 +177,10 @@ class CsvParser {
                            plural(fields_.size(), "field") + "; expected " +
                            plural(expected, "field") +
                            (have_header_ ? ", as in the header" : ", as in the first row"));
-    table_.rows.push_back(fields_);
-    table_.cell_start.push_back(starts_);
+    table_.rows.push_back(std::move(fields_));
+    table_.cell_start.push_back(std::move(starts_));
+    fields_.clear();  // moved-from vectors: clear() makes them valid and empty
+    starts_.clear();
     table_.row_line.push_back(record_line_);
   }
 

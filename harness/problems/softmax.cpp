@@ -19,8 +19,9 @@ Index class_count(const Dataset& data, Index classes) {
   for (Index i = 0; i < data.y.size(); ++i) {
     const double c = data.y[i];
     if (!(c >= 0.0) || c != std::floor(c) || (classes > 0 && c >= double(classes)))
-      throw std::invalid_argument(fmt::format("softmax: data set '{}': label {} in row {} is not a class id 0..{}",
-                                              data.name, c, i, classes > 0 ? classes - 1 : Index(0)));
+      throw std::invalid_argument(fmt::format("softmax: data set '{}': label {} in row {} is not a class id "
+                                              "(a whole number >= 0{})", data.name, c, i,
+                                              classes > 0 ? fmt::format(" and < {}", classes) : ""));
     top = std::max(top, Index(c));
   }
   return classes > 0 ? classes : top + 1;

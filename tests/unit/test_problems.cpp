@@ -282,18 +282,21 @@ TEST_CASE("least squares reproduces the NIST StRD certified Longley coefficients
                                -3482258.63459582};
   const Dataset data = longley();
   REQUIRE(data.rows() == 16);
-  for (double gram_ratio : {4.0, 0.0}) {
+  for (double gram_ratio : {1.0, 0.0}) {  // n = 16, p = 7: 1.0 selects the Gram form
     LinearModelOptions opt;
     opt.gram_ratio = gram_ratio;
     const auto p = make_least_squares(data, opt);
+    // The exact gap agrees with J − J* at the start in either form.
+    const Evaluation e = eval(*p, p->start(0));
     const auto o = p->optimum();
     REQUIRE(o.has_value());
     double min_lre = 15.0;
     for (int j = 0; j < 7; ++j) min_lre = std::min(min_lre, lre(o->w[j], certified[j]));
     INFO("Longley min LRE = " << min_lre << " (gram_ratio " << gram_ratio << ")");
     CHECK(min_lre >= 9.0);
-    // NIST certified residual sum of squares 836424.055505915 → J* = RSS / (2n).
+    // Certified residual sum of squares 836424.055505915 (same sources) → J* = RSS / (2n).
     CHECK(o->cost == Approx(836424.055505915 / 32.0).epsilon(1e-10));
+    CHECK(e.gap[0] == Approx(e.cost[0] - o->cost).epsilon(1e-12));
   }
 }
 
