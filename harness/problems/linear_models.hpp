@@ -5,24 +5,10 @@
 #include <memory>
 
 #include "core/dataset.hpp"
+#include "core/problem_options.hpp"
 #include "problems/problem.hpp"
 
 namespace stepgate {
-
-enum class Reduction {
-  mean,  ///< loss averaged over samples (default; what the formulas in DESIGN.md say)
-  sum,   ///< loss summed over samples: multiplies the gradient, and so the safe rates, by n
-};
-
-struct LinearModelOptions {
-  bool intercept = true;              ///< fit an intercept b (unregularised)
-  double l2 = 0.0;                    ///< ridge strength, >= 0: adds (l2/2)·‖w‖²
-  Reduction reduction = Reduction::mean;
-  double init_scale = 0.0;            ///< 0: start at w = 0 (common practice for convex GLMs);
-                                      ///< > 0: start ~ N(0, init_scale²) drawn from the run seed
-  /// least squares only: use the Gram matrix XᵀX/n when n >= gram_ratio · p (0 = never).
-  double gram_ratio = 4.0;
-};
 
 /// J(w) = 1/(2n)·‖Xw + b − y‖² + (l2/2)·‖w‖²  (sum: 1/2·‖…‖² + (l2/2)·‖w‖²).
 /// Optimum in closed form by column-pivoting Householder QR on centred, column-equilibrated

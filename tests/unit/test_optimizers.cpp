@@ -9,7 +9,7 @@
 #include <vector>
 
 #include "optimizers/optimizer.hpp"
-#include "optimizers/schedule.hpp"
+#include "core/schedule.hpp"
 
 using namespace stepgate;
 using Catch::Matchers::Contains;

@@ -1,4 +1,4 @@
-#include "optimizers/schedule.hpp"
+#include "core/schedule.hpp"
 
 #include <algorithm>
 #include <cmath>

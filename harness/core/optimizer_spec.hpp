@@ -1,0 +1,39 @@
+// What an optimizer is: a plain value a suite describes and optimizers/ executes. Kept in core
+// so that suite/ can build it and run/ can hand it on without knowing each other.
+#pragma once
+#include <optional>
+#include <string>
+#include <string_view>
+
+#include "core/schedule.hpp"
+
+namespace stepgate {
+
+enum class OptimizerKind { gd, sgd, momentum, nesterov, adagrad, rmsprop, adam };
+
+/// What an optimizer is, with its published defaults.
+struct OptimizerSpec {
+  OptimizerKind kind = OptimizerKind::gd;
+  std::string label;          ///< the suite's name for it, e.g. "hb-0.9"; "" = kind name
+  double beta = 0.9;          ///< momentum / nesterov: momentum coefficient, in [0, 1)
+  double beta1 = 0.9;         ///< adam: first-moment decay (Kingma & Ba 2015, Algorithm 1)
+  double beta2 = 0.999;       ///< adam: second-moment decay (ibid.)
+  double rho = 0.9;           ///< rmsprop: decay of the mean square (Tieleman & Hinton 2012)
+  double eps = 1e-8;          ///< adam / rmsprop / adagrad: added to the root in the denominator
+  long batch_size = 0;        ///< samples per mini-batch; 0 = full batch. sgd requires > 0;
+                              ///< other kinds accept it too (mini-batch momentum, adam, ...)
+  Schedule schedule;          ///< rate schedule; the searched rate is its base rate
+
+  std::string name() const;   ///< label, or the kind's name when there is no label
+};
+
+std::string_view to_string(OptimizerKind k);
+/// Parses the lower-case name (as printed by to_string); nullopt for anything else.
+std::optional<OptimizerKind> optimizer_kind_from_string(std::string_view s);
+
+/// Checks the spec; returns an empty string when valid, otherwise what is wrong (every problem,
+/// separated by "; "). Every field is checked whatever the kind, so that a suite cannot carry
+/// an out-of-range value that would silently matter after a change of kind.
+std::string validate(const OptimizerSpec& spec);
+
+}  // namespace stepgate

@@ -1,0 +1,47 @@
+// Settings of run classification (definitions: DESIGN.md, "Runs and outcomes"); the rules that
+// use them are analysis/outcome_rules.
+#pragma once
+#include <optional>
+#include <string_view>
+
+#include "core/types.hpp"
+
+namespace stepgate {
+
+enum class Criterion {
+  automatic,  ///< gap when J* is known, otherwise plateau
+  gap,        ///< gap_k ≤ tol · gap_0
+  grad,       ///< ‖g_k‖ ≤ tol · ‖g_0‖
+  cost,       ///< J_k ≤ target
+  plateau,    ///< (J_{k−w} − J_k) / |J_{k−w}| < tol over the last w evaluations
+};
+
+std::string_view to_string(Criterion c);
+std::optional<Criterion> criterion_from_string(std::string_view s);
+
+/// Settings of classification. Defaults and why:
+struct OutcomeSettings {
+  Criterion criterion = Criterion::automatic;
+  /// Tolerance of the criterion; NaN = the criterion's default: gap 1e-6 (six decades below the
+  /// starting gap, so slow modes must be resolved too, not just the stiff ones), grad 1e-3
+  /// (near a minimum gap ∝ ‖g‖², so 1e-3 in the gradient is about 1e-6 in the gap), plateau 1e-8.
+  double tol = kMissing;
+  double target = kMissing;    ///< cost criterion: the cost to reach (required for it)
+  long plateau_window = 10;    ///< plateau: evaluations compared (w)
+  /// A run whose gap (or, without J*, cost) exceeds blowup_factor times its starting value has
+  /// diverged. 1e4: far above the transient growth of momentum methods at safe rates (bounded by
+  /// about 1/(1−β) for the heavy ball), yet reached within a few hundred iterations by gd at 1%
+  /// above 2/L, so the divergence threshold is located sharply.
+  double blowup_factor = 1e4;
+  /// A run whose overshoot exceeds this is oscillating. 0.5: the cost rose by more than half of
+  /// what it fell in all; monotone methods score 0, and a well-damped heavy ball stays well below.
+  double overshoot_limit = 0.5;
+  /// The criterion must hold at one evaluation and the next `hold` evaluations (so a single dip
+  /// of an oscillating run does not count as convergence).
+  long hold = 3;
+
+  /// The tolerance in force for the given criterion (resolves NaN to the default).
+  double tolerance(Criterion resolved) const;
+};
+
+}  // namespace stepgate

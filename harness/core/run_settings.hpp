@@ -1,0 +1,16 @@
+// How long runs go and how they are judged: a plain value a suite describes and run/ executes.
+#pragma once
+#include "core/outcome_settings.hpp"
+
+namespace stepgate {
+
+struct RunSettings {
+  long budget = 10000;  ///< iterations per run (>= 1). 1e4: enough for gd at its best rate on a
+                        ///< problem with condition number up to ~1e3 to reach a 1e-6 gap
+  long eval_every = 0;  ///< iterations between evaluations; 0 = every iteration for full batch,
+                        ///< once per epoch for mini-batch
+  OutcomeSettings outcome;
+  bool keep_final_params = true;  ///< store each run's final parameters in its record
+};
+
+}  // namespace stepgate
