@@ -6,6 +6,7 @@
 #include <vector>
 
 #include "core/feature_map.hpp"
+#include "core/reference_values.hpp"
 #include "problems/problem.hpp"
 
 namespace stepgate {
@@ -13,15 +14,6 @@ namespace stepgate {
 /// LRE = −log10(|x − c| / |c|) for c ≠ 0, −log10(|x − c|) for c = 0 (log absolute error);
 /// clamped to [0, max_digits] (an exact match scores max_digits; NaN scores 0).
 double lre(double estimate, double certified, double max_digits = 15.0);
-
-/// Published values of a linear model's parameters, in LinearLayout order (per output: the
-/// feature weights, then the intercept if the model has one), in ORIGINAL feature units.
-struct ReferenceValues {
-  std::string source;              ///< e.g. "NIST StRD Longley, certified values"
-  std::vector<std::string> names;  ///< one per value, for reports
-  Vec values;
-  double digits = 15.0;            ///< significant digits of the published values (LRE cap)
-};
 
 struct ReferenceComparison {
   Vec estimate;                    ///< the solution mapped back to original units

@@ -1,0 +1,35 @@
+// Tolerances of the gate rules (DESIGN.md, "Gate"), set in a suite's `gate` section and per
+// problem. Each default is chosen so that a re-run with the same seeds passes and a change a
+// practitioner would care about fails; gate/ documents the rules that use them.
+#pragma once
+#include <string_view>
+
+namespace stepgate {
+
+enum class Severity { pass, warn, fail };
+std::string_view to_string(Severity s);
+
+struct GateTolerances {
+  /// Edge moved: |edge/edge_base − 1| beyond this, plus the search precision and the seed
+  /// spread of both runs, fails. 0.05: a 5% move of the divergence edge is a real change.
+  double edge_moved = 0.05;
+  /// Floor moved (relative, plus precision): warns. Floors are softer (budget-dependent).
+  double floor_moved = 0.25;
+  /// Best rate moved by more than this factor (either way) warns. 2: beyond one grid step.
+  double best_moved_factor = 2.0;
+  /// Required headroom: the pinned rate must satisfy floor <= pinned <= edge / min_headroom.
+  /// 1.5: common practice keeps a shipped rate well below the divergence edge.
+  double min_headroom = 1.5;
+  /// Iterations at the pinned rate grew by more than this (relative): fails. 0.25.
+  double iterations_grew = 0.25;
+  /// Minimum LRE (significant digits) required against published reference values. 6.
+  double min_reference_digits = 6.0;
+  /// Predicted and measured blow-up disagree by more than this factor on a built-in problem:
+  /// fails (often a gradient scaled wrongly). 1.25.
+  double theory_factor = 1.25;
+  Severity case_added = Severity::warn;    ///< a case in the results but not in the baseline
+  Severity case_missing = Severity::fail;  ///< a case in the baseline but not in the results
+  Severity data_changed = Severity::warn;  ///< data or suite hash differs (always shown)
+};
+
+}  // namespace stepgate

@@ -1,0 +1,22 @@
+// JSON form of an OptimizerSpec (as stored in results.json, "optimizer"): every field is
+// written, the schedule as a nested object; numbers that are not finite become null.
+#pragma once
+#include <string>
+
+#include <nlohmann/json.hpp>
+
+#include "core/optimizer_spec.hpp"
+
+namespace stepgate {
+
+/// {"label","kind","beta","beta1","beta2","rho","eps","batch_size",
+///  "schedule":{"kind","factor","every","decay","floor","warmup"}}
+nlohmann::json to_json(const OptimizerSpec& spec);
+
+/// Inverse of to_json. Every field above is mandatory; unknown extra fields are ignored.
+/// Throws InputError(path + "#" + pointer of the bad field, "expected ..., found ..."); `at` is
+/// the pointer of `j` inside the file. Does not validate() ranges: a stored spec is data.
+OptimizerSpec optimizer_spec_from_json(const nlohmann::json& j, const std::string& path,
+                                       const nlohmann::json::json_pointer& at = {});
+
+}  // namespace stepgate

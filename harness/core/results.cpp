@@ -1,0 +1,181 @@
+// Results -> results.json. Reading is in results_from_json.cpp, files in json_file.cpp, tool
+// and host facts in host_info.cpp.
+#include "core/results.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include "core/json_fields.hpp"
+#include "core/optimizer_spec_json.hpp"
+
+namespace stepgate {
+
+using nlohmann::json;
+
+std::string_view to_string(RunRole r) {
+  switch (r) {
+    case RunRole::grid: return "grid";
+    case RunRole::fixed: return "fixed";
+    case RunRole::edge: return "edge";
+    case RunRole::floor: return "floor";
+    case RunRole::blowup: return "blowup";
+    case RunRole::refine: return "refine";
+  }
+  return "grid";
+}
+
+std::optional<RunRole> run_role_from_string(std::string_view s) {
+  for (RunRole r : {RunRole::grid, RunRole::fixed, RunRole::edge, RunRole::floor,
+                    RunRole::blowup, RunRole::refine})
+    if (to_string(r) == s) return r;
+  return std::nullopt;
+}
+
+std::vector<std::size_t> thinned_indices(const std::vector<TracePoint>& trace,
+                                         const TraceThinning& t) {
+  std::vector<std::size_t> keep;
+  const std::size_t n = trace.size();
+  if (n == 0) return keep;
+  keep.push_back(0);
+  // Log-spaced targets 10^(m / per_decade), m = 0, 1, ...: keep the first point at or after
+  // each target. Targets that fall between two points map to the same point (kept once).
+  if (t.per_decade > 0) {
+    int m = 0;
+    double target = 1.0;
+    const auto pass = [&](double iter) {  // the next target after `iter`
+      while (target <= iter) target = std::pow(10.0, static_cast<double>(++m) / t.per_decade);
+    };
+    pass(static_cast<double>(trace[0].iter));
+    for (std::size_t i = 1; i < n; ++i) {
+      const auto iter = static_cast<double>(trace[i].iter);
+      if (iter < target) continue;
+      keep.push_back(i);
+      pass(iter);
+    }
+  }
+  // The tail, and always the last point: final_cost and gap are read from it.
+  const std::size_t tail = static_cast<std::size_t>(std::max(t.tail, 1));
+  for (std::size_t i = n > tail ? n - tail : 0; i < n; ++i) keep.push_back(i);
+  std::sort(keep.begin(), keep.end());
+  keep.erase(std::unique(keep.begin(), keep.end()), keep.end());
+  return keep;
+}
+
+namespace {
+
+json to_json(const RunRecord& r, RunRole role, const TraceThinning& t) {
+  json trace = json::array();
+  for (std::size_t i : thinned_indices(r.trace, t))
+    trace.push_back(json::array({r.trace[i].iter, finite_or_null(r.trace[i].cost)}));
+  const TracePoint* last = r.last();
+  const bool converged = r.outcome == Outcome::converged && r.iterations.has_value();
+  return {{"rate", finite_or_null(r.rate)},
+          {"seed", r.seed},
+          {"seed_index", r.seed_index},
+          {"role", to_string(role)},
+          {"outcome", to_string(r.outcome)},
+          {"reason", r.reason},
+          {"iterations", converged ? json(*r.iterations) : json(nullptr)},
+          {"steps", r.steps},
+          {"final_cost", last ? finite_or_null(last->cost) : json(nullptr)},
+          {"gap", last ? finite_or_null(last->gap) : json(nullptr)},
+          {"overshoot", finite_or_null(r.overshoot)},
+          {"wall_seconds", finite_or_null(r.wall_seconds)},
+          {"trace", std::move(trace)}};
+}
+
+json numbers(const std::vector<double>& v) {
+  json a = json::array();
+  for (double x : v) a.push_back(finite_or_null(x));
+  return a;
+}
+
+json to_json(const ReferenceSummary& r) {
+  return {{"lre_min", finite_or_null(r.lre_min)},
+          {"source", r.source},
+          {"names", r.names},
+          {"lre", numbers(r.lre)},
+          {"estimate", numbers(r.estimate)}};
+}
+
+json to_json(const SeedSummary& s) {
+  return {{"seed", s.seed},
+          {"floor", finite_or_null(s.floor)},
+          {"edge", finite_or_null(s.edge)},
+          {"edge_bracket", json::array({finite_or_null(s.edge_lo), finite_or_null(s.edge_hi)})},
+          {"blowup", finite_or_null(s.blowup)},
+          {"best_rate", finite_or_null(s.best_rate)},
+          {"runs", s.runs}};
+}
+
+json to_json(const CaseSummary& s) {
+  json seeds = json::array();
+  for (const SeedSummary& seed : s.seeds) seeds.push_back(to_json(seed));
+  return {{"floor", finite_or_null(s.floor)},
+          {"edge", finite_or_null(s.edge)},
+          {"edge_bracket", json::array({finite_or_null(s.edge_lo), finite_or_null(s.edge_hi)})},
+          {"blowup", finite_or_null(s.blowup)},
+          {"best_rate", finite_or_null(s.best_rate)},
+          {"best_iterations", finite_or_null(s.best_iterations)},
+          {"pinned", finite_or_null(s.pinned)},
+          {"pinned_iterations", finite_or_null(s.pinned_iterations)},
+          {"pinned_outcome", s.pinned_outcome ? json(to_string(*s.pinned_outcome)) : json(nullptr)},
+          {"headroom", finite_or_null(s.headroom)},
+          {"edge_spread", finite_or_null(s.edge_spread)},
+          {"precision", finite_or_null(s.precision)},
+          {"runs", s.runs},
+          {"reference", s.reference ? to_json(*s.reference) : json(nullptr)},
+          {"seeds", std::move(seeds)}};
+}
+
+json to_json(const CaseTheory& t) {
+  return {{"L", finite_or_null(t.L)},
+          {"mu", finite_or_null(t.mu)},
+          {"predicted_blowup", finite_or_null(t.predicted_blowup)},
+          {"rule", t.rule},
+          {"method", t.method},
+          {"lambda_max_start", finite_or_null(t.lambda_max_start)},
+          {"lambda_min_start", finite_or_null(t.lambda_min_start)},
+          {"lambda_max_optimum", finite_or_null(t.lambda_max_optimum)},
+          {"lambda_min_optimum", finite_or_null(t.lambda_min_optimum)}};
+}
+
+json to_json(const CaseResult& c, const TraceThinning& t) {
+  json runs = json::array();
+  for (const StoredRun& run : c.runs) runs.push_back(to_json(run.record, run.role, t));
+  return {{"id", c.id},
+          {"problem", c.problem},
+          {"scaling", c.scaling},
+          {"problem_kind", c.problem_kind},
+          {"optimizer", to_json(c.optimizer)},
+          {"dataset", c.dataset},
+          {"data_sha256", c.data_sha256},
+          {"optimum_cost", finite_or_null(c.optimum_cost)},
+          {"error", c.error},
+          {"theory", to_json(c.theory)},
+          {"summary", to_json(c.summary)},
+          {"runs", std::move(runs)}};
+}
+
+}  // namespace
+
+json to_json(const Results& r, const TraceThinning& t) {
+  json cases = json::array();
+  for (const CaseResult& c : r.cases) cases.push_back(to_json(c, t));
+  // The format written is always this build's: r.format only records what was read.
+  return {{"format", kResultsFormat},
+          {"suite", {{"name", r.suite.name}, {"path", r.suite.path}, {"sha256", r.suite.sha256}}},
+          {"tool", {{"version", r.tool.version}, {"compiler", r.tool.compiler}, {"build", r.tool.build}}},
+          {"host",
+           {{"os", r.host.os},
+            {"machine", r.host.machine},
+            {"hostname", r.host.hostname},
+            {"cores", r.host.cores},
+            {"jobs", r.host.jobs}}},
+          {"started", r.started},
+          {"finished", r.finished},
+          {"shard", r.shard},
+          {"cases", std::move(cases)}};
+}
+
+}  // namespace stepgate

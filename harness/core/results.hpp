@@ -1,0 +1,152 @@
+// The Results model: everything a sweep of one suite produced, and its JSON form
+// (results.json, format "stepgate.results/1"; DESIGN.md, "results.json"). gate/ and report/
+// read only this. A value that does not exist is NaN / nullopt here and null in JSON.
+#pragma once
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+#include "core/optimizer_spec.hpp"
+#include "core/run_record.hpp"
+
+namespace stepgate {
+
+inline constexpr const char* kResultsFormat = "stepgate.results/1";
+
+/// Why a run was made: the search step that asked for it.
+enum class RunRole { grid, fixed, edge, floor, blowup, refine };
+std::string_view to_string(RunRole r);
+std::optional<RunRole> run_role_from_string(std::string_view s);
+
+/// A run as stored: the record plus its role. The trace is thinned on output.
+struct StoredRun {
+  RunRecord record;
+  RunRole role = RunRole::grid;
+};
+
+/// Theory beside measurement (DESIGN.md, "Theory beside measurement").
+struct CaseTheory {
+  double L = kMissing;                 ///< λ_max used for the prediction
+  double mu = kMissing;                ///< λ_min at the same point
+  double lambda_max_start = kMissing, lambda_min_start = kMissing;
+  double lambda_max_optimum = kMissing, lambda_min_optimum = kMissing;
+  double predicted_blowup = kMissing;  ///< NaN where theory gives no threshold
+  std::string rule;                    ///< "2/L", "2(1+beta)/L", ... ; "" when none
+  std::string method;                  ///< how λ was computed
+};
+
+/// Per-seed located boundaries.
+struct SeedSummary {
+  std::uint64_t seed = 0;          ///< the user's seed number (as in the suite)
+  double floor = kMissing, edge = kMissing, blowup = kMissing;
+  double edge_lo = kMissing, edge_hi = kMissing;  ///< the bracket of this seed's edge
+  double best_rate = kMissing;
+  int runs = 0;
+};
+
+struct ReferenceSummary {
+  double lre_min = kMissing;
+  std::string source;
+  std::vector<std::string> names;
+  std::vector<double> lre;         ///< per coefficient
+  std::vector<double> estimate;    ///< solution in original units (from the best run of the first seed)
+};
+
+/// The located safe range of a case (DESIGN.md words: floor, edge, blow-up, best, pinned, headroom).
+struct CaseSummary {
+  double floor = kMissing;
+  double edge = kMissing;
+  double edge_lo = kMissing, edge_hi = kMissing;  ///< edge_bracket: lo safe for all seeds, hi unsafe for some
+  double blowup = kMissing;
+  double best_rate = kMissing;
+  double best_iterations = kMissing;   ///< median over seeds at best_rate
+  double pinned = kMissing;
+  double pinned_iterations = kMissing; ///< median over seeds at the pinned rate (when it was run)
+  std::optional<Outcome> pinned_outcome;  ///< worst outcome over seeds at the pinned rate
+  double headroom = kMissing;          ///< edge / pinned
+  double edge_spread = kMissing;       ///< max/min of the seeds' edges (1 = all agree)
+  double precision = kMissing;         ///< search precision in force
+  std::optional<ReferenceSummary> reference;
+  std::vector<SeedSummary> seeds;
+  int runs = 0;
+};
+
+struct CaseResult {
+  std::string id;            ///< "problem/scaling/optimizer"
+  std::string problem, scaling;
+  std::string problem_kind;  ///< "least_squares", ...
+  OptimizerSpec optimizer;   ///< with its label
+  std::string dataset;       ///< dataset name ("" for problems without data)
+  std::string data_sha256;   ///< "" for generated data or none
+  double optimum_cost = kMissing;  ///< J* when known
+  CaseTheory theory;
+  CaseSummary summary;
+  std::vector<StoredRun> runs;
+  std::string error;         ///< non-empty when the case could not be run at all
+};
+
+struct SuiteInfo {
+  std::string name, path, sha256;
+};
+struct ToolInfo {
+  std::string version, compiler, build;
+};
+struct HostInfo {
+  std::string os, machine, hostname;
+  unsigned cores = 0;
+  int jobs = 0;  ///< --jobs in force (does not change any result)
+};
+
+struct Results {
+  std::string format = kResultsFormat;
+  SuiteInfo suite;
+  ToolInfo tool;
+  HostInfo host;
+  std::string started, finished;  ///< ISO 8601 UTC
+  std::vector<CaseResult> cases;
+  /// Shard "K/N" when the results are a shard; "" for a whole suite.
+  std::string shard;
+};
+
+/// Trace thinning on output: keeps iteration 0, log-spaced iterations (`per_decade` per factor
+/// 10 of iterations), and the last `tail` evaluations, so that a 1e5-iteration run stores
+/// about 100 points.
+struct TraceThinning {
+  int per_decade = 20;
+  int tail = 10;
+};
+/// Indices into `trace` to store, increasing and without duplicates: index 0; for each target
+/// 10^(m / per_decade), m = 0, 1, ..., the first point whose iter is at or after it; the last
+/// `tail` points, and always the last point (even with tail <= 0). per_decade <= 0: no
+/// log-spaced points. A 1e5-iteration trace with the defaults keeps 112 points.
+std::vector<std::size_t> thinned_indices(const std::vector<TracePoint>& trace, const TraceThinning& t = {});
+
+/// The JSON form (DESIGN.md, "results.json"). NaN, nullopt and also ±inf are written as null
+/// (JSON has no infinity; ±inf reads back as NaN). Traces are thinned to [iter, cost] pairs;
+/// "final_cost" and "gap" are those of the last trace point; "iterations" is null unless
+/// converged. Not stored: TracePoint.gap (but for the last point) and grad_norm, final_params.
+nlohmann::json to_json(const Results& r, const TraceThinning& t = {});
+/// Parses results.json, the inverse of to_json for what it stores (the last trace point gets the
+/// run's "gap"; other points' gap and grad_norm are NaN). Throws InputError(path + "#" + JSON
+/// pointer of the bad field, "expected ..., found ...") for a missing mandatory field or a wrong
+/// type, and names the expected format when "format" is not kResultsFormat. Unknown fields are
+/// ignored.
+Results results_from_json(const nlohmann::json& j, const std::string& path);
+/// Reads and parses a results file (InputError for unreadable or malformed files).
+Results read_results(const std::string& path);
+/// Writes atomically: a temporary file in the same directory, then rename (ToolError on I/O).
+void write_json_atomically(const std::string& path, const nlohmann::json& j);
+/// Reads and parses any JSON file: InputError(path, "cannot read ...") when it cannot be read,
+/// InputError("path:line:column", why) for a syntax error.
+nlohmann::json read_json_file(const std::string& path);
+
+/// Tool and host facts of this build and machine.
+ToolInfo this_tool();
+HostInfo this_host();
+/// Current UTC time, ISO 8601 ("2026-12-01T19:06:35Z").
+std::string utc_now();
+
+}  // namespace stepgate

@@ -1,0 +1,175 @@
+// results.json -> Results: strict about the fields it knows (InputError with the JSON pointer),
+// silent about fields it does not (newer writers may add them).
+#include "core/results.hpp"
+
+#include "core/json_fields.hpp"
+#include "core/optimizer_spec_json.hpp"
+
+namespace stepgate {
+
+using nlohmann::json;
+
+namespace {
+
+void read_bracket(const JsonField& f, double& lo, double& hi) {
+  if (f.array_size() != 2) f.fail("a pair [lo, hi]");
+  lo = f[0].number_or_missing();
+  hi = f[1].number_or_missing();
+}
+
+std::vector<double> read_numbers(const JsonField& f) {
+  std::vector<double> v(f.array_size());
+  for (std::size_t i = 0; i < v.size(); ++i) v[i] = f[i].number_or_missing();
+  return v;
+}
+
+std::vector<std::string> read_strings(const JsonField& f) {
+  std::vector<std::string> v(f.array_size());
+  for (std::size_t i = 0; i < v.size(); ++i) v[i] = f[i].string();
+  return v;
+}
+
+Outcome read_outcome(const JsonField& f) {
+  const auto o = outcome_from_string(f.string());
+  if (!o) f.fail("an outcome (converged, slow, oscillating, diverged, failed)");
+  return *o;
+}
+
+StoredRun read_run(const JsonField& f) {
+  StoredRun run;
+  RunRecord& r = run.record;
+  r.rate = f["rate"].number_or_missing();
+  r.seed = f["seed"].integer<std::uint64_t>();
+  r.seed_index = f["seed_index"].integer<long>();
+  const JsonField role = f["role"];
+  const auto rr = run_role_from_string(role.string());
+  if (!rr) role.fail("a run role (grid, fixed, edge, floor, blowup, refine)");
+  run.role = *rr;
+  r.outcome = read_outcome(f["outcome"]);
+  r.reason = f["reason"].string();
+  if (const JsonField it = f["iterations"]; !it.is_null()) r.iterations = it.integer<long>();
+  r.steps = f["steps"].integer<long>();
+  r.overshoot = f["overshoot"].number_or_missing();
+  r.wall_seconds = f["wall_seconds"].number_or_missing();
+
+  const JsonField trace = f["trace"];
+  r.trace.resize(trace.array_size());
+  for (std::size_t i = 0; i < r.trace.size(); ++i) {
+    const JsonField point = trace[i];
+    if (point.array_size() != 2) point.fail("a pair [iteration, cost]");
+    r.trace[i].iter = point[0].integer<long>();
+    r.trace[i].cost = point[1].number_or_missing();
+  }
+  // final_cost is the last trace point's cost (checked for type, derived on output); the gap
+  // is stored only at run level and goes back to the last point, where it came from.
+  f["final_cost"].number_or_missing();
+  const double gap = f["gap"].number_or_missing();
+  if (!r.trace.empty()) r.trace.back().gap = gap;
+  return run;
+}
+
+ReferenceSummary read_reference(const JsonField& f) {
+  ReferenceSummary r;
+  r.lre_min = f["lre_min"].number_or_missing();
+  r.source = f["source"].string();
+  r.names = read_strings(f["names"]);
+  r.lre = read_numbers(f["lre"]);
+  r.estimate = read_numbers(f["estimate"]);
+  return r;
+}
+
+SeedSummary read_seed(const JsonField& f) {
+  SeedSummary s;
+  s.seed = f["seed"].integer<std::uint64_t>();
+  s.floor = f["floor"].number_or_missing();
+  s.edge = f["edge"].number_or_missing();
+  read_bracket(f["edge_bracket"], s.edge_lo, s.edge_hi);
+  s.blowup = f["blowup"].number_or_missing();
+  s.best_rate = f["best_rate"].number_or_missing();
+  s.runs = f["runs"].integer<int>();
+  return s;
+}
+
+CaseSummary read_summary(const JsonField& f) {
+  CaseSummary s;
+  s.floor = f["floor"].number_or_missing();
+  s.edge = f["edge"].number_or_missing();
+  read_bracket(f["edge_bracket"], s.edge_lo, s.edge_hi);
+  s.blowup = f["blowup"].number_or_missing();
+  s.best_rate = f["best_rate"].number_or_missing();
+  s.best_iterations = f["best_iterations"].number_or_missing();
+  s.pinned = f["pinned"].number_or_missing();
+  s.pinned_iterations = f["pinned_iterations"].number_or_missing();
+  if (const JsonField po = f["pinned_outcome"]; !po.is_null()) s.pinned_outcome = read_outcome(po);
+  s.headroom = f["headroom"].number_or_missing();
+  s.edge_spread = f["edge_spread"].number_or_missing();
+  s.precision = f["precision"].number_or_missing();
+  s.runs = f["runs"].integer<int>();
+  if (const JsonField ref = f["reference"]; !ref.is_null()) s.reference = read_reference(ref);
+  const JsonField seeds = f["seeds"];
+  for (std::size_t i = 0; i < seeds.array_size(); ++i) s.seeds.push_back(read_seed(seeds[i]));
+  return s;
+}
+
+CaseTheory read_theory(const JsonField& f) {
+  CaseTheory t;
+  t.L = f["L"].number_or_missing();
+  t.mu = f["mu"].number_or_missing();
+  t.predicted_blowup = f["predicted_blowup"].number_or_missing();
+  t.rule = f["rule"].string();
+  t.method = f["method"].string();
+  t.lambda_max_start = f["lambda_max_start"].number_or_missing();
+  t.lambda_min_start = f["lambda_min_start"].number_or_missing();
+  t.lambda_max_optimum = f["lambda_max_optimum"].number_or_missing();
+  t.lambda_min_optimum = f["lambda_min_optimum"].number_or_missing();
+  return t;
+}
+
+CaseResult read_case(const JsonField& f) {
+  CaseResult c;
+  c.id = f["id"].string();
+  c.problem = f["problem"].string();
+  c.scaling = f["scaling"].string();
+  c.problem_kind = f["problem_kind"].string();
+  const JsonField opt = f["optimizer"];
+  c.optimizer = optimizer_spec_from_json(opt.value(), opt.path(), opt.pointer());
+  c.dataset = f["dataset"].string();
+  c.data_sha256 = f["data_sha256"].string();
+  c.optimum_cost = f["optimum_cost"].number_or_missing();
+  c.error = f["error"].string();
+  c.theory = read_theory(f["theory"]);
+  c.summary = read_summary(f["summary"]);
+  const JsonField runs = f["runs"];
+  for (std::size_t i = 0; i < runs.array_size(); ++i) c.runs.push_back(read_run(runs[i]));
+  return c;
+}
+
+}  // namespace
+
+Results results_from_json(const json& j, const std::string& path) {
+  const JsonField f(j, path);
+  // The format first: a file of another format would fail somewhere less telling.
+  if (const JsonField format = f["format"]; !format.value().is_string() ||
+                                            format.string() != kResultsFormat)
+    format.fail(std::string("format \"") + kResultsFormat + "\"");
+  Results r;
+  r.format = kResultsFormat;
+  const JsonField suite = f["suite"];
+  r.suite = {suite["name"].string(), suite["path"].string(), suite["sha256"].string()};
+  const JsonField tool = f["tool"];
+  r.tool = {tool["version"].string(), tool["compiler"].string(), tool["build"].string()};
+  const JsonField host = f["host"];
+  r.host.os = host["os"].string();
+  r.host.machine = host["machine"].string();
+  r.host.hostname = host["hostname"].string();
+  r.host.cores = host["cores"].integer<unsigned>();
+  r.host.jobs = host["jobs"].integer<int>();
+  r.started = f["started"].string();
+  r.finished = f["finished"].string();
+  r.shard = f["shard"].string();
+  const JsonField cases = f["cases"];
+  for (std::size_t i = 0; i < cases.array_size(); ++i) r.cases.push_back(read_case(cases[i]));
+  return r;
+}
+
+}  // namespace stepgate

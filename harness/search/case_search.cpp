@@ -1,0 +1,303 @@
+#include "search/case_search.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <map>
+#include <set>
+
+#include "analysis/reference.hpp"
+#include "core/seed.hpp"
+#include "run/batch.hpp"
+#include "run/step_rule.hpp"
+#include "search/bracket.hpp"
+#include "search/rate_grid.hpp"
+
+namespace stepgate {
+
+std::uint64_t run_seed(const std::string& case_id, std::uint64_t seed_number) {
+  return derive_seed({std::string_view(case_id), seed_number});
+}
+
+namespace {
+
+bool converged(Outcome o) { return o == Outcome::converged; }
+bool diverged(Outcome o) { return o == Outcome::diverged; }
+
+// Larger is worse: the outcome a rate gets across seeds is the worst one.
+int badness(Outcome o) {
+  switch (o) {
+    case Outcome::converged: return 0;
+    case Outcome::slow: return 1;
+    case Outcome::oscillating: return 2;
+    case Outcome::diverged: return 3;
+    case Outcome::failed: return 4;
+  }
+  return 4;
+}
+
+double median(std::vector<double> v) {
+  if (v.empty()) return kMissing;
+  std::sort(v.begin(), v.end());
+  const std::size_t n = v.size();
+  return n % 2 ? v[n / 2] : 0.5 * (v[n / 2 - 1] + v[n / 2]);
+}
+
+// The runs of one seed, found by rate (indices into the searcher's list of runs).
+struct SeedRuns {
+  std::uint64_t number = 0;
+  BatchSeed seed;
+  std::map<double, std::size_t> by_rate;
+  SeedSummary summary;
+};
+
+class Searcher {
+ public:
+  Searcher(const Problem& problem, const CaseSearchInput& in, const BatchDone& done)
+      : problem_(problem), in_(in), done_(done) {
+    long index = 0;
+    for (std::uint64_t n : in.seeds) {
+      SeedRuns s;
+      s.number = n;
+      s.seed = {run_seed(in.case_id, n), index++};
+      s.summary.seed = n;
+      seeds_.push_back(std::move(s));
+    }
+  }
+
+  CaseSearchOutput search();
+
+ private:
+  const RunRecord* at(const SeedRuns& s, double rate) const {
+    auto it = s.by_rate.find(rate);
+    return it == s.by_rate.end() ? nullptr : &order_[it->second].record;
+  }
+  Outcome outcome(std::size_t index) const { return order_[index].record.outcome; }
+  // Runs the rates not yet run for this seed as one batch; answers the outcome of each rate.
+  std::vector<Outcome> run(SeedRuns& s, const std::vector<double>& rates, RunRole role);
+  Bracket narrow(SeedRuns& s, double lo, double hi, RunRole role, bool (*lower)(Outcome));
+  void locate_seed(SeedRuns& s, std::optional<std::size_t> best_grid);
+  std::optional<std::size_t> best_grid_index() const;
+  void summarise(CaseSearchOutput& out) const;
+  void compare_reference(CaseSearchOutput& out) const;
+
+  const Problem& problem_;
+  const CaseSearchInput& in_;
+  const BatchDone& done_;
+  std::vector<SeedRuns> seeds_;
+  std::vector<double> grid_;
+  std::vector<StoredRun> order_;  // every run in the order made
+};
+
+std::vector<Outcome> Searcher::run(SeedRuns& s, const std::vector<double>& rates, RunRole role) {
+  std::vector<double> todo;
+  for (double r : rates)
+    if (!at(s, r) && std::find(todo.begin(), todo.end(), r) == todo.end()) todo.push_back(r);
+  if (!todo.empty()) {
+    std::vector<RunRecord> records = run_batch(problem_, in_.optimizer, in_.run, todo, s.seed);
+    for (RunRecord& r : records) {
+      s.by_rate.emplace(r.rate, order_.size());
+      order_.push_back(StoredRun{std::move(r), role});
+    }
+    s.summary.runs += static_cast<int>(todo.size());
+    if (done_) done_(static_cast<int>(todo.size()));
+  }
+  std::vector<Outcome> out;
+  for (double r : rates) out.push_back(at(s, r)->outcome);
+  return out;
+}
+
+Bracket Searcher::narrow(SeedRuns& s, double lo, double hi, RunRole role, bool (*lower)(Outcome)) {
+  SectionOptions opt;
+  opt.precision = in_.rates.precision;
+  opt.lanes = in_.rates.lanes;
+  return narrow_bracket(lo, hi, opt, [&](std::span<const double> rates) {
+    std::vector<bool> answers;
+    for (Outcome o : run(s, std::vector<double>(rates.begin(), rates.end()), role))
+      answers.push_back(lower(o));
+    return answers;
+  });
+}
+
+// The grid rate safe for every seed with the fewest median iterations (ties: the lower rate).
+std::optional<std::size_t> Searcher::best_grid_index() const {
+  std::optional<std::size_t> best;
+  double best_iters = kInf;
+  for (std::size_t i = 0; i < grid_.size(); ++i) {
+    std::vector<double> iters;
+    for (const SeedRuns& s : seeds_) {
+      const RunRecord* r = at(s, grid_[i]);
+      if (!r || !converged(r->outcome)) break;
+      iters.push_back(static_cast<double>(*r->iterations));
+    }
+    if (iters.size() != seeds_.size()) continue;
+    const double m = median(iters);
+    if (m < best_iters) best_iters = m, best = i;
+  }
+  return best;
+}
+
+void Searcher::locate_seed(SeedRuns& s, std::optional<std::size_t> best) {
+  SeedSummary& sum = s.summary;
+  const RatePolicy& p = in_.rates;
+  double edge_for_blowup = 0.0;
+  if (best) {
+    std::size_t lo = *best, hi = *best;
+    while (lo > 0 && converged(at(s, grid_[lo - 1])->outcome)) --lo;
+    while (hi + 1 < grid_.size() && converged(at(s, grid_[hi + 1])->outcome)) ++hi;
+    // Edge: between the largest safe grid rate of the range and the next one.
+    sum.edge = sum.edge_lo = grid_[hi];
+    if (hi + 1 < grid_.size()) {
+      sum.edge_hi = grid_[hi + 1];
+      if (p.locate_edge) {
+        const Bracket b = narrow(s, grid_[hi], grid_[hi + 1], RunRole::edge, [](Outcome o) { return converged(o); });
+        sum.edge = sum.edge_lo = b.lo;
+        sum.edge_hi = b.hi;
+      }
+    }
+    // Floor: narrowed only when the grid has a slow rate just below the range.
+    sum.floor = grid_[lo];
+    if (lo > 0 && p.locate_floor && at(s, grid_[lo - 1])->outcome == Outcome::slow) {
+      const Bracket b = narrow(s, grid_[lo - 1], grid_[lo], RunRole::floor, [](Outcome o) { return !converged(o); });
+      sum.floor = b.hi;
+    }
+    edge_for_blowup = sum.edge;
+  }
+  // Blow-up: the lowest diverged rate above the edge, narrowed from the largest rate below it
+  // that did not diverge.
+  auto first_diverged_above = [&](double edge) -> std::optional<double> {
+    for (const auto& [rate, index] : s.by_rate)
+      if (rate > edge && diverged(outcome(index))) return rate;
+    return std::nullopt;
+  };
+  if (auto hi = first_diverged_above(edge_for_blowup)) {
+    std::optional<double> lo;
+    for (const auto& [rate, index] : s.by_rate)
+      if (rate < *hi && !diverged(outcome(index))) lo = rate;
+    sum.blowup = *hi;
+    if (lo && p.locate_blowup) {
+      const Bracket b = narrow(s, *lo, *hi, RunRole::blowup, [](Outcome o) { return !diverged(o); });
+      sum.blowup = b.hi;
+    }
+  }
+}
+
+CaseSearchOutput Searcher::search() {
+  const RatePolicy& p = in_.rates;
+  if (p.grid) grid_ = log_grid(*p.grid);
+  std::vector<double> fixed = p.fixed;
+  if (!std::isnan(in_.pinned)) fixed.push_back(in_.pinned);
+  for (SeedRuns& s : seeds_) {
+    run(s, grid_, RunRole::grid);
+    run(s, fixed, RunRole::fixed);
+  }
+  const std::optional<std::size_t> best = grid_.empty() ? std::nullopt : best_grid_index();
+  for (SeedRuns& s : seeds_) locate_seed(s, best);
+  // Refinement: rates between the grid neighbours of the best grid rate, for every seed.
+  if (best && p.refine_points > 0) {
+    double edge = kInf, floor = 0.0;
+    for (const SeedRuns& s : seeds_) edge = std::min(edge, s.summary.edge), floor = std::max(floor, s.summary.floor);
+    const double lo = std::max(*best > 0 ? grid_[*best - 1] : grid_[*best], floor);
+    const double hi = std::min(*best + 1 < grid_.size() ? grid_[*best + 1] : grid_[*best], edge);
+    if (hi > lo)
+      for (SeedRuns& s : seeds_) run(s, log_between(lo, hi, p.refine_points), RunRole::refine);
+  }
+  CaseSearchOutput out;
+  summarise(out);
+  const Theory t = case_theory(problem_, in_.optimizer, problem_.start(seeds_.empty() ? 0 : seeds_[0].seed.seed));
+  out.theory = {t.L, t.mu, t.at_start.lambda_max, t.at_start.lambda_min, t.at_optimum.lambda_max,
+                t.at_optimum.lambda_min, t.predicted_blowup, t.rule, t.at_start.method};
+  if (auto opt = problem_.optimum()) out.optimum_cost = opt->cost;
+  compare_reference(out);
+  out.runs = std::move(order_);
+  return out;
+}
+
+void Searcher::summarise(CaseSearchOutput& out) const {
+  CaseSummary& c = out.summary;
+  c.precision = in_.rates.precision;
+  c.pinned = in_.pinned;
+  double edge = kInf, edge_lo = kInf, edge_hi = kInf, floor = 0.0, blowup = kInf, emax = 0.0;
+  bool all_have_edge = !seeds_.empty();
+  for (const SeedRuns& s : seeds_) {
+    const SeedSummary& x = s.summary;
+    c.seeds.push_back(x);
+    c.runs += x.runs;
+    if (std::isnan(x.edge)) all_have_edge = false;
+    else {
+      edge = std::min(edge, x.edge);
+      emax = std::max(emax, x.edge);
+      edge_lo = std::min(edge_lo, x.edge_lo);
+      if (!std::isnan(x.edge_hi)) edge_hi = std::min(edge_hi, x.edge_hi);
+      floor = std::max(floor, x.floor);
+    }
+    if (!std::isnan(x.blowup)) blowup = std::min(blowup, x.blowup);
+  }
+  if (std::isfinite(blowup)) c.blowup = blowup;
+  if (all_have_edge && floor <= edge) {
+    c.edge = edge;
+    c.edge_lo = edge_lo;
+    c.edge_hi = std::isfinite(edge_hi) ? edge_hi : kMissing;
+    c.floor = floor;
+    c.edge_spread = emax / edge;
+  }
+  // Best rate: among rates every seed ran, inside [floor, edge], all converged.
+  if (!std::isnan(c.edge)) {
+    double best_iters = kInf;
+    for (const auto& [rate, index] : seeds_.front().by_rate) {
+      if (rate < c.floor || rate > c.edge) continue;
+      std::vector<double> iters;
+      for (const SeedRuns& s : seeds_) {
+        const RunRecord* r = at(s, rate);
+        if (!r || !converged(r->outcome)) break;
+        iters.push_back(static_cast<double>(*r->iterations));
+      }
+      if (iters.size() != seeds_.size()) continue;
+      const double m = median(iters);
+      if (m < best_iters) best_iters = m, c.best_rate = rate, c.best_iterations = m;
+    }
+  }
+  for (std::size_t i = 0; i < c.seeds.size(); ++i) {
+    double best = kMissing, iters = kInf;
+    for (const auto& [rate, index] : seeds_[i].by_rate) {
+      const RunRecord& r = order_[index].record;
+      if (converged(r.outcome) && *r.iterations < iters) iters = static_cast<double>(*r.iterations), best = rate;
+    }
+    c.seeds[i].best_rate = best;
+  }
+  if (!std::isnan(in_.pinned)) {
+    std::vector<double> iters;
+    int worst = -1;
+    for (const SeedRuns& s : seeds_) {
+      const RunRecord* r = at(s, in_.pinned);
+      if (!r) continue;
+      if (badness(r->outcome) > worst) worst = badness(r->outcome), c.pinned_outcome = r->outcome;
+      if (r->iterations) iters.push_back(static_cast<double>(*r->iterations));
+    }
+    if (iters.size() == seeds_.size()) c.pinned_iterations = median(iters);
+    if (!std::isnan(c.edge)) c.headroom = c.edge / in_.pinned;
+  }
+}
+
+void Searcher::compare_reference(CaseSearchOutput& out) const {
+  if (!in_.reference) return;
+  ReferenceSummary ref;
+  ref.source = in_.reference->source;
+  ref.names = in_.reference->names;
+  // The solution of the best rate's run of the first seed; without a best rate, there is none.
+  const RunRecord* r = std::isnan(out.summary.best_rate) ? nullptr : at(seeds_.front(), out.summary.best_rate);
+  if (r && r->final_params.size() == problem_.dim()) {
+    const ReferenceComparison cmp = compare_with_reference(problem_, in_.map, r->final_params, *in_.reference);
+    ref.lre = cmp.lre;
+    ref.lre_min = cmp.lre_min;
+    ref.estimate.assign(cmp.estimate.data(), cmp.estimate.data() + cmp.estimate.size());
+  }
+  out.summary.reference = std::move(ref);
+}
+
+}  // namespace
+
+CaseSearchOutput search_case(const Problem& problem, const CaseSearchInput& in, const BatchDone& on_batch) {
+  return Searcher(problem, in, on_batch).search();
+}
+
+}  // namespace stepgate

@@ -1,0 +1,49 @@
+// The search of one case (DESIGN.md, "Search"): for every seed a log grid plus the fixed rates,
+// then the edge, floor and blow-up bracketed and narrowed, then the best rate refined; then the
+// case's safe range across seeds, theory beside it, and the solution against reference values.
+#pragma once
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "core/feature_map.hpp"
+#include "core/optimizer_spec.hpp"
+#include "core/rate_policy.hpp"
+#include "core/reference_values.hpp"
+#include "core/results.hpp"
+#include "core/run_settings.hpp"
+#include "problems/problem.hpp"
+
+namespace stepgate {
+
+struct CaseSearchInput {
+  std::string case_id;                 ///< "problem/scaling/optimizer": part of every run's seed
+  OptimizerSpec optimizer;
+  RunSettings run;
+  RatePolicy rates;
+  std::vector<std::uint64_t> seeds;    ///< the user's seed numbers
+  double pinned = kMissing;            ///< pinned rate (run as a fixed rate), NaN = none
+  std::optional<ReferenceValues> reference;  ///< aligned to the problem's LinearLayout
+  FeatureMap map;                      ///< scaling of the features (for the reference)
+};
+
+struct CaseSearchOutput {
+  CaseSummary summary;
+  CaseTheory theory;
+  double optimum_cost = kMissing;
+  std::vector<StoredRun> runs;         ///< every run, grouped by seed, in the order run
+};
+
+/// Called after each batch with the number of runs it held (for progress lines).
+using BatchDone = std::function<void(int runs)>;
+
+/// The run's seed: derive_seed(case id, seed number). Same coordinates, same seed, anywhere.
+std::uint64_t run_seed(const std::string& case_id, std::uint64_t seed_number);
+
+/// Deterministic: the same input gives the same output bits (timings aside).
+CaseSearchOutput search_case(const Problem& problem, const CaseSearchInput& in,
+                             const BatchDone& on_batch = {});
+
+}  // namespace stepgate

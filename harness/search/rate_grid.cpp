@@ -1,0 +1,26 @@
+#include "search/rate_grid.hpp"
+
+#include <cmath>
+#include <stdexcept>
+
+namespace stepgate {
+
+std::vector<double> log_grid(const RateGrid& grid) {
+  if (!(grid.from > 0.0) || !(grid.to >= grid.from) || grid.per_decade < 1)
+    throw std::invalid_argument("a rate grid needs 0 < from <= to and per_decade >= 1");
+  std::vector<double> out;
+  const double decades = std::log10(grid.to / grid.from);
+  const int n = static_cast<int>(std::floor(decades * grid.per_decade + 1e-9));
+  for (int i = 0; i <= n; ++i)
+    out.push_back(grid.from * std::pow(10.0, static_cast<double>(i) / grid.per_decade));
+  return out;
+}
+
+std::vector<double> log_between(double lo, double hi, int count) {
+  std::vector<double> out;
+  const double a = std::log(lo), step = (std::log(hi) - a) / (count + 1);
+  for (int i = 1; i <= count; ++i) out.push_back(std::exp(a + step * i));
+  return out;
+}
+
+}  // namespace stepgate

@@ -1,0 +1,217 @@
+// Problem settings (scalings, optimizers, rates, seeds, budget, outcome, pinned, gate), given
+// in `defaults` and per problem. Each key comes from the highest level that has it; rates,
+// outcome and gate merge key by key, so every value is reported where it was written.
+#include <algorithm>
+#include <set>
+
+#include <fmt/format.h>
+
+#include "suite/suite_sections.hpp"
+
+namespace stepgate::suite_detail {
+namespace {
+
+const std::vector<std::string> kRateKeys = {"grid",          "fixed",        "precision",
+                                            "lanes",         "locate_edge",  "locate_floor",
+                                            "locate_blowup", "refine_points"};
+const std::vector<std::string> kOutcomeKeys = {"criterion",     "tol",             "target", "plateau_window",
+                                               "blowup_factor", "overshoot_limit", "hold"};
+const std::vector<std::string> kGateKeys = {"edge_moved",     "floor_moved",          "best_moved_factor",
+                                            "min_headroom",   "iterations_grew",      "min_reference_digits",
+                                            "theory_factor",  "case_added",           "case_missing",
+                                            "data_changed"};
+
+void check_levels(const Layers& layers, const std::vector<std::string>& keys) {
+  for (const Node& level : layers.levels) ObjectNode(level, keys);
+}
+
+const auto positive = [](double v) { return v > 0; };
+
+// A list of names, each defined in `defined`; returns the names.
+std::vector<std::string> names_in(const Node& node, std::string_view what,
+                                  const std::vector<std::string>& defined) {
+  const std::vector<std::string> names = node.strings();
+  if (names.empty()) node.expected(fmt::format("at least one {} name", what));
+  for (std::size_t i = 0; i < names.size(); ++i) {
+    const Node e = node.element(i);
+    if (std::count(names.begin(), names.begin() + long(i), names[i]))
+      e.fail(fmt::format("found {} '{}' twice; expected each once", what, names[i]));
+    if (std::find(defined.begin(), defined.end(), names[i]) == defined.end())
+      e.fail(fmt::format("undefined {} '{}'{}; defined: {}", what, names[i],
+                         did_you_mean(names[i], defined), join(defined)));
+  }
+  return names;
+}
+
+template <class Map>
+std::vector<std::string> keys_of(const Map& map) {
+  std::vector<std::string> out;
+  for (const auto& [key, value] : map) out.push_back(key);
+  return out;
+}
+
+void read_optimizer_names(const Layers& settings, Suite& suite, ProblemSpec& p) {
+  const auto node = settings.find("optimizers");
+  if (!node) {
+    p.optimizers = {"gd"};
+    suite.optimizers.try_emplace("gd", *predefined_optimizer("gd"));
+    return;
+  }
+  std::vector<std::string> defined = keys_of(suite.optimizers);
+  for (const char* kind : {"gd", "sgd", "momentum", "nesterov", "adagrad", "rmsprop", "adam"})
+    if (!suite.optimizers.count(kind)) defined.push_back(kind);
+  p.optimizers = names_in(*node, "optimizer", defined);
+  for (std::size_t i = 0; i < p.optimizers.size(); ++i) {
+    const std::string& name = p.optimizers[i];
+    if (suite.optimizers.count(name)) continue;
+    const OptimizerSpec spec = *predefined_optimizer(name);
+    if (const std::string problems = validate(spec); !problems.empty())
+      node->element(i).fail(fmt::format("the predefined optimizer '{}' cannot run with its defaults ({}); "
+                                        "expected it defined under /optimizers", name, problems));
+    suite.optimizers.emplace(name, spec);
+  }
+}
+
+RateGrid read_grid(const Node& node) {
+  const ObjectNode o(node, {"from", "to", "per_decade"});
+  RateGrid g;
+  if (auto n = o.find("from")) g.from = n->number_if(positive, "a rate > 0");
+  if (auto n = o.find("to")) g.to = n->number_if(positive, "a rate > 0");
+  if (auto n = o.find("per_decade"))
+    g.per_decade = int(n->integer_if([](long v) { return v >= 1 && v <= 1000; }, "a whole number in 1..1000"));
+  if (!(g.from < g.to))
+    (o.has("to") ? o.require("to") : node)
+        .fail(fmt::format("found a grid from {} to {}; expected from < to", g.from, g.to));
+  return g;
+}
+
+RatePolicy read_rates(const Layers& rates) {
+  check_levels(rates, kRateKeys);
+  RatePolicy r;
+  const auto grid = rates.find("grid");
+  if (grid) r.grid = grid->is_null() ? std::nullopt : std::optional<RateGrid>(read_grid(*grid));
+  const auto fixed = rates.find("fixed");
+  if (fixed)
+    for (const Node& e : fixed->elements()) r.fixed.push_back(e.number_if(positive, "a rate > 0"));
+  if (auto n = rates.find("precision"))
+    r.precision = n->number_if([](double v) { return v > 0 && v <= 1; }, "a number in (0, 1]");
+  if (auto n = rates.find("lanes"))
+    r.lanes = int(n->integer_if([](long v) { return v >= 1 && v <= 16; }, "a whole number in 1..16"));
+  if (auto n = rates.find("locate_edge")) r.locate_edge = n->boolean();
+  if (auto n = rates.find("locate_floor")) r.locate_floor = n->boolean();
+  if (auto n = rates.find("locate_blowup")) r.locate_blowup = n->boolean();
+  if (auto n = rates.find("refine_points"))
+    r.refine_points = int(n->integer_if([](long v) { return v >= 0 && v <= 32; }, "a whole number in 0..32"));
+  if (!r.grid && r.fixed.empty())
+    (fixed ? *fixed : *grid).fail("found no grid and no fixed rates; expected a grid, fixed rates, or both");
+  return r;
+}
+
+std::vector<std::uint64_t> read_seeds(const Node& node) {
+  std::vector<std::uint64_t> seeds;
+  if (node.json().is_number()) {
+    // A count N stands for the seeds 1..N.
+    const long count = node.integer_if([](long v) { return v >= 1 && v <= 100000; },
+                                       "a seed count in 1..100000, or an array of seeds");
+    for (long s = 1; s <= count; ++s) seeds.push_back(std::uint64_t(s));
+    return seeds;
+  }
+  if (!node.json().is_array()) node.expected("an array of seeds, or a seed count");
+  if (node.json().empty()) node.expected("at least one seed");
+  for (const Node& e : node.elements()) {
+    const std::uint64_t s = e.seed();
+    if (std::find(seeds.begin(), seeds.end(), s) != seeds.end())
+      e.fail(fmt::format("found seed {} twice; expected distinct seeds", s));
+    seeds.push_back(s);
+  }
+  return seeds;
+}
+
+OutcomeSettings read_outcome(const Layers& outcome) {
+  check_levels(outcome, kOutcomeKeys);
+  OutcomeSettings o;
+  const auto criterion = outcome.find("criterion");
+  if (criterion)
+    o.criterion = *criterion_from_string(criterion->choice({"auto", "gap", "grad", "cost", "plateau"}, "criterion"));
+  if (auto n = outcome.find("tol")) o.tol = n->number_if(positive, "a number > 0");
+  const auto target = outcome.find("target");
+  if (target) o.target = target->number();
+  if (auto n = outcome.find("plateau_window"))
+    o.plateau_window = n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
+  if (auto n = outcome.find("blowup_factor"))
+    o.blowup_factor = n->number_if([](double v) { return v > 1; }, "a number > 1");
+  if (auto n = outcome.find("overshoot_limit"))
+    o.overshoot_limit = n->number_if([](double v) { return v >= 0; }, "a number >= 0");
+  if (auto n = outcome.find("hold")) o.hold = n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0");
+  if (o.criterion == Criterion::cost && !target)
+    criterion->fail("found criterion 'cost' without a target; expected \"target\": the cost to reach");
+  return o;
+}
+
+void read_pinned(const Node& node, ProblemSpec& p) {
+  if (node.json().is_number()) {
+    const double rate = node.number_if(positive, "a rate > 0");
+    for (const std::string& label : p.optimizers) p.pinned[label] = rate;
+    return;
+  }
+  if (!node.json().is_object()) node.expected("a rate > 0, or an object (optimizer -> rate)");
+  for (const auto& item : node.json().items()) {
+    const Node e = node.member(item.key());
+    if (std::find(p.optimizers.begin(), p.optimizers.end(), item.key()) == p.optimizers.end())
+      e.fail(fmt::format("found a pinned rate for optimizer '{}', which problem '{}' does not use{}; "
+                         "its optimizers: {}", item.key(), p.name, did_you_mean(item.key(), p.optimizers),
+                         join(p.optimizers)));
+    p.pinned[item.key()] = e.number_if(positive, "a rate > 0");
+  }
+}
+
+Severity severity(const Node& node) {
+  const std::string& s = node.choice({"pass", "warn", "fail"}, "severity");
+  return s == "pass" ? Severity::pass : s == "warn" ? Severity::warn : Severity::fail;
+}
+
+}  // namespace
+
+GateTolerances read_gate(const Layers& gate) {
+  check_levels(gate, kGateKeys);
+  GateTolerances g;
+  const auto non_negative = [](double v) { return v >= 0; };
+  const auto at_least_one = [](double v) { return v >= 1; };
+  if (auto n = gate.find("edge_moved")) g.edge_moved = n->number_if(non_negative, "a number >= 0");
+  if (auto n = gate.find("floor_moved")) g.floor_moved = n->number_if(non_negative, "a number >= 0");
+  if (auto n = gate.find("best_moved_factor")) g.best_moved_factor = n->number_if(at_least_one, "a number >= 1");
+  if (auto n = gate.find("min_headroom")) g.min_headroom = n->number_if(at_least_one, "a number >= 1");
+  if (auto n = gate.find("iterations_grew")) g.iterations_grew = n->number_if(non_negative, "a number >= 0");
+  if (auto n = gate.find("min_reference_digits"))
+    g.min_reference_digits = n->number_if([](double v) { return v >= 0 && v <= 17; }, "a number in [0, 17]");
+  if (auto n = gate.find("theory_factor")) g.theory_factor = n->number_if(at_least_one, "a number >= 1");
+  if (auto n = gate.find("case_added")) g.case_added = severity(*n);
+  if (auto n = gate.find("case_missing")) g.case_missing = severity(*n);
+  if (auto n = gate.find("data_changed")) g.data_changed = severity(*n);
+  return g;
+}
+
+const std::vector<std::string>& settings_keys() {
+  static const std::vector<std::string> keys = {"scalings", "optimizers", "rates",   "seeds", "budget",
+                                                "eval_every", "outcome",  "pinned", "gate"};
+  return keys;
+}
+
+void read_settings(const Layers& settings, const Layers& gate, Suite& suite, ProblemSpec& p) {
+  if (auto n = settings.find("scalings")) p.scalings = names_in(*n, "scaling", keys_of(suite.scalings));
+  else p.scalings = {"none"};
+  read_optimizer_names(settings, suite, p);
+  p.rates = read_rates(settings.sub("rates"));
+  if (auto n = settings.find("seeds")) p.seeds = read_seeds(*n);
+  else p.seeds = {1, 2, 3};
+  if (auto n = settings.find("budget")) p.run.budget = n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
+  if (auto n = settings.find("eval_every"))
+    p.run.eval_every = n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0 (0 = automatic)");
+  p.run.outcome = read_outcome(settings.sub("outcome"));
+  if (auto n = settings.find("pinned")) read_pinned(*n, p);
+  Layers all_gate = gate;
+  for (const Node& level : settings.sub("gate").levels) all_gate.levels.push_back(level);
+  p.gate = read_gate(all_gate);
+}
+
+}  // namespace stepgate::suite_detail

@@ -1,0 +1,105 @@
+// A suite as the rest of the tool sees it: parsed, validated, relative paths resolved, defaults
+// merged into every problem. Format: README "Suite format" and suites/schema/suite.schema.json.
+#pragma once
+#include <cstdint>
+#include <map>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "core/gate_tolerances.hpp"
+#include "core/optimizer_spec.hpp"
+#include "core/problem_options.hpp"
+#include "core/rate_policy.hpp"
+#include "core/reference_values.hpp"
+#include "core/run_settings.hpp"
+#include "data/csv.hpp"
+#include "data/generate.hpp"
+#include "data/scaling.hpp"
+
+namespace stepgate {
+
+/// The "format" tag a suite file must carry.
+inline constexpr std::string_view kSuiteFormat = "stepgate.suite/1";
+/// The "format" tag of a reference file (published values of a linear model's parameters).
+inline constexpr std::string_view kReferenceFormat = "stepgate.reference/1";
+
+struct DatasetSpec {
+  enum class Source { csv, idx, generated };
+  std::string name;
+  std::string pointer;  ///< JSON pointer of its entry in the suite, for messages
+  std::string suite_path;  ///< the suite file as given, for messages
+  Source source = Source::csv;
+  // csv
+  std::string path;     ///< resolved against the suite file's folder
+  CsvOptions csv;
+  std::string target;
+  std::vector<std::string> features;  ///< empty = all but target
+  // idx
+  std::string labels_path;
+  double pixel_scale = 1.0 / 255.0;
+  // csv and idx
+  long max_rows = 0;    ///< 0 = all rows
+  // generated
+  GeneratedSpec generated;
+};
+
+enum class ProblemKind { least_squares, logistic, softmax, quadratic, test_function };
+std::string_view to_string(ProblemKind k);
+/// Parses the lower-case name (as printed by to_string); nullopt for anything else.
+std::optional<ProblemKind> problem_kind_from_string(std::string_view s);
+
+/// Names a test_function problem may use. The suite stage may not include problems/, so it
+/// keeps its own list; a unit test checks that it equals problems' test_function_names().
+const std::vector<std::string>& suite_test_function_names();
+
+struct ProblemSpec {
+  std::string name;
+  std::string pointer;                  ///< JSON pointer of the problem in the suite
+  ProblemKind kind = ProblemKind::least_squares;
+  std::string dataset;                  ///< linear models: key into Suite::datasets
+  LinearModelOptions linear;
+  long classes = 0;                     ///< softmax: 0 = max label + 1
+  QuadraticOptions quadratic;
+  std::string function;                 ///< test_function: name (see make_test_function)
+  std::vector<std::string> scalings;    ///< keys into Suite::scalings ("none" is always defined)
+  std::vector<std::string> optimizers;  ///< keys into Suite::optimizers
+  std::map<std::string, double> pinned; ///< optimizer label -> pinned rate
+  RatePolicy rates;
+  std::vector<std::uint64_t> seeds;     ///< the user's seed numbers (default {1, 2, 3})
+  RunSettings run;
+  std::optional<ReferenceValues> reference;  ///< in original units, in LinearLayout order
+  GateTolerances gate;                  ///< suite gate section merged with the problem's own
+};
+
+struct Suite {
+  std::string name;
+  std::string description;
+  std::string path;    ///< as given
+  std::string sha256;  ///< of the suite file's bytes
+  std::map<std::string, DatasetSpec> datasets;
+  std::map<std::string, ScalingSpec> scalings;
+  std::map<std::string, OptimizerSpec> optimizers;
+  std::vector<ProblemSpec> problems;
+  GateTolerances gate;  ///< suite-level gate section (problems hold merged copies)
+};
+
+/// Reads, parses and validates a suite file. Throws InputError whose where() is
+/// "path" + JSON pointer (e.g. "suites/demo.json#/problems/2/optimizers/0") or "path:line:column"
+/// for JSON syntax errors, and whose message says what was expected.
+Suite load_suite(const std::string& path);
+/// The same from text (`path` for messages and for resolving relative paths).
+Suite parse_suite(const std::string& text, const std::string& path);
+
+/// Reads a reference file: {"format": "stepgate.reference/1", "source": "...", "digits": 15,
+/// "coefficients": {"name": value, ...}} (digits optional, in (0, 17]; default 15). Values keep
+/// the order written. Errors: InputError at "path#/pointer" (or "path:line:column").
+ReferenceValues load_reference(const std::string& path);
+
+/// Loads a dataset as the suite describes it (data/ readers or generator), with its SHA-256.
+/// csv and idx keep the first max_rows rows (0 = all). Errors keep the data reader's where
+/// ("file:line:column", "file:byte N") and add the dataset's name and suite pointer to the message.
+Dataset load_dataset(const DatasetSpec& spec);
+
+}  // namespace stepgate
