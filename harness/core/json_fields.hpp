@@ -20,7 +20,7 @@ nlohmann::json finite_or_null(double v);
 /// value is missing or of the wrong type. The referenced json must outlive the field.
 class JsonField {
  public:
-  JsonField(const nlohmann::json& j, std::string path, nlohmann::json::json_pointer at = {});
+  JsonField(const nlohmann::json& j, std::string path, nlohmann::json::json_pointer at = nlohmann::json::json_pointer());
 
   /// The member `key` of this object (this must be an object; the member must exist).
   JsonField operator[](const std::string& key) const;

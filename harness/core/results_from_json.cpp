@@ -147,7 +147,7 @@ CaseResult read_case(const JsonField& f) {
 }  // namespace
 
 Results results_from_json(const json& j, const std::string& path) {
-  const JsonField f(j, path);
+  const JsonField f(j, path, json::json_pointer());
   // The format first: a file of another format would fail somewhere less telling.
   if (const JsonField format = f["format"]; !format.value().is_string() ||
                                             format.string() != kResultsFormat)

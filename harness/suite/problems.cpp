@@ -1,0 +1,171 @@
+// One entry of the `problems` section: kind, kind options, reference and settings, and the
+// checks that tie it to the rest of the suite (datasets, scalings, optimizers).
+#include <algorithm>
+
+#include <fmt/format.h>
+
+#include "suite/suite_sections.hpp"
+
+namespace stepgate::suite_detail {
+namespace {
+
+// Keys that only some kinds use, and which kinds.
+struct KindKey {
+  const char* key;
+  std::vector<ProblemKind> kinds;
+};
+
+const std::vector<KindKey>& kind_keys() {
+  using K = ProblemKind;
+  const std::vector<K> linear = {K::least_squares, K::logistic, K::softmax};
+  static const std::vector<KindKey> keys = {
+      {"dataset", linear},        {"intercept", linear},       {"l2", linear},
+      {"reduction", linear},      {"init_scale", linear},      {"gram_ratio", {K::least_squares}},
+      {"classes", {K::softmax}},  {"reference", {K::least_squares, K::logistic}},
+      {"dim", {K::quadratic}},    {"L", {K::quadratic}},       {"condition", {K::quadratic}},
+      {"spectrum", {K::quadratic}}, {"seed", {K::quadratic}},  {"start_radius", {K::quadratic}},
+      {"function", {K::test_function}},
+  };
+  return keys;
+}
+
+const std::vector<std::string>& problem_keys() {
+  static const std::vector<std::string> keys = [] {
+    std::vector<std::string> k = {"name", "kind"};
+    for (const KindKey& kk : kind_keys()) k.push_back(kk.key);
+    for (const std::string& s : settings_keys()) k.push_back(s);
+    return k;
+  }();
+  return keys;
+}
+
+bool has_data(ProblemKind k) {
+  return k == ProblemKind::least_squares || k == ProblemKind::logistic || k == ProblemKind::softmax;
+}
+
+void check_kind_keys(const ObjectNode& o, ProblemKind kind) {
+  for (const KindKey& kk : kind_keys()) {
+    if (!o.has(kk.key) || std::count(kk.kinds.begin(), kk.kinds.end(), kind)) continue;
+    std::vector<std::string> names;
+    for (ProblemKind k : kk.kinds) names.emplace_back(to_string(k));
+    o.require(kk.key).fail(fmt::format("key '{}' does not apply to a {} problem; it is for: {}", kk.key,
+                                       to_string(kind), join(names)));
+  }
+}
+
+void read_linear(const ObjectNode& o, const Suite& suite, ProblemSpec& p) {
+  const Node dataset = o.require("dataset");
+  p.dataset = dataset.string();
+  const auto it = suite.datasets.find(p.dataset);
+  if (it == suite.datasets.end()) {
+    std::vector<std::string> defined;
+    for (const auto& [name, spec] : suite.datasets) defined.push_back(name);
+    dataset.fail(fmt::format("undefined dataset '{}'{}; defined: {}", p.dataset, did_you_mean(p.dataset, defined),
+                             defined.empty() ? "none (the suite has no datasets section)" : join(defined)));
+  }
+  const DatasetSpec& d = it->second;
+  if (p.kind != ProblemKind::least_squares && d.source == DatasetSpec::Source::generated &&
+      d.generated.kind == GeneratedSpec::linear)
+    dataset.fail(fmt::format("found generated linear data (real-valued targets) for a {} problem; "
+                             "expected class labels (generate kind 'logistic')", to_string(p.kind)));
+
+  LinearModelOptions& m = p.linear;
+  const auto non_negative = [](double v) { return v >= 0; };
+  if (auto n = o.find("intercept")) m.intercept = n->boolean();
+  if (auto n = o.find("l2")) m.l2 = n->number_if(non_negative, "a number >= 0");
+  if (auto n = o.find("reduction"))
+    m.reduction = n->choice({"mean", "sum"}, "reduction") == "mean" ? Reduction::mean : Reduction::sum;
+  if (auto n = o.find("init_scale")) m.init_scale = n->number_if(non_negative, "a number >= 0 (0 = start at zero)");
+  if (auto n = o.find("gram_ratio")) m.gram_ratio = n->number_if(non_negative, "a number >= 0 (0 = never)");
+  if (auto n = o.find("classes"))
+    p.classes = n->integer_if([](long v) { return v == 0 || (v >= 2 && v <= 256); },
+                              "0 (max label + 1) or a class count in 2..256");
+}
+
+void read_quadratic(const ObjectNode& o, ProblemSpec& p) {
+  QuadraticOptions& q = p.quadratic;
+  if (auto n = o.find("dim")) q.dim = n->integer_if([](long v) { return v >= 1 && v <= 100000; }, "a whole number in 1..100000");
+  if (auto n = o.find("L")) q.L = n->number_if([](double v) { return v > 0; }, "a number > 0");
+  if (auto n = o.find("condition")) q.condition = n->number_if([](double v) { return v >= 1; }, "a number >= 1");
+  if (auto n = o.find("spectrum")) {
+    const std::string& s = n->choice({"linear", "log_uniform", "two_clusters"}, "spectrum");
+    q.spectrum = s == "linear" ? Spectrum::linear : s == "log_uniform" ? Spectrum::log_uniform : Spectrum::two_clusters;
+  }
+  if (auto n = o.find("seed")) q.seed = n->seed();
+  if (auto n = o.find("start_radius")) q.start_radius = n->number_if([](double v) { return v > 0; }, "a number > 0");
+}
+
+// Names of the model's parameters when the dataset fixes them without reading the data.
+std::optional<std::vector<std::string>> layout_names(const ProblemSpec& p, const DatasetSpec& d) {
+  std::vector<std::string> names;
+  if (d.source == DatasetSpec::Source::csv && !d.features.empty()) names = d.features;
+  else if (d.source == DatasetSpec::Source::generated)
+    for (long j = 1; j <= d.generated.features; ++j) names.push_back("x" + std::to_string(j));
+  else return std::nullopt;
+  if (p.linear.intercept) names.push_back("intercept");
+  return names;
+}
+
+void read_problem_reference(const ObjectNode& o, const Suite& suite, ProblemSpec& p) {
+  const auto node = o.find("reference");
+  if (!node) return;
+  p.reference = read_reference(*node);
+  const auto expected = layout_names(p, suite.datasets.at(p.dataset));
+  if (expected && *expected != p.reference->names)
+    node->fail(fmt::format("found reference coefficients {}; expected exactly the model's parameters in "
+                           "model order: {}", join(p.reference->names), join(*expected)));
+}
+
+// Settings that a problem without data cannot use.
+void check_dataless(const Node& node, const Layers& settings, const Suite& suite, const ProblemSpec& p) {
+  if (has_data(p.kind)) return;
+  if (auto n = settings.find("scalings"))
+    for (std::size_t i = 0; i < p.scalings.size(); ++i)
+      if (p.scalings[i] != "none")
+        n->element(i).fail(fmt::format("found scaling '{}' on a {} problem, which has no data to scale; "
+                                       "expected only \"none\"", p.scalings[i], to_string(p.kind)));
+  for (std::size_t i = 0; i < p.optimizers.size(); ++i) {
+    const OptimizerSpec& spec = suite.optimizers.at(p.optimizers[i]);
+    const auto listed = settings.find("optimizers");
+    if (spec.batch_size > 0)
+      (listed ? listed->element(i) : node).fail(
+          fmt::format("found optimizer '{}' with batch_size {} on a {} problem, which has no samples to "
+                      "batch; expected full-batch optimizers (batch_size 0)", p.optimizers[i], spec.batch_size,
+                      to_string(p.kind)));
+  }
+}
+
+}  // namespace
+
+ProblemSpec read_problem(const Node& node, const std::optional<Node>& defaults,
+                         const std::optional<Node>& suite_gate, Suite& suite) {
+  const ObjectNode o(node, problem_keys());
+  ProblemSpec p;
+  p.pointer = node.pointer();
+  const Node name = o.require("name");
+  p.name = name.string();
+  check_name(name, p.name, "problem name");
+  std::vector<std::string> kinds;
+  for (ProblemKind k : {ProblemKind::least_squares, ProblemKind::logistic, ProblemKind::softmax,
+                        ProblemKind::quadratic, ProblemKind::test_function})
+    kinds.emplace_back(to_string(k));
+  p.kind = *problem_kind_from_string(o.require("kind").choice(kinds, "problem kind"));
+  check_kind_keys(o, p.kind);
+
+  if (has_data(p.kind)) read_linear(o, suite, p);
+  if (p.kind == ProblemKind::quadratic) read_quadratic(o, p);
+  if (p.kind == ProblemKind::test_function)
+    p.function = o.require("function").choice(suite_test_function_names(), "test function");
+
+  Layers settings;
+  if (defaults) settings.levels.push_back(*defaults);
+  settings.levels.push_back(node);
+  Layers gate;
+  if (suite_gate) gate.levels.push_back(*suite_gate);
+  read_settings(settings, gate, suite, p);
+  check_dataless(node, settings, suite, p);
+  if (has_data(p.kind)) read_problem_reference(o, suite, p);
+  return p;
+}
+
+}  // namespace stepgate::suite_detail

@@ -1,0 +1,98 @@
+// load_suite / parse_suite: the top level of a suite file, and the names the suite stage owns.
+#include "suite/suite.hpp"
+
+#include <filesystem>
+
+#include <fmt/format.h>
+
+#include "data/file_io.hpp"
+#include "data/sha256.hpp"
+#include "suite/suite_sections.hpp"
+
+namespace stepgate {
+
+std::string_view to_string(ProblemKind k) {
+  switch (k) {
+    case ProblemKind::least_squares: return "least_squares";
+    case ProblemKind::logistic: return "logistic";
+    case ProblemKind::softmax: return "softmax";
+    case ProblemKind::quadratic: return "quadratic";
+    case ProblemKind::test_function: return "test_function";
+  }
+  return "least_squares";
+}
+
+std::optional<ProblemKind> problem_kind_from_string(std::string_view s) {
+  for (ProblemKind k : {ProblemKind::least_squares, ProblemKind::logistic, ProblemKind::softmax,
+                        ProblemKind::quadratic, ProblemKind::test_function})
+    if (to_string(k) == s) return k;
+  return std::nullopt;
+}
+
+const std::vector<std::string>& suite_test_function_names() {
+  // Moré, Garbow & Hillstrom (1981) functions built by problems/test_functions.cpp.
+  static const std::vector<std::string> names = {"rosenbrock",      "freudenstein_roth", "beale",
+                                                 "helical_valley",  "powell_singular",   "wood"};
+  return names;
+}
+
+namespace suite_detail {
+
+std::string resolve_path(const Node& document_node, const std::string& written) {
+  const std::filesystem::path p(written);
+  if (p.empty() || p.is_absolute()) return written;
+  return (std::filesystem::path(document_node.file()).parent_path() / p).lexically_normal().string();
+}
+
+void require_file(const Node& node, const std::string& path, std::string_view what) {
+  if (path.empty()) node.expected(fmt::format("the path of a {}", what));
+  std::error_code ec;
+  if (!std::filesystem::is_regular_file(path, ec))
+    node.fail(fmt::format("found no {} at '{}'{}; expected an existing file (relative paths are "
+                          "relative to the folder of '{}')", what, path,
+                          std::filesystem::exists(path, ec) ? " (it is not a regular file)" : "", node.file()));
+}
+
+}  // namespace suite_detail
+
+Suite parse_suite(const std::string& text, const std::string& path) {
+  using namespace suite_detail;
+  const Json document = parse_json_text(text, path);
+  const Node root(document, path, "");
+  const ObjectNode top(root, {"format", "name", "description", "datasets", "scalings", "optimizers",
+                              "defaults", "problems", "gate"});
+  const Node format = top.require("format");
+  if (!format.json().is_string() || format.string() != kSuiteFormat)
+    format.expected(fmt::format("\"{}\"", kSuiteFormat));
+
+  Suite suite;
+  suite.path = path;
+  suite.sha256 = sha256_hex(text);
+  const Node name = top.require("name");
+  suite.name = name.string();
+  check_name(name, suite.name, "suite name");
+  if (auto n = top.find("description")) suite.description = n->string();
+  if (auto n = top.find("datasets")) suite.datasets = read_datasets(*n, path);
+  suite.scalings = read_scalings(top.find("scalings"));
+  suite.optimizers = read_optimizers(top.find("optimizers"));
+  const auto gate = top.find("gate");
+  suite.gate = read_gate(gate ? Layers{{*gate}} : Layers{});
+  const auto defaults = top.find("defaults");
+  if (defaults) ObjectNode(*defaults, settings_keys());
+
+  const Node problems = top.require("problems");
+  if (!problems.json().is_array() || problems.json().empty()) problems.expected("a non-empty array of problems");
+  for (const Node& entry : problems.elements()) {
+    ProblemSpec p = read_problem(entry, defaults, gate, suite);
+    for (const ProblemSpec& earlier : suite.problems)
+      if (earlier.name == p.name)
+        entry.member("name").fail(fmt::format("found problem name '{}' again (first at {}); expected "
+                                              "distinct problem names", p.name, earlier.pointer));
+    suite.problems.push_back(std::move(p));
+  }
+  return suite;
+}
+
+Suite load_suite(const std::string& path) { return parse_suite(read_raw_file(path), path); }
+
+}  // namespace stepgate

@@ -1,0 +1,91 @@
+#include "sweep/sweep.hpp"
+
+#include <atomic>
+#include <mutex>
+#include <thread>
+
+#include <tbb/parallel_for.h>
+#include <tbb/task_arena.h>
+
+#include "search/case_search.hpp"
+#include "sweep/prepare.hpp"
+
+namespace stepgate {
+
+namespace {
+
+CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProblem& prepared,
+                    const BatchDone& on_batch) {
+  const ProblemSpec& p = suite.problems[c.problem];
+  CaseResult r;
+  r.id = c.id;
+  r.problem = p.name;
+  r.scaling = c.scaling;
+  r.problem_kind = std::string(to_string(p.kind));
+  r.optimizer = suite.optimizers.at(c.optimizer);
+  r.dataset = prepared.dataset;
+  r.data_sha256 = prepared.data_sha256;
+  r.summary.pinned = c.pinned;
+  try {
+    CaseSearchInput in;
+    in.case_id = c.id;
+    in.optimizer = r.optimizer;
+    in.run = p.run;
+    in.rates = p.rates;
+    in.seeds = p.seeds;
+    in.pinned = c.pinned;
+    in.reference = prepared.reference;
+    in.map = prepared.map;
+    CaseSearchOutput out = search_case(*prepared.problem, in, on_batch);
+    r.summary = std::move(out.summary);
+    r.theory = std::move(out.theory);
+    r.optimum_cost = out.optimum_cost;
+    r.runs = std::move(out.runs);
+  } catch (const std::exception& e) {
+    r.error = e.what();
+  }
+  return r;
+}
+
+}  // namespace
+
+Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& options,
+                  const ProgressFn& progress) {
+  Results results;
+  results.suite = {suite.name, suite.path, suite.sha256};
+  results.tool = this_tool();
+  results.host = this_host();
+  results.shard = options.shard;
+  results.started = utc_now();
+
+  const std::map<PreparedKey, PreparedProblem> prepared = prepare_problems(suite, plan);
+  const int jobs = options.jobs > 0 ? options.jobs
+                                    : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  results.host.jobs = jobs;
+
+  std::vector<CaseResult> cases(plan.cases.size());
+  std::mutex progress_mutex;
+  SweepProgress state{0, plan.max_runs(), 0, static_cast<int>(plan.cases.size())};
+  auto report = [&](int runs, int cases_finished) {
+    if (!progress) return;
+    std::lock_guard lock(progress_mutex);
+    state.runs_done += runs;
+    state.cases_done += cases_finished;
+    progress(state);
+  };
+
+  tbb::task_arena arena(jobs);
+  arena.execute([&] {
+    tbb::parallel_for(std::size_t{0}, plan.cases.size(), [&](std::size_t i) {
+      const PlannedCase& c = plan.cases[i];
+      cases[i] = run_case(suite, c, prepared.at({c.problem, c.scaling}),
+                          [&](int runs) { report(runs, 0); });
+      report(0, 1);
+    }, tbb::simple_partitioner());
+  });
+  results.cases = std::move(cases);
+  results.finished = utc_now();
+  return results;
+}
+
+}  // namespace stepgate

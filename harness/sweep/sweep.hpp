@@ -1,0 +1,32 @@
+// Executes a whole suite: loads and scales the data once per (dataset, scaling), builds each
+// (problem, scaling) once and shares it between its optimizers, runs the cases on a task pool,
+// and assembles the Results in plan order. The results do not depend on the number of jobs.
+#pragma once
+#include <functional>
+
+#include "core/results.hpp"
+#include "suite/suite.hpp"
+#include "sweep/plan.hpp"
+
+namespace stepgate {
+
+struct SweepOptions {
+  int jobs = 0;  ///< worker threads; 0 = all cores (std::thread::hardware_concurrency)
+  std::string shard;  ///< "K/N" recorded in the results when the plan is a shard
+};
+
+/// Progress after each batch of runs: runs done so far, and cases finished so far.
+struct SweepProgress {
+  int runs_done = 0;
+  int max_runs = 0;      ///< the plan's upper bound
+  int cases_done = 0;
+  int cases = 0;
+};
+using ProgressFn = std::function<void(const SweepProgress&)>;
+
+/// Runs the plan. Bad input found while loading data (InputError) is thrown before any run
+/// starts; a failure inside one case is recorded in that case's `error`.
+Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& options = {},
+                  const ProgressFn& progress = {});
+
+}  // namespace stepgate
