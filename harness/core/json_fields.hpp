@@ -20,7 +20,8 @@ nlohmann::json finite_or_null(double v);
 /// value is missing or of the wrong type. The referenced json must outlive the field.
 class JsonField {
  public:
-  JsonField(const nlohmann::json& j, std::string path, nlohmann::json::json_pointer at = nlohmann::json::json_pointer());
+  JsonField(const nlohmann::json& j, std::string path,
+            nlohmann::json::json_pointer at = nlohmann::json::json_pointer());
 
   /// The member `key` of this object (this must be an object; the member must exist).
   JsonField operator[](const std::string& key) const;
@@ -31,6 +32,7 @@ class JsonField {
   /// The number of elements of this array (this must be an array).
   std::size_t array_size() const;
 
+  bool exists() const { return json_ != nullptr; }
   bool is_null() const { return json_ != nullptr && json_->is_null(); }
   /// A number, or NaN for null.
   double number_or_missing() const;

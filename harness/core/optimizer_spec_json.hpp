@@ -17,6 +17,7 @@ nlohmann::json to_json(const OptimizerSpec& spec);
 /// Throws InputError(path + "#" + pointer of the bad field, "expected ..., found ..."); `at` is
 /// the pointer of `j` inside the file. Does not validate() ranges: a stored spec is data.
 OptimizerSpec optimizer_spec_from_json(const nlohmann::json& j, const std::string& path,
-                                       const nlohmann::json::json_pointer& at = nlohmann::json::json_pointer());
+                                       const nlohmann::json::json_pointer& at =
+                                           nlohmann::json::json_pointer());
 
 }  // namespace stepgate

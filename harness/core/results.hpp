@@ -121,7 +121,7 @@ struct TraceThinning {
 /// Indices into `trace` to store, increasing and without duplicates: index 0; for each target
 /// 10^(m / per_decade), m = 0, 1, ..., the first point whose iter is at or after it; the last
 /// `tail` points, and always the last point (even with tail <= 0). per_decade <= 0: no
-/// log-spaced points. A 1e5-iteration trace with the defaults keeps 112 points.
+/// log-spaced points. A 1e5-iteration trace with the defaults keeps 100 points.
 std::vector<std::size_t> thinned_indices(const std::vector<TracePoint>& trace, const TraceThinning& t = {});
 
 /// The JSON form (DESIGN.md, "results.json"). NaN, nullopt and also ±inf are written as null

@@ -149,8 +149,8 @@ CaseResult read_case(const JsonField& f) {
 Results results_from_json(const json& j, const std::string& path) {
   const JsonField f(j, path, json::json_pointer());
   // The format first: a file of another format would fail somewhere less telling.
-  if (const JsonField format = f["format"]; !format.value().is_string() ||
-                                            format.string() != kResultsFormat)
+  if (const JsonField format = f["format"];
+      !format.exists() || !format.value().is_string() || format.string() != kResultsFormat)
     format.fail(std::string("format \"") + kResultsFormat + "\"");
   Results r;
   r.format = kResultsFormat;

@@ -14,8 +14,8 @@ namespace stepgate {
 namespace suite_detail {
 namespace {
 
-const std::vector<std::string> kCsvKeys = {"csv",    "target",  "features", "delimiter", "whitespace",
-                                           "quote",  "header",  "columns",  "max_rows"};
+const std::vector<std::string> kCsvKeys = {"csv",   "target", "features", "delimiter", "whitespace",
+                                           "quote", "header", "columns",  "max_rows"};
 const std::vector<std::string> kIdxKeys = {"idx", "pixel_scale", "max_rows"};
 const std::vector<std::string> kGeneratedKeys = {"generate"};
 
@@ -52,8 +52,10 @@ void read_csv_source(const ObjectNode& o, DatasetSpec& d) {
     d.features = unique_strings(*n, "feature");
     for (std::size_t i = 0; i < d.features.size(); ++i)
       if (d.features[i] == d.target)
-        n->element(i).fail(fmt::format("found the target '{}' among the features; expected "
-                                       "feature columns other than the target", d.target));
+        n->element(i).fail(
+            fmt::format("found the target '{}' among the features; expected "
+                        "feature columns other than the target",
+                        d.target));
   }
   if (auto n = o.find("whitespace")) d.csv.whitespace_delimited = n->boolean();
   if (auto n = o.find("delimiter")) {
@@ -65,8 +67,9 @@ void read_csv_source(const ObjectNode& o, DatasetSpec& d) {
   if (auto n = o.find("header")) d.csv.header = n->boolean();
   if (auto n = o.find("columns")) {
     if (d.csv.header)
-      n->fail("found column names for a file with a header line; expected \"columns\" only "
-              "with \"header\": false");
+      n->fail(
+          "found column names for a file with a header line; expected \"columns\" only "
+          "with \"header\": false");
     d.csv.column_names = unique_strings(*n, "column");
   }
   d.max_rows = max_rows(o);
@@ -98,9 +101,11 @@ void read_generated_source(const ObjectNode& o, DatasetSpec& d) {
                                              "intercept", "feature_scales"});
   GeneratedSpec& s = d.generated;
   if (auto n = g.find("kind"))
-    s.kind = n->choice({"linear", "logistic"}, "generated kind") == "linear" ? GeneratedSpec::linear
-                                                                              : GeneratedSpec::logistic;
-  if (auto n = g.find("rows")) s.rows = n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
+    s.kind = n->choice({"linear", "logistic"}, "generated kind") == "linear"
+                 ? GeneratedSpec::linear
+                 : GeneratedSpec::logistic;
+  if (auto n = g.find("rows"))
+    s.rows = n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
   if (auto n = g.find("features"))
     s.features = n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
   if (auto n = g.find("noise")) {
@@ -115,7 +120,8 @@ void read_generated_source(const ObjectNode& o, DatasetSpec& d) {
     if (!n) return;
     out = numbers(*n);
     if (out.size() != static_cast<std::size_t>(s.features))
-      n->fail(fmt::format("found {} values; expected one per feature ({})", out.size(), s.features));
+      n->fail(
+          fmt::format("found {} values; expected one per feature ({})", out.size(), s.features));
     for (std::size_t i = 0; i < out.size(); ++i)
       if (positive && !(out[i] > 0)) n->element(i).expected("a number > 0");
   };
@@ -125,7 +131,8 @@ void read_generated_source(const ObjectNode& o, DatasetSpec& d) {
 
 DatasetSpec read_dataset(const Node& node, const std::string& name, const std::string& suite_path) {
   check_name(node, name, "dataset name");
-  if (!node.json().is_object()) node.expected("an object with one of \"csv\", \"idx\", \"generate\"");
+  if (!node.json().is_object())
+    node.expected("an object with one of \"csv\", \"idx\", \"generate\"");
   DatasetSpec d;
   d.name = name;
   d.pointer = node.pointer();
@@ -133,11 +140,14 @@ DatasetSpec read_dataset(const Node& node, const std::string& name, const std::s
   const int sources = int(node.json().contains("csv")) + int(node.json().contains("idx")) +
                       int(node.json().contains("generate"));
   if (sources != 1)
-    node.fail(fmt::format("found {} data sources; expected exactly one of \"csv\", \"idx\", \"generate\"",
-                          sources));
-  if (node.json().contains("csv")) read_csv_source(ObjectNode(node, kCsvKeys), d);
-  else if (node.json().contains("idx")) read_idx_source(ObjectNode(node, kIdxKeys), d);
-  else read_generated_source(ObjectNode(node, kGeneratedKeys), d);
+    node.fail(fmt::format(
+        "found {} data sources; expected exactly one of \"csv\", \"idx\", \"generate\"", sources));
+  if (node.json().contains("csv"))
+    read_csv_source(ObjectNode(node, kCsvKeys), d);
+  else if (node.json().contains("idx"))
+    read_idx_source(ObjectNode(node, kIdxKeys), d);
+  else
+    read_generated_source(ObjectNode(node, kGeneratedKeys), d);
   return d;
 }
 
@@ -162,7 +172,8 @@ Dataset load_dataset(const DatasetSpec& spec) {
         break;
       case DatasetSpec::Source::idx:
         // load_idx_dataset applies max_rows itself, before scaling the pixels.
-        return load_idx_dataset(spec.path, spec.labels_path, spec.name, spec.pixel_scale, spec.max_rows);
+        return load_idx_dataset(spec.path, spec.labels_path, spec.name, spec.pixel_scale,
+                                spec.max_rows);
       case DatasetSpec::Source::generated:
         data = generate_dataset(spec.generated, spec.name);
         break;

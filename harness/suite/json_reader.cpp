@@ -42,7 +42,7 @@ struct Frame {
 std::string child_token(const std::vector<Frame>& stack) {
   if (stack.empty()) return "";
   const Frame& top = stack.back();
-  return top.object ? pointer_token(top.key) : "/" + std::to_string(top.index);
+  return top.object ? pointer_token(top.key) : fmt::format("/{}", top.index);
 }
 
 std::string path_of(const std::vector<Frame>& stack) {
@@ -129,7 +129,9 @@ std::string did_you_mean(std::string_view word, const std::vector<std::string>& 
   return best ? " (did you mean '" + *best + "'?)" : "";
 }
 
-std::string join(const std::vector<std::string>& words) { return fmt::format("{}", fmt::join(words, ", ")); }
+std::string join(const std::vector<std::string>& words) {
+  return fmt::format("{}", fmt::join(words, ", "));
+}
 
 std::string describe(const Json& value) {
   if (value.is_array()) return value.empty() ? "an empty array" : "an array";
@@ -142,9 +144,12 @@ std::string describe(const Json& value) {
 std::string pointer_token(std::string_view key) {
   std::string token = "/";
   for (char c : key) {
-    if (c == '~') token += "~0";
-    else if (c == '/') token += "~1";
-    else token += c;
+    if (c == '~')
+      token += "~0";
+    else if (c == '/')
+      token += "~1";
+    else
+      token += c;
   }
   return token;
 }
@@ -158,7 +163,7 @@ void Node::expected(std::string_view expected) const {
 }
 
 Node Node::element(std::size_t index) const {
-  return Node((*value_)[index], file_, pointer_ + "/" + std::to_string(index));
+  return Node((*value_)[index], file_, fmt::format("{}/{}", pointer_, index));
 }
 
 Node Node::member(std::string_view key) const {
@@ -175,14 +180,16 @@ double Node::number() const {
 long Node::integer() const {
   if (value_->is_number_unsigned()) {
     const auto u = value_->get<std::uint64_t>();
-    if (u > static_cast<std::uint64_t>(std::numeric_limits<long>::max())) expected("a smaller whole number");
+    if (u > static_cast<std::uint64_t>(std::numeric_limits<long>::max()))
+      expected("a smaller whole number");
     return static_cast<long>(u);
   }
   if (value_->is_number_integer()) return value_->get<long>();
-  const double v = value_->is_number() ? value_->get<double>()
-                                          : std::numeric_limits<double>::quiet_NaN();
+  const double v =
+      value_->is_number() ? value_->get<double>() : std::numeric_limits<double>::quiet_NaN();
   // 1e4 is a whole number written the short way; 2.5 is not.
-  if (!(std::isfinite(v) && v == std::floor(v) && std::fabs(v) < 9.0e15)) expected("a whole number");
+  if (!(std::isfinite(v) && v == std::floor(v) && std::fabs(v) < 9.0e15))
+    expected("a whole number");
   return static_cast<long>(v);
 }
 
@@ -217,7 +224,8 @@ std::vector<std::string> Node::strings() const {
   return out;
 }
 
-const std::string& Node::choice(const std::vector<std::string>& options, std::string_view what) const {
+const std::string& Node::choice(const std::vector<std::string>& options,
+                                std::string_view what) const {
   if (!value_->is_string()) expected(fmt::format("a {} (one of: {})", what, join(options)));
   const std::string& s = string();
   if (std::find(options.begin(), options.end(), s) == options.end())
@@ -228,7 +236,8 @@ const std::string& Node::choice(const std::vector<std::string>& options, std::st
 
 // ---- ObjectNode ----
 
-ObjectNode::ObjectNode(const Node& node, std::initializer_list<std::string_view> allowed) : node_(node) {
+ObjectNode::ObjectNode(const Node& node, std::initializer_list<std::string_view> allowed)
+    : node_(node) {
   check_keys(std::vector<std::string>(allowed.begin(), allowed.end()));
 }
 
@@ -288,8 +297,9 @@ bool is_valid_name(std::string_view name) {
 
 void check_name(const Node& node, const std::string& name, std::string_view what) {
   if (!is_valid_name(name))
-    node.fail(fmt::format("found {} '{}'; expected letters, digits, '.', '_' or '-' only (at least one)",
-                          what, name));
+    node.fail(
+        fmt::format("found {} '{}'; expected letters, digits, '.', '_' or '-' only (at least one)",
+                    what, name));
 }
 
 }  // namespace stepgate::suite_detail

@@ -47,16 +47,16 @@ class Node {
   /// Fails with "expected <expected>, found <the value>".
   [[noreturn]] void expected(std::string_view expected) const;
 
-  Node element(std::size_t index) const;   ///< array element (the value must be an array)
-  Node member(std::string_view key) const; ///< object member that exists
+  Node element(std::size_t index) const;    ///< array element (the value must be an array)
+  Node member(std::string_view key) const;  ///< object member that exists
 
   bool is_null() const { return value_->is_null(); }
-  double number() const;               ///< any finite number
-  long integer() const;                ///< a whole number (1e4 counts) in the range of long
-  std::uint64_t seed() const;          ///< a whole number >= 0 that fits 64 bits
+  double number() const;       ///< any finite number
+  long integer() const;        ///< a whole number (1e4 counts) in the range of long
+  std::uint64_t seed() const;  ///< a whole number >= 0 that fits 64 bits
   bool boolean() const;
   const std::string& string() const;
-  std::vector<Node> elements() const;  ///< the elements of an array
+  std::vector<Node> elements() const;        ///< the elements of an array
   std::vector<std::string> strings() const;  ///< an array of strings
   /// A string among `options`; `what` names it in messages ("criterion").
   const std::string& choice(const std::vector<std::string>& options, std::string_view what) const;

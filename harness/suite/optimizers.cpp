@@ -26,7 +26,8 @@ Schedule read_schedule(const Node& node) {
 
 OptimizerSpec read_optimizer(const Node& node, const std::string& name) {
   check_name(node, name, "optimizer name");
-  const ObjectNode o(node, {"kind", "beta", "beta1", "beta2", "rho", "eps", "batch_size", "schedule"});
+  const ObjectNode o(node,
+                     {"kind", "beta", "beta1", "beta2", "rho", "eps", "batch_size", "schedule"});
   OptimizerSpec s;
   s.label = name;
   // An optimizer named like a kind may leave the kind out: {"adam": {"beta2": 0.99}}.

@@ -19,11 +19,20 @@ const std::vector<KindKey>& kind_keys() {
   using K = ProblemKind;
   const std::vector<K> linear = {K::least_squares, K::logistic, K::softmax};
   static const std::vector<KindKey> keys = {
-      {"dataset", linear},        {"intercept", linear},       {"l2", linear},
-      {"reduction", linear},      {"init_scale", linear},      {"gram_ratio", {K::least_squares}},
-      {"classes", {K::softmax}},  {"reference", {K::least_squares, K::logistic}},
-      {"dim", {K::quadratic}},    {"L", {K::quadratic}},       {"condition", {K::quadratic}},
-      {"spectrum", {K::quadratic}}, {"seed", {K::quadratic}},  {"start_radius", {K::quadratic}},
+      {"dataset", linear},
+      {"intercept", linear},
+      {"l2", linear},
+      {"reduction", linear},
+      {"init_scale", linear},
+      {"gram_ratio", {K::least_squares}},
+      {"classes", {K::softmax}},
+      {"reference", {K::least_squares, K::logistic}},
+      {"dim", {K::quadratic}},
+      {"L", {K::quadratic}},
+      {"condition", {K::quadratic}},
+      {"spectrum", {K::quadratic}},
+      {"seed", {K::quadratic}},
+      {"start_radius", {K::quadratic}},
       {"function", {K::test_function}},
   };
   return keys;
@@ -48,8 +57,8 @@ void check_kind_keys(const ObjectNode& o, ProblemKind kind) {
     if (!o.has(kk.key) || std::count(kk.kinds.begin(), kk.kinds.end(), kind)) continue;
     std::vector<std::string> names;
     for (ProblemKind k : kk.kinds) names.emplace_back(to_string(k));
-    o.require(kk.key).fail(fmt::format("key '{}' does not apply to a {} problem; it is for: {}", kk.key,
-                                       to_string(kind), join(names)));
+    o.require(kk.key).fail(fmt::format("key '{}' does not apply to a {} problem; it is for: {}",
+                                       kk.key, to_string(kind), join(names)));
   }
 }
 
@@ -60,23 +69,29 @@ void read_linear(const ObjectNode& o, const Suite& suite, ProblemSpec& p) {
   if (it == suite.datasets.end()) {
     std::vector<std::string> defined;
     for (const auto& [name, spec] : suite.datasets) defined.push_back(name);
-    dataset.fail(fmt::format("undefined dataset '{}'{}; defined: {}", p.dataset, did_you_mean(p.dataset, defined),
-                             defined.empty() ? "none (the suite has no datasets section)" : join(defined)));
+    dataset.fail(fmt::format(
+        "undefined dataset '{}'{}; defined: {}", p.dataset, did_you_mean(p.dataset, defined),
+        defined.empty() ? "none (the suite has no datasets section)" : join(defined)));
   }
   const DatasetSpec& d = it->second;
   if (p.kind != ProblemKind::least_squares && d.source == DatasetSpec::Source::generated &&
       d.generated.kind == GeneratedSpec::linear)
-    dataset.fail(fmt::format("found generated linear data (real-valued targets) for a {} problem; "
-                             "expected class labels (generate kind 'logistic')", to_string(p.kind)));
+    dataset.fail(
+        fmt::format("found generated linear data (real-valued targets) for a {} problem; "
+                    "expected class labels (generate kind 'logistic')",
+                    to_string(p.kind)));
 
   LinearModelOptions& m = p.linear;
   const auto non_negative = [](double v) { return v >= 0; };
   if (auto n = o.find("intercept")) m.intercept = n->boolean();
   if (auto n = o.find("l2")) m.l2 = n->number_if(non_negative, "a number >= 0");
   if (auto n = o.find("reduction"))
-    m.reduction = n->choice({"mean", "sum"}, "reduction") == "mean" ? Reduction::mean : Reduction::sum;
-  if (auto n = o.find("init_scale")) m.init_scale = n->number_if(non_negative, "a number >= 0 (0 = start at zero)");
-  if (auto n = o.find("gram_ratio")) m.gram_ratio = n->number_if(non_negative, "a number >= 0 (0 = never)");
+    m.reduction =
+        n->choice({"mean", "sum"}, "reduction") == "mean" ? Reduction::mean : Reduction::sum;
+  if (auto n = o.find("init_scale"))
+    m.init_scale = n->number_if(non_negative, "a number >= 0 (0 = start at zero)");
+  if (auto n = o.find("gram_ratio"))
+    m.gram_ratio = n->number_if(non_negative, "a number >= 0 (0 = never)");
   if (auto n = o.find("classes"))
     p.classes = n->integer_if([](long v) { return v == 0 || (v >= 2 && v <= 256); },
                               "0 (max label + 1) or a class count in 2..256");
@@ -84,24 +99,32 @@ void read_linear(const ObjectNode& o, const Suite& suite, ProblemSpec& p) {
 
 void read_quadratic(const ObjectNode& o, ProblemSpec& p) {
   QuadraticOptions& q = p.quadratic;
-  if (auto n = o.find("dim")) q.dim = n->integer_if([](long v) { return v >= 1 && v <= 100000; }, "a whole number in 1..100000");
+  if (auto n = o.find("dim"))
+    q.dim =
+        n->integer_if([](long v) { return v >= 1 && v <= 100000; }, "a whole number in 1..100000");
   if (auto n = o.find("L")) q.L = n->number_if([](double v) { return v > 0; }, "a number > 0");
-  if (auto n = o.find("condition")) q.condition = n->number_if([](double v) { return v >= 1; }, "a number >= 1");
+  if (auto n = o.find("condition"))
+    q.condition = n->number_if([](double v) { return v >= 1; }, "a number >= 1");
   if (auto n = o.find("spectrum")) {
     const std::string& s = n->choice({"linear", "log_uniform", "two_clusters"}, "spectrum");
-    q.spectrum = s == "linear" ? Spectrum::linear : s == "log_uniform" ? Spectrum::log_uniform : Spectrum::two_clusters;
+    q.spectrum = s == "linear"        ? Spectrum::linear
+                 : s == "log_uniform" ? Spectrum::log_uniform
+                                      : Spectrum::two_clusters;
   }
   if (auto n = o.find("seed")) q.seed = n->seed();
-  if (auto n = o.find("start_radius")) q.start_radius = n->number_if([](double v) { return v > 0; }, "a number > 0");
+  if (auto n = o.find("start_radius"))
+    q.start_radius = n->number_if([](double v) { return v > 0; }, "a number > 0");
 }
 
 // Names of the model's parameters when the dataset fixes them without reading the data.
 std::optional<std::vector<std::string>> layout_names(const ProblemSpec& p, const DatasetSpec& d) {
   std::vector<std::string> names;
-  if (d.source == DatasetSpec::Source::csv && !d.features.empty()) names = d.features;
+  if (d.source == DatasetSpec::Source::csv && !d.features.empty())
+    names = d.features;
   else if (d.source == DatasetSpec::Source::generated)
-    for (long j = 1; j <= d.generated.features; ++j) names.push_back("x" + std::to_string(j));
-  else return std::nullopt;
+    for (long j = 1; j <= d.generated.features; ++j) names.push_back(fmt::format("x{}", j));
+  else
+    return std::nullopt;
   if (p.linear.intercept) names.push_back("intercept");
   return names;
 }
@@ -112,26 +135,32 @@ void read_problem_reference(const ObjectNode& o, const Suite& suite, ProblemSpec
   p.reference = read_reference(*node);
   const auto expected = layout_names(p, suite.datasets.at(p.dataset));
   if (expected && *expected != p.reference->names)
-    node->fail(fmt::format("found reference coefficients {}; expected exactly the model's parameters in "
-                           "model order: {}", join(p.reference->names), join(*expected)));
+    node->fail(
+        fmt::format("found reference coefficients {}; expected exactly the model's parameters in "
+                    "model order: {}",
+                    join(p.reference->names), join(*expected)));
 }
 
 // Settings that a problem without data cannot use.
-void check_dataless(const Node& node, const Layers& settings, const Suite& suite, const ProblemSpec& p) {
+void check_dataless(const Node& node, const Layers& settings, const Suite& suite,
+                    const ProblemSpec& p) {
   if (has_data(p.kind)) return;
   if (auto n = settings.find("scalings"))
     for (std::size_t i = 0; i < p.scalings.size(); ++i)
       if (p.scalings[i] != "none")
-        n->element(i).fail(fmt::format("found scaling '{}' on a {} problem, which has no data to scale; "
-                                       "expected only \"none\"", p.scalings[i], to_string(p.kind)));
+        n->element(i).fail(
+            fmt::format("found scaling '{}' on a {} problem, which has no data to scale; "
+                        "expected only \"none\"",
+                        p.scalings[i], to_string(p.kind)));
   for (std::size_t i = 0; i < p.optimizers.size(); ++i) {
     const OptimizerSpec& spec = suite.optimizers.at(p.optimizers[i]);
     const auto listed = settings.find("optimizers");
     if (spec.batch_size > 0)
-      (listed ? listed->element(i) : node).fail(
-          fmt::format("found optimizer '{}' with batch_size {} on a {} problem, which has no samples to "
-                      "batch; expected full-batch optimizers (batch_size 0)", p.optimizers[i], spec.batch_size,
-                      to_string(p.kind)));
+      (listed ? listed->element(i) : node)
+          .fail(fmt::format(
+              "found optimizer '{}' with batch_size {} on a {} problem, which has no samples to "
+              "batch; expected full-batch optimizers (batch_size 0)",
+              p.optimizers[i], spec.batch_size, to_string(p.kind)));
   }
 }
 

@@ -16,7 +16,8 @@ ReferenceValues read_reference_object(const Node& node, bool is_file) {
                                : ObjectNode(node, {"source", "digits", "coefficients"});
   if (is_file) {
     const Node format = o.require("format");
-    if (format.string() != kReferenceFormat) format.expected(fmt::format("\"{}\"", kReferenceFormat));
+    if (format.string() != kReferenceFormat)
+      format.expected(fmt::format("\"{}\"", kReferenceFormat));
   }
   ReferenceValues r;
   const Node source = o.require("source");
@@ -40,7 +41,8 @@ ReferenceValues read_reference_object(const Node& node, bool is_file) {
 
 ReferenceValues read_reference(const Node& node) {
   if (node.json().is_object()) return read_reference_object(node, false);
-  if (!node.json().is_string()) node.expected("a reference file path or an inline reference object");
+  if (!node.json().is_string())
+    node.expected("a reference file path or an inline reference object");
   const std::string path = resolve_path(node, node.string());
   require_file(node, path, "reference file");
   return load_reference(path);

@@ -13,7 +13,8 @@ ScalingSpec read_scaling(const Node& node, const std::string& name) {
   const ObjectNode o(node, {"kind", "factor", "columns", "span", "seed", "drop_constant"});
   ScalingSpec s;
   s.name = name;
-  const std::vector<std::string> kinds = {"none", "standardize", "minmax", "maxabs", "units", "jitter"};
+  const std::vector<std::string> kinds = {"none",   "standardize", "minmax",
+                                          "maxabs", "units",       "jitter"};
   s.kind = *scaling_kind_from_string(o.require("kind").choice(kinds, "scaling kind"));
   // Keys that only one kind uses are errors elsewhere: a value that would be ignored is a mistake.
   const auto only_for = [&](const char* key, ScalingSpec::Kind kind) -> std::optional<Node> {
@@ -31,8 +32,9 @@ ScalingSpec read_scaling(const Node& node, const std::string& name) {
   if (auto n = only_for("seed", ScalingSpec::jitter)) s.seed = n->seed();
   if (auto n = o.find("drop_constant")) s.drop_constant = n->boolean();
   if (name == "none" && (s.kind != ScalingSpec::none || s.drop_constant))
-    node.fail("found a scaling named 'none' that changes the data; expected 'none' to be the "
-              "identity (it is predefined), so give this scaling another name");
+    node.fail(
+        "found a scaling named 'none' that changes the data; expected 'none' to be the "
+        "identity (it is predefined), so give this scaling another name");
   return s;
 }
 

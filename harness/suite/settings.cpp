@@ -2,6 +2,7 @@
 // in `defaults` and per problem. Each key comes from the highest level that has it; rates,
 // outcome and gate merge key by key, so every value is reported where it was written.
 #include <algorithm>
+#include <cmath>
 #include <set>
 
 #include <fmt/format.h>
@@ -14,12 +15,11 @@ namespace {
 const std::vector<std::string> kRateKeys = {"grid",          "fixed",        "precision",
                                             "lanes",         "locate_edge",  "locate_floor",
                                             "locate_blowup", "refine_points"};
-const std::vector<std::string> kOutcomeKeys = {"criterion",     "tol",             "target", "plateau_window",
-                                               "blowup_factor", "overshoot_limit", "hold"};
-const std::vector<std::string> kGateKeys = {"edge_moved",     "floor_moved",          "best_moved_factor",
-                                            "min_headroom",   "iterations_grew",      "min_reference_digits",
-                                            "theory_factor",  "case_added",           "case_missing",
-                                            "data_changed"};
+const std::vector<std::string> kOutcomeKeys = {
+    "criterion", "tol", "target", "plateau_window", "blowup_factor", "overshoot_limit", "hold"};
+const std::vector<std::string> kGateKeys = {
+    "edge_moved",           "floor_moved",   "best_moved_factor", "min_headroom", "iterations_grew",
+    "min_reference_digits", "theory_factor", "case_added",        "case_missing", "data_changed"};
 
 void check_levels(const Layers& layers, const std::vector<std::string>& keys) {
   for (const Node& level : layers.levels) ObjectNode(level, keys);
@@ -66,8 +66,10 @@ void read_optimizer_names(const Layers& settings, Suite& suite, ProblemSpec& p) 
     if (suite.optimizers.count(name)) continue;
     const OptimizerSpec spec = *predefined_optimizer(name);
     if (const std::string problems = validate(spec); !problems.empty())
-      node->element(i).fail(fmt::format("the predefined optimizer '{}' cannot run with its defaults ({}); "
-                                        "expected it defined under /optimizers", name, problems));
+      node->element(i).fail(
+          fmt::format("the predefined optimizer '{}' cannot run with its defaults ({}); "
+                      "expected it defined under /optimizers",
+                      name, problems));
     suite.optimizers.emplace(name, spec);
   }
 }
@@ -78,7 +80,8 @@ RateGrid read_grid(const Node& node) {
   if (auto n = o.find("from")) g.from = n->number_if(positive, "a rate > 0");
   if (auto n = o.find("to")) g.to = n->number_if(positive, "a rate > 0");
   if (auto n = o.find("per_decade"))
-    g.per_decade = int(n->integer_if([](long v) { return v >= 1 && v <= 1000; }, "a whole number in 1..1000"));
+    g.per_decade =
+        int(n->integer_if([](long v) { return v >= 1 && v <= 1000; }, "a whole number in 1..1000"));
   if (!(g.from < g.to))
     (o.has("to") ? o.require("to") : node)
         .fail(fmt::format("found a grid from {} to {}; expected from < to", g.from, g.to));
@@ -96,14 +99,17 @@ RatePolicy read_rates(const Layers& rates) {
   if (auto n = rates.find("precision"))
     r.precision = n->number_if([](double v) { return v > 0 && v <= 1; }, "a number in (0, 1]");
   if (auto n = rates.find("lanes"))
-    r.lanes = int(n->integer_if([](long v) { return v >= 1 && v <= 16; }, "a whole number in 1..16"));
+    r.lanes =
+        int(n->integer_if([](long v) { return v >= 1 && v <= 16; }, "a whole number in 1..16"));
   if (auto n = rates.find("locate_edge")) r.locate_edge = n->boolean();
   if (auto n = rates.find("locate_floor")) r.locate_floor = n->boolean();
   if (auto n = rates.find("locate_blowup")) r.locate_blowup = n->boolean();
   if (auto n = rates.find("refine_points"))
-    r.refine_points = int(n->integer_if([](long v) { return v >= 0 && v <= 32; }, "a whole number in 0..32"));
+    r.refine_points =
+        int(n->integer_if([](long v) { return v >= 0 && v <= 32; }, "a whole number in 0..32"));
   if (!r.grid && r.fixed.empty())
-    (fixed ? *fixed : *grid).fail("found no grid and no fixed rates; expected a grid, fixed rates, or both");
+    (fixed ? *fixed : *grid)
+        .fail("found no grid and no fixed rates; expected a grid, fixed rates, or both");
   return r;
 }
 
@@ -111,6 +117,8 @@ std::vector<std::uint64_t> read_seeds(const Node& node) {
   std::vector<std::uint64_t> seeds;
   if (node.json().is_number()) {
     // A count N stands for the seeds 1..N.
+    if (!node.json().is_number_integer() && !(node.number() == std::floor(node.number())))
+      node.expected("a seed count in 1..100000, or an array of seeds");
     const long count = node.integer_if([](long v) { return v >= 1 && v <= 100000; },
                                        "a seed count in 1..100000, or an array of seeds");
     for (long s = 1; s <= count; ++s) seeds.push_back(std::uint64_t(s));
@@ -132,7 +140,8 @@ OutcomeSettings read_outcome(const Layers& outcome) {
   OutcomeSettings o;
   const auto criterion = outcome.find("criterion");
   if (criterion)
-    o.criterion = *criterion_from_string(criterion->choice({"auto", "gap", "grad", "cost", "plateau"}, "criterion"));
+    o.criterion = *criterion_from_string(
+        criterion->choice({"auto", "gap", "grad", "cost", "plateau"}, "criterion"));
   if (auto n = outcome.find("tol")) o.tol = n->number_if(positive, "a number > 0");
   const auto target = outcome.find("target");
   if (target) o.target = target->number();
@@ -142,9 +151,11 @@ OutcomeSettings read_outcome(const Layers& outcome) {
     o.blowup_factor = n->number_if([](double v) { return v > 1; }, "a number > 1");
   if (auto n = outcome.find("overshoot_limit"))
     o.overshoot_limit = n->number_if([](double v) { return v >= 0; }, "a number >= 0");
-  if (auto n = outcome.find("hold")) o.hold = n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0");
+  if (auto n = outcome.find("hold"))
+    o.hold = n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0");
   if (o.criterion == Criterion::cost && !target)
-    criterion->fail("found criterion 'cost' without a target; expected \"target\": the cost to reach");
+    criterion->fail(
+        "found criterion 'cost' without a target; expected \"target\": the cost to reach");
   return o;
 }
 
@@ -158,9 +169,10 @@ void read_pinned(const Node& node, ProblemSpec& p) {
   for (const auto& item : node.json().items()) {
     const Node e = node.member(item.key());
     if (std::find(p.optimizers.begin(), p.optimizers.end(), item.key()) == p.optimizers.end())
-      e.fail(fmt::format("found a pinned rate for optimizer '{}', which problem '{}' does not use{}; "
-                         "its optimizers: {}", item.key(), p.name, did_you_mean(item.key(), p.optimizers),
-                         join(p.optimizers)));
+      e.fail(fmt::format(
+          "found a pinned rate for optimizer '{}', which problem '{}' does not use{}; "
+          "its optimizers: {}",
+          item.key(), p.name, did_you_mean(item.key(), p.optimizers), join(p.optimizers)));
     p.pinned[item.key()] = e.number_if(positive, "a rate > 0");
   }
 }
@@ -178,13 +190,19 @@ GateTolerances read_gate(const Layers& gate) {
   const auto non_negative = [](double v) { return v >= 0; };
   const auto at_least_one = [](double v) { return v >= 1; };
   if (auto n = gate.find("edge_moved")) g.edge_moved = n->number_if(non_negative, "a number >= 0");
-  if (auto n = gate.find("floor_moved")) g.floor_moved = n->number_if(non_negative, "a number >= 0");
-  if (auto n = gate.find("best_moved_factor")) g.best_moved_factor = n->number_if(at_least_one, "a number >= 1");
-  if (auto n = gate.find("min_headroom")) g.min_headroom = n->number_if(at_least_one, "a number >= 1");
-  if (auto n = gate.find("iterations_grew")) g.iterations_grew = n->number_if(non_negative, "a number >= 0");
+  if (auto n = gate.find("floor_moved"))
+    g.floor_moved = n->number_if(non_negative, "a number >= 0");
+  if (auto n = gate.find("best_moved_factor"))
+    g.best_moved_factor = n->number_if(at_least_one, "a number >= 1");
+  if (auto n = gate.find("min_headroom"))
+    g.min_headroom = n->number_if(at_least_one, "a number >= 1");
+  if (auto n = gate.find("iterations_grew"))
+    g.iterations_grew = n->number_if(non_negative, "a number >= 0");
   if (auto n = gate.find("min_reference_digits"))
-    g.min_reference_digits = n->number_if([](double v) { return v >= 0 && v <= 17; }, "a number in [0, 17]");
-  if (auto n = gate.find("theory_factor")) g.theory_factor = n->number_if(at_least_one, "a number >= 1");
+    g.min_reference_digits =
+        n->number_if([](double v) { return v >= 0 && v <= 17; }, "a number in [0, 17]");
+  if (auto n = gate.find("theory_factor"))
+    g.theory_factor = n->number_if(at_least_one, "a number >= 1");
   if (auto n = gate.find("case_added")) g.case_added = severity(*n);
   if (auto n = gate.find("case_missing")) g.case_missing = severity(*n);
   if (auto n = gate.find("data_changed")) g.data_changed = severity(*n);
@@ -192,21 +210,28 @@ GateTolerances read_gate(const Layers& gate) {
 }
 
 const std::vector<std::string>& settings_keys() {
-  static const std::vector<std::string> keys = {"scalings", "optimizers", "rates",   "seeds", "budget",
-                                                "eval_every", "outcome",  "pinned", "gate"};
+  static const std::vector<std::string> keys = {"scalings", "optimizers", "rates",
+                                                "seeds",    "budget",     "eval_every",
+                                                "outcome",  "pinned",     "gate"};
   return keys;
 }
 
 void read_settings(const Layers& settings, const Layers& gate, Suite& suite, ProblemSpec& p) {
-  if (auto n = settings.find("scalings")) p.scalings = names_in(*n, "scaling", keys_of(suite.scalings));
-  else p.scalings = {"none"};
+  if (auto n = settings.find("scalings"))
+    p.scalings = names_in(*n, "scaling", keys_of(suite.scalings));
+  else
+    p.scalings = {"none"};
   read_optimizer_names(settings, suite, p);
   p.rates = read_rates(settings.sub("rates"));
-  if (auto n = settings.find("seeds")) p.seeds = read_seeds(*n);
-  else p.seeds = {1, 2, 3};
-  if (auto n = settings.find("budget")) p.run.budget = n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
+  if (auto n = settings.find("seeds"))
+    p.seeds = read_seeds(*n);
+  else
+    p.seeds = {1, 2, 3};
+  if (auto n = settings.find("budget"))
+    p.run.budget = n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
   if (auto n = settings.find("eval_every"))
-    p.run.eval_every = n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0 (0 = automatic)");
+    p.run.eval_every =
+        n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0 (0 = automatic)");
   p.run.outcome = read_outcome(settings.sub("outcome"));
   if (auto n = settings.find("pinned")) read_pinned(*n, p);
   Layers all_gate = gate;

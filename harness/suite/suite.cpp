@@ -13,11 +13,16 @@ namespace stepgate {
 
 std::string_view to_string(ProblemKind k) {
   switch (k) {
-    case ProblemKind::least_squares: return "least_squares";
-    case ProblemKind::logistic: return "logistic";
-    case ProblemKind::softmax: return "softmax";
-    case ProblemKind::quadratic: return "quadratic";
-    case ProblemKind::test_function: return "test_function";
+    case ProblemKind::least_squares:
+      return "least_squares";
+    case ProblemKind::logistic:
+      return "logistic";
+    case ProblemKind::softmax:
+      return "softmax";
+    case ProblemKind::quadratic:
+      return "quadratic";
+    case ProblemKind::test_function:
+      return "test_function";
   }
   return "least_squares";
 }
@@ -31,8 +36,8 @@ std::optional<ProblemKind> problem_kind_from_string(std::string_view s) {
 
 const std::vector<std::string>& suite_test_function_names() {
   // Moré, Garbow & Hillstrom (1981) functions built by problems/test_functions.cpp.
-  static const std::vector<std::string> names = {"rosenbrock",      "freudenstein_roth", "beale",
-                                                 "helical_valley",  "powell_singular",   "wood"};
+  static const std::vector<std::string> names = {"rosenbrock",     "freudenstein_roth", "beale",
+                                                 "helical_valley", "powell_singular",   "wood"};
   return names;
 }
 
@@ -41,16 +46,20 @@ namespace suite_detail {
 std::string resolve_path(const Node& document_node, const std::string& written) {
   const std::filesystem::path p(written);
   if (p.empty() || p.is_absolute()) return written;
-  return (std::filesystem::path(document_node.file()).parent_path() / p).lexically_normal().string();
+  return (std::filesystem::path(document_node.file()).parent_path() / p)
+      .lexically_normal()
+      .string();
 }
 
 void require_file(const Node& node, const std::string& path, std::string_view what) {
   if (path.empty()) node.expected(fmt::format("the path of a {}", what));
   std::error_code ec;
   if (!std::filesystem::is_regular_file(path, ec))
-    node.fail(fmt::format("found no {} at '{}'{}; expected an existing file (relative paths are "
-                          "relative to the folder of '{}')", what, path,
-                          std::filesystem::exists(path, ec) ? " (it is not a regular file)" : "", node.file()));
+    node.fail(fmt::format(
+        "found no {} at '{}'{}; expected an existing file (relative paths are "
+        "relative to the folder of '{}')",
+        what, path, std::filesystem::exists(path, ec) ? " (it is not a regular file)" : "",
+        node.file()));
 }
 
 }  // namespace suite_detail
@@ -81,13 +90,16 @@ Suite parse_suite(const std::string& text, const std::string& path) {
   if (defaults) ObjectNode(*defaults, settings_keys());
 
   const Node problems = top.require("problems");
-  if (!problems.json().is_array() || problems.json().empty()) problems.expected("a non-empty array of problems");
+  if (!problems.json().is_array() || problems.json().empty())
+    problems.expected("a non-empty array of problems");
   for (const Node& entry : problems.elements()) {
     ProblemSpec p = read_problem(entry, defaults, gate, suite);
     for (const ProblemSpec& earlier : suite.problems)
       if (earlier.name == p.name)
-        entry.member("name").fail(fmt::format("found problem name '{}' again (first at {}); expected "
-                                              "distinct problem names", p.name, earlier.pointer));
+        entry.member("name").fail(
+            fmt::format("found problem name '{}' again (first at {}); expected "
+                        "distinct problem names",
+                        p.name, earlier.pointer));
     suite.problems.push_back(std::move(p));
   }
   return suite;

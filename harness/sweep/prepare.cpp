@@ -16,7 +16,7 @@ bool is_linear(ProblemKind k) {
   return k == ProblemKind::least_squares || k == ProblemKind::logistic || k == ProblemKind::softmax;
 }
 
-std::unique_ptr<Problem> build(const ProblemSpec& p, const Dataset* data) {
+std::unique_ptr<Problem> build(const ProblemSpec& p, const Dataset* data, const std::string& where) {
   try {
     switch (p.kind) {
       case ProblemKind::least_squares: return make_least_squares(*data, p.linear);
@@ -26,9 +26,9 @@ std::unique_ptr<Problem> build(const ProblemSpec& p, const Dataset* data) {
       case ProblemKind::test_function: return make_test_function(p.function);
     }
   } catch (const std::invalid_argument& e) {
-    throw InputError(p.pointer, e.what());
+    throw InputError(where, e.what());
   }
-  throw InputError(p.pointer, "unknown problem kind");
+  throw InputError(where, "unknown problem kind");
 }
 
 }  // namespace
@@ -69,18 +69,19 @@ std::map<PreparedKey, PreparedProblem> prepare_problems(const Suite& suite, cons
     if (out.count(key)) continue;
     const ProblemSpec& p = suite.problems[c.problem];
     PreparedProblem prepared;
+    const std::string where = suite.path + "#" + p.pointer;
     if (is_linear(p.kind)) {
       if (!raw.count(p.dataset)) raw.emplace(p.dataset, load_dataset(suite.datasets.at(p.dataset)));
       Dataset data = raw.at(p.dataset);
       apply_scaling(data, suite.scalings.at(c.scaling));
-      prepared.problem = build(p, &data);
+      prepared.problem = build(p, &data, where);
       prepared.map = data.map;
       prepared.dataset = p.dataset;
       prepared.data_sha256 = data.sha256;
       if (p.reference)
-        prepared.reference = align_reference(*p.reference, data, p.linear.intercept, p.pointer + "/reference");
+        prepared.reference = align_reference(*p.reference, data, p.linear.intercept, where + "/reference");
     } else {
-      prepared.problem = build(p, nullptr);
+      prepared.problem = build(p, nullptr, where);
       prepared.map = FeatureMap::identity(0);
     }
     out.emplace(key, std::move(prepared));
