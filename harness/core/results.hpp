@@ -9,6 +9,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "core/gate_tolerances.hpp"
 #include "core/optimizer_spec.hpp"
 #include "core/run_record.hpp"
 
@@ -86,6 +87,7 @@ struct CaseResult {
   CaseSummary summary;
   std::vector<StoredRun> runs;
   std::string error;         ///< non-empty when the case could not be run at all
+  GateTolerances gate;       ///< the gate tolerances in force for this case (suite merged with problem)
 };
 
 struct SuiteInfo {
@@ -109,6 +111,7 @@ struct Results {
   std::vector<CaseResult> cases;
   /// Shard "K/N" when the results are a shard; "" for a whole suite.
   std::string shard;
+  GateTolerances gate;  ///< the suite-level gate section (for rules without a case)
 };
 
 /// Trace thinning on output: keeps iteration 0, log-spaced iterations (`per_decade` per factor

@@ -14,7 +14,7 @@
 #include "core/reference_values.hpp"
 #include "core/results.hpp"
 #include "core/run_settings.hpp"
-#include "problems/problem.hpp"
+#include "run/batch.hpp"  // Problem comes with the runner that executes it
 
 namespace stepgate {
 

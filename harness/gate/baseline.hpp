@@ -1,0 +1,46 @@
+// The baseline: the accepted picture of a suite's safe ranges, kept under references/
+// (default references/<suite>.baseline.json), against which a gate compares new results.
+#pragma once
+#include <string>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+#include "core/results.hpp"
+
+namespace stepgate {
+
+inline constexpr const char* kBaselineFormat = "stepgate.baseline/1";
+
+struct BaselineCase {
+  std::string id;
+  std::string data_sha256;
+  double floor = kMissing, edge = kMissing, edge_lo = kMissing, edge_hi = kMissing;
+  double blowup = kMissing, best_rate = kMissing, best_iterations = kMissing;
+  double pinned = kMissing, pinned_iterations = kMissing, headroom = kMissing;
+  double reference_digits = kMissing;  ///< min LRE
+  double edge_spread = kMissing, precision = kMissing;
+  double predicted_blowup = kMissing;
+};
+
+struct Baseline {
+  std::string format = kBaselineFormat;
+  SuiteInfo suite;
+  ToolInfo tool;
+  HostInfo platform;
+  std::string accepted;   ///< ISO 8601 UTC, when accepted
+  std::string results_started;  ///< when the accepted results were made
+  std::vector<BaselineCase> cases;
+
+  const BaselineCase* find(const std::string& id) const;
+};
+
+/// The baseline that accepting these results would write (cases that failed to run are left out).
+Baseline baseline_from_results(const Results& results, const std::string& accepted_at);
+
+nlohmann::json to_json(const Baseline& b);
+/// Throws InputError naming `path` and the JSON pointer of a bad field.
+Baseline baseline_from_json(const nlohmann::json& j, const std::string& path);
+Baseline read_baseline(const std::string& path);
+
+}  // namespace stepgate

@@ -1,0 +1,49 @@
+// The gate rules (DESIGN.md, "Gate") applied to results and a baseline: one finding per case
+// and rule, and the verdict.
+#pragma once
+#include <string>
+#include <vector>
+
+#include "core/gate_tolerances.hpp"
+#include "core/results.hpp"
+#include "gate/baseline.hpp"
+
+namespace stepgate {
+
+/// The rules, by the names reports and JUnit use.
+enum class Rule {
+  edge_moved,          ///< edge moved beyond tolerance + precision + seed spread       (fail)
+  floor_moved,         ///< floor moved beyond tolerance + precision                     (warn)
+  best_moved,          ///< best rate moved by more than a factor                         (warn)
+  pinned_headroom,     ///< pinned rate outside [floor, edge / min_headroom] or unsafe    (fail)
+  pinned_iterations,   ///< iterations at the pinned rate grew beyond tolerance           (fail)
+  reference_digits,    ///< min LRE below the requirement                                 (fail)
+  theory,              ///< predicted and measured blow-up disagree by more than a factor (fail)
+  case_presence,       ///< case added (warn) or missing (fail); also "could not be run"
+  data_changed,        ///< data or suite SHA-256 differs from the baseline              (warn)
+};
+std::string_view to_string(Rule r);
+
+struct Finding {
+  std::string case_id;
+  Rule rule = Rule::edge_moved;
+  Severity severity = Severity::pass;
+  std::string message;              ///< plain words with both values, e.g. "edge 0.5 -> 0.05 (-90%)"
+  double baseline = kMissing;       ///< the value compared, when there is one
+  double current = kMissing;
+};
+
+struct GateReport {
+  std::vector<Finding> findings;    ///< in case order, then rule order
+  bool pass = true;                 ///< no finding is `fail`
+  int warnings = 0, failures = 0;
+  /// Without a baseline only the rules that need none are applied (pinned, reference, theory).
+  bool had_baseline = false;
+  std::vector<const Finding*> of_case(const std::string& id) const;
+};
+
+/// Applies every rule. `baseline` may be null: then only the baseline-free rules run.
+/// Tolerances come from each case's `gate` (the suite's, merged per problem).
+GateReport apply_gate(const Results& results, const Baseline* baseline);
+
+}  // namespace stepgate

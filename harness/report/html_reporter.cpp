@@ -1,0 +1,194 @@
+// report.html: one self-contained page (no script, no external resource) with the verdict,
+// the scope note, a summary table, the findings, and per case the range bar, the cost plot
+// and the outcome map as inline SVG. Every string from a suite or results is escaped.
+#include <algorithm>
+#include <cmath>
+#include <string>
+#include <vector>
+
+#include <fmt/format.h>
+
+#include "report/html_case_plots.hpp"
+#include "report/html_escape.hpp"
+#include "report/html_style.hpp"
+#include "report/reporter.hpp"
+
+namespace stepgate {
+
+std::string html_number(double v) {
+  if (std::isnan(v)) return "–";
+  return fmt::format("{:.4g}", v);
+}
+
+namespace {
+
+std::string esc(std::string_view s) { return html_escape(s); }
+
+std::string badge(Severity s) {
+  const std::string_view name = to_string(s);
+  return fmt::format("<span class=\"badge {}\">{}</span>", name, name);
+}
+
+// The worst severity among a case's findings; none when the case has no finding.
+const Severity* worst(const std::vector<const Finding*>& fs) {
+  const Severity* w = nullptr;
+  for (const Finding* f : fs)
+    if (!w || static_cast<int>(f->severity) > static_cast<int>(*w)) w = &f->severity;
+  return w;
+}
+
+std::string finding_item(const Finding& f, bool with_case) {
+  std::string out = "<li>" + badge(f.severity);
+  if (with_case) out += "<span class=\"case\">" + esc(f.case_id) + "</span>";
+  out += fmt::format("<span class=\"rule\">{}</span><span>{}</span></li>\n", to_string(f.rule), esc(f.message));
+  return out;
+}
+
+// Fails first, then warnings; passes folded away.
+std::string findings_list(const std::vector<const Finding*>& fs, bool with_case) {
+  std::string out;
+  std::vector<const Finding*> passed;
+  std::string shown;
+  for (Severity s : {Severity::fail, Severity::warn})
+    for (const Finding* f : fs)
+      if (f->severity == s) shown += finding_item(*f, with_case);
+  for (const Finding* f : fs)
+    if (f->severity == Severity::pass) passed.push_back(f);
+  if (!shown.empty()) out += "<ul class=\"findings\">\n" + shown + "</ul>\n";
+  if (!passed.empty()) {
+    out += fmt::format("<details><summary>{} passing check{}</summary>\n<ul class=\"findings\">\n", passed.size(),
+                       passed.size() == 1 ? "" : "s");
+    for (const Finding* f : passed) out += finding_item(*f, with_case);
+    out += "</ul>\n</details>\n";
+  }
+  if (fs.empty()) out += "<p class=\"note\">No finding.</p>\n";
+  return out;
+}
+
+std::string header(const ReportInput& in) {
+  const Results& r = in.results;
+  std::string out = fmt::format("<header>\n<h1>stepgate report: {} <span class=\"badge {}\">verdict: {}</span>{}</h1>\n",
+                                esc(r.suite.name), in.gate.pass ? "pass" : "fail", in.gate.pass ? "pass" : "fail",
+                                in.baseline ? "" : " <span class=\"badge none\">no baseline</span>");
+  out += "<p class=\"meta\">";
+  out += fmt::format("<span>suite <code>{}</code></span>", esc(r.suite.path));
+  out += fmt::format("<span>sha256 <code>{}</code></span>", esc(r.suite.sha256.substr(0, 12)));
+  out += fmt::format("<span>{} case{}</span>", r.cases.size(), r.cases.size() == 1 ? "" : "s");
+  out += fmt::format("<span>{} fail, {} warn</span>", in.gate.failures, in.gate.warnings);
+  if (!r.shard.empty()) out += fmt::format("<span>shard {}</span>", esc(r.shard));
+  out += fmt::format("<span>run {} to {}</span>", esc(r.started), esc(r.finished));
+  out += fmt::format("<span>stepgate {} ({}, {})</span>", esc(r.tool.version), esc(r.tool.compiler), esc(r.tool.build));
+  out += fmt::format("<span>{} {}, {} cores</span>", esc(r.host.os), esc(r.host.machine), r.host.cores);
+  if (in.baseline)
+    out += fmt::format("<span>baseline accepted {}</span>", esc(in.baseline->accepted));
+  else
+    out += "<span>no baseline: only the rules that need none were applied (pinned rate, reference, theory)</span>";
+  out += "</p>\n";
+  out += "<p class=\"scope\">" + esc(scope_warning(r)) + "</p>\n</header>\n";
+  return out;
+}
+
+std::string summary_section(const ReportInput& in) {
+  std::string out =
+      "<section class=\"card\">\n<h2>Summary</h2>\n<table>\n<thead><tr><th>case</th><th>floor</th><th>edge</th>"
+      "<th>best rate</th><th>pinned</th><th>headroom</th><th>ref digits</th><th>worst finding</th></tr></thead>\n<tbody>\n";
+  for (std::size_t i = 0; i < in.results.cases.size(); ++i) {
+    const CaseResult& c = in.results.cases[i];
+    const CaseSummary& s = c.summary;
+    const BaselineCase* b = in.baseline ? in.baseline->find(c.id) : nullptr;
+    auto with_was = [&](double now, double was) {
+      std::string cell = html_number(now);
+      if (b && !(now == was) && !(std::isnan(now) && std::isnan(was)))
+        cell += "<span class=\"was\">was " + html_number(was) + "</span>";
+      return cell;
+    };
+    const Severity* w = worst(in.gate.of_case(c.id));
+    out += fmt::format("<tr><td><a href=\"#case-{}\">{}</a></td>", i + 1, esc(c.id));
+    if (!c.error.empty()) {
+      out += "<td colspan=\"6\" class=\"error\">not run</td>";
+    } else {
+      out += fmt::format("<td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td>",
+                         with_was(s.floor, b ? b->floor : kMissing), with_was(s.edge, b ? b->edge : kMissing),
+                         html_number(s.best_rate), html_number(s.pinned),
+                         std::isnan(s.headroom) ? "–" : html_number(s.headroom) + "×",
+                         s.reference ? html_number(s.reference->lre_min) : "–");
+    }
+    out += fmt::format("<td class=\"sev\">{}</td></tr>\n", w ? badge(*w) : "none");
+  }
+  out += "</tbody>\n</table>\n</section>\n";
+  return out;
+}
+
+std::string findings_section(const ReportInput& in) {
+  std::vector<const Finding*> all;
+  for (const Finding& f : in.gate.findings) all.push_back(&f);
+  return "<section class=\"card\">\n<h2>Findings</h2>\n" + findings_list(all, true) + "</section>\n";
+}
+
+std::string fact(std::string_view name, const std::string& value_html) {
+  return fmt::format("<dt>{}</dt><dd>{}</dd>", name, value_html);
+}
+
+std::string case_section(const ReportInput& in, std::size_t index) {
+  const CaseResult& c = in.results.cases[index];
+  const CaseSummary& s = c.summary;
+  const BaselineCase* b = in.baseline ? in.baseline->find(c.id) : nullptr;
+  const std::vector<const Finding*> fs = in.gate.of_case(c.id);
+  const Severity* w = worst(fs);
+  std::string out = fmt::format("<section class=\"card case\" id=\"case-{}\">\n<h2>{} {}</h2>\n", index + 1, esc(c.id),
+                                w ? badge(*w) : "");
+  out += "<dl class=\"facts\">";
+  out += fact("problem", esc(c.problem) + " (" + esc(c.problem_kind) + ")");
+  out += fact("optimizer", esc(c.optimizer.name()) + " (" + std::string(to_string(c.optimizer.kind)) + ")");
+  out += fact("scaling", esc(c.scaling));
+  out += fact("data", c.dataset.empty() ? "none"
+                                        : esc(c.dataset) + (c.data_sha256.empty() ? "" : " <code>" + esc(c.data_sha256.substr(0, 12)) + "</code>"));
+  out += fact("edge bracket", fmt::format("[{}, {}]", html_number(s.edge_lo), html_number(s.edge_hi)));
+  out += fact("seed spread of edge", html_number(s.edge_spread));
+  out += fact("best iterations", html_number(s.best_iterations));
+  out += fact("pinned iterations", html_number(s.pinned_iterations) +
+                                       (s.pinned_outcome ? " (" + std::string(to_string(*s.pinned_outcome)) + ")" : ""));
+  out += fact("L, μ", html_number(c.theory.L) + ", " + html_number(c.theory.mu) +
+                          (c.theory.method.empty() ? "" : " (" + esc(c.theory.method) + ")"));
+  out += fact("runs, seeds", fmt::format("{}, {}", s.runs, s.seeds.size()));
+  if (s.reference)
+    out += fact("reference", html_number(s.reference->lre_min) + " digits against " + esc(s.reference->source));
+  out += "</dl>\n";
+  if (!c.error.empty()) out += "<p class=\"error\">Could not be run: " + esc(c.error) + "</p>\n";
+  out += "<h3>Findings</h3>\n" + findings_list(fs, false);
+  out += "<h3>Safe range</h3>\n" + range_bar_html(c, b);
+  out += "<h3>Cost per iteration</h3>\n" + cost_plot_html(c);
+  out += "<h3>Outcome of every run</h3>\n" + outcome_map_html(c);
+  out += "</section>\n";
+  return out;
+}
+
+class HtmlReporter final : public Reporter {
+ public:
+  std::string format() const override { return "html"; }
+  std::string file_name() const override { return "report.html"; }
+  std::string render(const ReportInput& in) const override {
+    std::string out = "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n";
+    // Nothing may load or run, even if a string slipped through unescaped.
+    out += "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; style-src 'unsafe-inline'\">\n";
+    out += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n";
+    out += "<title>stepgate: " + esc(in.results.suite.name) + " (" + (in.gate.pass ? "pass" : "fail") + ")</title>\n";
+    out += "<style>";
+    out += html_report_css();
+    out += "</style>\n</head>\n<body>\n<main>\n";
+    out += header(in);
+    out += summary_section(in);
+    out += findings_section(in);
+    for (std::size_t i = 0; i < in.results.cases.size(); ++i) out += case_section(in, i);
+    out += "<footer class=\"note\">Written by stepgate " + esc(in.results.tool.version) +
+           ". A static page: no script, no external resource.</footer>\n";
+    out += "</main>\n</body>\n</html>\n";
+    return out;
+  }
+};
+
+}  // namespace
+
+std::unique_ptr<Reporter> make_html_reporter() { return std::make_unique<HtmlReporter>(); }
+
+}  // namespace stepgate

@@ -1,0 +1,162 @@
+// junit.xml: one <testsuite> per results, one <testcase> per finding (classname = case id,
+// name = rule), so that CI systems show each rule of each case as a test.
+//
+// Choices (JUnit has no "warning"):
+// - a fail finding carries <failure message="..." type="<rule>">message</failure>;
+// - a warn finding passes but carries <system-out>warning: message</system-out>, so the build
+//   stays green while the warning is still visible beside the test;
+// - a case that could not be run carries <error> instead of <failure> (counted in "errors");
+// - a case that got no finding at all (no baseline, no pinned rate, no reference, no theory)
+//   gets one <testcase name="no_rule_applied"> with <skipped>, so that it does not vanish;
+// - "time" is the sum of the wall seconds of the case's runs, given to the case's first
+//   testcase (its other testcases get 0), so that testcase times add up to the suite's time.
+// Nothing else varies between two renderings of the same input: no timestamp, no host name.
+#include <algorithm>
+#include <set>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include <fmt/format.h>
+#include <pugixml.hpp>
+
+#include "report/reporter.hpp"
+
+namespace stepgate {
+
+namespace {
+
+// XML 1.0 cannot carry control characters other than tab, newline and carriage return, not
+// even as character references; pugixml escapes markup but passes these through.
+std::string xml_safe(const std::string& s) {
+  std::string out = s;
+  for (char& ch : out) {
+    const auto u = static_cast<unsigned char>(ch);
+    if (u < 0x20 && ch != '\t' && ch != '\n' && ch != '\r') ch = '?';
+  }
+  return out;
+}
+
+void attr(pugi::xml_node node, const char* name, const std::string& value) {
+  node.append_attribute(name).set_value(xml_safe(value).c_str());
+}
+std::string seconds(double s) { return fmt::format("{:.3f}", s); }
+
+struct Counts {
+  int tests = 0, failures = 0, errors = 0, skipped = 0;
+  double time = 0.0;
+};
+
+void set_counts(pugi::xml_node node, const Counts& n) {
+  attr(node, "tests", std::to_string(n.tests));
+  attr(node, "failures", std::to_string(n.failures));
+  attr(node, "errors", std::to_string(n.errors));
+  attr(node, "skipped", std::to_string(n.skipped));
+  attr(node, "time", seconds(n.time));
+}
+
+double wall_seconds(const CaseResult& c) {
+  double sum = 0.0;
+  for (const StoredRun& r : c.runs) sum += r.record.wall_seconds;
+  return sum;
+}
+
+pugi::xml_node add_testcase(pugi::xml_node suite, const std::string& case_id, const std::string& name, double time) {
+  pugi::xml_node tc = suite.append_child("testcase");
+  attr(tc, "classname", case_id);
+  attr(tc, "name", name);
+  attr(tc, "time", seconds(time));
+  return tc;
+}
+
+void add_finding(pugi::xml_node tc, const Finding& f, bool not_run, Counts& n) {
+  const std::string rule(to_string(f.rule));
+  if (f.severity == Severity::fail) {
+    pugi::xml_node child = tc.append_child(not_run ? "error" : "failure");
+    attr(child, "message", f.message);
+    attr(child, "type", rule);
+    child.text().set(xml_safe(f.message).c_str());
+    ++(not_run ? n.errors : n.failures);
+  } else if (f.severity == Severity::warn) {
+    tc.append_child("system-out").text().set(xml_safe("warning: " + f.message).c_str());
+  }
+}
+
+Counts add_suite(pugi::xml_node root, const ReportInput& in) {
+  const Results& r = in.results;
+  pugi::xml_node suite = root.append_child("testsuite");
+  attr(suite, "name", r.suite.name);
+  pugi::xml_node props = suite.append_child("properties");
+  auto property = [&](const char* name, const std::string& value) {
+    pugi::xml_node p = props.append_child("property");
+    attr(p, "name", name);
+    attr(p, "value", value);
+  };
+  property("suite_sha256", r.suite.sha256);
+  property("tool_version", r.tool.version);
+  property("verdict", in.gate.pass ? "pass" : "fail");
+  property("baseline", in.baseline ? in.baseline->accepted : "none");
+
+  Counts n;
+  auto emit = [&](const std::string& id, const CaseResult* c) {
+    const bool not_run = c && !c->error.empty();
+    double time = c ? wall_seconds(*c) : 0.0;
+    n.time += time;
+    bool any = false;
+    for (const Finding& f : in.gate.findings) {
+      if (f.case_id != id) continue;
+      any = true;
+      pugi::xml_node tc = add_testcase(suite, id, std::string(to_string(f.rule)), time);
+      time = 0.0;
+      ++n.tests;
+      add_finding(tc, f, not_run && f.rule == Rule::case_presence, n);
+    }
+    if (!any) {
+      pugi::xml_node tc = add_testcase(suite, id, "no_rule_applied", time);
+      attr(tc.append_child("skipped"), "message", "no gate rule applied to this case");
+      ++n.tests;
+      ++n.skipped;
+    }
+  };
+  // The order of the findings: ids that are not cases of these results and come before them
+  // (the suite itself), then the cases in order, then ids after them (only in the baseline).
+  std::set<std::string> cases;
+  for (const CaseResult& c : r.cases) cases.insert(c.id);
+  std::vector<std::string> others_before, others_after;
+  bool after = false;
+  for (const Finding& f : in.gate.findings) {
+    if (cases.count(f.case_id)) {
+      after = true;
+      continue;
+    }
+    auto& list = after ? others_after : others_before;
+    if (std::find(list.begin(), list.end(), f.case_id) == list.end()) list.push_back(f.case_id);
+  }
+  for (const std::string& id : others_before) emit(id, nullptr);
+  for (const CaseResult& c : r.cases) emit(c.id, &c);
+  for (const std::string& id : others_after) emit(id, nullptr);
+  set_counts(suite, n);
+  return n;
+}
+
+class JunitReporter final : public Reporter {
+ public:
+  std::string format() const override { return "junit"; }
+  std::string file_name() const override { return "junit.xml"; }
+  std::string render(const ReportInput& in) const override {
+    pugi::xml_document doc;
+    pugi::xml_node root = doc.append_child("testsuites");
+    attr(root, "name", "stepgate");
+    const Counts n = add_suite(root, in);
+    set_counts(root, n);
+    std::ostringstream out;
+    doc.save(out, "  ", pugi::format_default, pugi::encoding_utf8);
+    return out.str();
+  }
+};
+
+}  // namespace
+
+std::unique_ptr<Reporter> make_junit_reporter() { return std::make_unique<JunitReporter>(); }
+
+}  // namespace stepgate

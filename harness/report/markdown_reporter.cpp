@@ -1,0 +1,180 @@
+// report.md: sized for a pull-request comment. The verdict comes first, then only the cases
+// with warn or fail findings (baseline beside current, and the findings' messages), then one
+// compact row per case, then the scope warning.
+#include <cmath>
+#include <map>
+#include <set>
+#include <string>
+
+#include <fmt/format.h>
+
+#include "report/reporter.hpp"
+
+namespace stepgate {
+
+namespace {
+
+constexpr const char* kNone = "–";  // en dash: a value that does not exist
+
+std::string number(double v) { return std::isnan(v) ? kNone : fmt::format("{:.4g}", v); }
+std::string factor(double v) { return std::isnan(v) ? kNone : fmt::format("{:.4g}x", v); }
+std::string edge_with_bracket(double edge, double lo, double hi) {
+  if (std::isnan(edge)) return kNone;
+  if (std::isnan(lo) && std::isnan(hi)) return number(edge);
+  return fmt::format("{} [{}, {}]", number(edge), number(lo), number(hi));
+}
+
+// Suite strings on one line: a newline would end a table row or a list item.
+std::string one_line(const std::string& s) {
+  std::string out;
+  out.reserve(s.size());
+  for (std::size_t i = 0; i < s.size(); ++i) {
+    if (s[i] == '\r' && i + 1 < s.size() && s[i + 1] == '\n') continue;
+    out += s[i] == '\n' || s[i] == '\r' ? ' ' : s[i];
+  }
+  return out;
+}
+// Table cell content: one line, and a pipe escaped so that it does not split the cell.
+std::string cell(const std::string& s) {
+  std::string out;
+  for (char ch : one_line(s)) {
+    if (ch == '|') out += '\\';
+    out += ch;
+  }
+  return out;
+}
+
+Severity worst(const std::vector<const Finding*>& findings) {
+  Severity w = Severity::pass;
+  for (const Finding* f : findings)
+    if (static_cast<int>(f->severity) > static_cast<int>(w)) w = f->severity;
+  return w;
+}
+
+const CaseResult* find_case(const Results& r, const std::string& id) {
+  for (const CaseResult& c : r.cases)
+    if (c.id == id) return &c;
+  return nullptr;
+}
+
+class MarkdownWriter {
+ public:
+  explicit MarkdownWriter(const ReportInput& in) : in_(in) {}
+
+  std::string write() {
+    verdict();
+    details();
+    compact_table();
+    out_ += "\n**Scope.** " + scope_warning(in_.results) + "\n";
+    return std::move(out_);
+  }
+
+ private:
+  // Cases are counted by their worst finding, so "failing" means cases, not findings.
+  void verdict() {
+    std::map<std::string, Severity> by_case;
+    for (const Finding& f : in_.gate.findings) {
+      Severity& w = by_case[f.case_id];
+      if (static_cast<int>(f.severity) > static_cast<int>(w)) w = f.severity;
+    }
+    int failing = 0, warning = 0;
+    for (const auto& [id, s] : by_case) {
+      failing += s == Severity::fail;
+      warning += s == Severity::warn;
+    }
+    const std::string& sha = in_.results.suite.sha256;
+    out_ += fmt::format("**stepgate: {}** — {} failing, {} with warnings, {} cases; suite {} (sha256 {})\n",
+                        in_.gate.pass ? "PASS" : "FAIL", failing, warning, in_.results.cases.size(),
+                        one_line(in_.results.suite.name), sha.empty() ? kNone : sha.substr(0, 12) + "…");
+    if (!in_.baseline)
+      out_ += "\nNo baseline: only the rules that need none were applied (pinned rate, reference digits, "
+              "theory, cases that could not be run).\n";
+  }
+
+  void details() {
+    std::vector<std::string> ids;  // in finding order: cases in results order
+    std::set<std::string> seen;
+    for (const Finding& f : in_.gate.findings)
+      if (f.severity != Severity::pass && seen.insert(f.case_id).second) ids.push_back(f.case_id);
+    if (ids.empty()) return;
+    out_ += "\n### Cases with findings\n";
+    for (const std::string& id : ids) case_detail(id);
+  }
+
+  void case_detail(const std::string& id) {
+    const std::vector<const Finding*> findings = in_.gate.of_case(id);
+    const CaseResult* c = find_case(in_.results, id);
+    const BaselineCase* b = in_.baseline ? in_.baseline->find(id) : nullptr;
+    out_ += fmt::format("\n#### {}: {}\n\n", worst(findings) == Severity::fail ? "FAIL" : "warn", one_line(id));
+    if (c || b) range_table(c, b);
+    int passing = 0;
+    for (const Finding* f : findings) {
+      if (f->severity == Severity::pass) {
+        ++passing;
+        continue;
+      }
+      out_ += fmt::format("- **{}** `{}`: {}\n", to_string(f->severity), to_string(f->rule), one_line(f->message));
+      if (f->rule == Rule::data_changed) both_hashes(c, b);
+    }
+    if (passing > 0) out_ += fmt::format("- {} other rule{} passed\n", passing, passing == 1 ? "" : "s");
+  }
+
+  // Both hashes in full, so that a reviewer can tell which file each run used.
+  void both_hashes(const CaseResult* c, const BaselineCase* b) {
+    const bool suite_level = !c && !b;
+    std::string was = suite_level ? (in_.baseline ? in_.baseline->suite.sha256 : "") : (b ? b->data_sha256 : "");
+    std::string now = suite_level ? in_.results.suite.sha256 : (c ? c->data_sha256 : "");
+    const char* what = suite_level ? "suite" : "data";
+    out_ += fmt::format("  - {} sha256 baseline: `{}`\n", what, was.empty() ? "none" : one_line(was));
+    out_ += fmt::format("  - {} sha256 current:  `{}`\n", what, now.empty() ? "none" : one_line(now));
+  }
+
+  void range_table(const CaseResult* c, const BaselineCase* b) {
+    const CaseSummary* s = c ? &c->summary : nullptr;
+    auto row = [&](const char* what, const std::string& was, const std::string& now) {
+      out_ += fmt::format("| {} | {} | {} |\n", what, was, now);
+    };
+    out_ += "| | baseline | current |\n|---|---|---|\n";
+    row("floor", b ? number(b->floor) : kNone, s ? number(s->floor) : kNone);
+    row("edge [bracket]", b ? edge_with_bracket(b->edge, b->edge_lo, b->edge_hi) : kNone,
+        s ? edge_with_bracket(s->edge, s->edge_lo, s->edge_hi) : kNone);
+    row("best rate", b ? number(b->best_rate) : kNone, s ? number(s->best_rate) : kNone);
+    row("pinned", b ? number(b->pinned) : kNone, s ? number(s->pinned) : kNone);
+    row("headroom", b ? factor(b->headroom) : kNone, s ? factor(s->headroom) : kNone);
+    out_ += "\n";
+  }
+
+  void compact_table() {
+    out_ += "\n### All cases\n\n| case | floor | edge | best | pinned | headroom | ref digits | status |\n"
+            "|---|---|---|---|---|---|---|---|\n";
+    for (const CaseResult& c : in_.results.cases) {
+      const CaseSummary& s = c.summary;
+      std::string status(to_string(worst(in_.gate.of_case(c.id))));
+      if (!c.error.empty()) status += ": not run: " + c.error;
+      out_ += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} |\n", cell(c.id), number(s.floor), number(s.edge),
+                          number(s.best_rate), number(s.pinned), factor(s.headroom),
+                          s.reference ? number(s.reference->lre_min) : kNone, cell(status));
+    }
+    if (!in_.baseline) return;
+    for (const BaselineCase& b : in_.baseline->cases)  // in the baseline, not in these results
+      if (!find_case(in_.results, b.id))
+        out_ += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} |\n", cell(b.id), kNone, kNone, kNone, kNone,
+                            kNone, kNone, cell(std::string(to_string(worst(in_.gate.of_case(b.id)))) + ": missing"));
+  }
+
+  const ReportInput& in_;
+  std::string out_;
+};
+
+class MarkdownReporter final : public Reporter {
+ public:
+  std::string format() const override { return "markdown"; }
+  std::string file_name() const override { return "report.md"; }
+  std::string render(const ReportInput& in) const override { return MarkdownWriter(in).write(); }
+};
+
+}  // namespace
+
+std::unique_ptr<Reporter> make_markdown_reporter() { return std::make_unique<MarkdownReporter>(); }
+
+}  // namespace stepgate

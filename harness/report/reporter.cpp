@@ -1,0 +1,70 @@
+// What every reporter shares: the list of reporters and the scope warning.
+#include "report/reporter.hpp"
+
+#include <set>
+#include <utility>
+
+#include <fmt/format.h>
+
+namespace stepgate {
+
+std::vector<std::unique_ptr<Reporter>> all_reporters() {
+  std::vector<std::unique_ptr<Reporter>> out;
+  out.push_back(make_markdown_reporter());
+  out.push_back(make_html_reporter());
+  out.push_back(make_junit_reporter());
+  return out;
+}
+
+namespace {
+
+// Suite strings go into one line of text: a newline must not break the warning apart.
+std::string one_line(std::string s) {
+  for (char& ch : s)
+    if (ch == '\n' || ch == '\r') ch = ' ';
+  return s;
+}
+
+std::string joined(const std::vector<std::string>& items) {
+  std::string out;
+  for (std::size_t i = 0; i < items.size(); ++i) {
+    if (i > 0) out += i + 1 == items.size() ? " and " : ", ";
+    out += items[i];
+  }
+  return out;
+}
+
+// Distinct values in first-seen order: the warning lists them as the suite does.
+void add_once(std::vector<std::string>& list, std::set<std::string>& seen, std::string item) {
+  if (seen.insert(item).second) list.push_back(std::move(item));
+}
+
+}  // namespace
+
+std::string scope_warning(const Results& results) {
+  std::vector<std::string> data, no_data, scalings, optimizers;
+  std::set<std::string> seen_data, seen_no_data, seen_scalings, seen_optimizers;
+  for (const CaseResult& c : results.cases) {
+    if (!c.dataset.empty()) {
+      const std::string hash =
+          c.data_sha256.empty() ? "generated, no file hash" : "sha256 " + c.data_sha256.substr(0, 12);
+      add_once(data, seen_data, fmt::format("{} ({})", one_line(c.dataset), hash));
+    } else {
+      add_once(no_data, seen_no_data, one_line(c.problem.empty() ? c.id : c.problem));
+    }
+    add_once(scalings, seen_scalings, one_line(c.scaling));
+    add_once(optimizers, seen_optimizers, one_line(c.optimizer.name()));
+  }
+  std::string where;
+  if (!data.empty()) where = "the data sets " + joined(data);
+  if (!no_data.empty())
+    where += (where.empty() ? "" : " and ") + std::string("the problems without data ") + joined(no_data);
+  if (where.empty()) where = "no data set (the suite has no cases)";
+  return fmt::format(
+      "These rates are verified only on {}, with the scalings {} and the optimizers {}; they are not "
+      "verified for any other data (a different file, even with the same name, or the same data in other "
+      "units), nor for other scalings or optimizers.",
+      where, scalings.empty() ? "(none)" : joined(scalings), optimizers.empty() ? "(none)" : joined(optimizers));
+}
+
+}  // namespace stepgate
