@@ -11,6 +11,10 @@ using Args = std::vector<std::string>;
 int run_command(const Args& args);
 int validate_command(const Args& args);
 int plan_command(const Args& args);
+int check_command(const Args& args);
+int report_command(const Args& args);
+int accept_command(const Args& args);
+int merge_command(const Args& args);
 
 /// Parses "K/N" (1 <= K <= N); InputError otherwise.
 std::pair<int, int> parse_shard(const std::string& text);

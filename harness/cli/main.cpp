@@ -14,8 +14,17 @@ namespace {
 constexpr const char* kUsage = R"(usage: stepgate <command> [options]
 
 commands:
-  run SUITE [--out DIR] [--jobs N] [--shard K/N] [--quiet]
-                        run the suite's cases, write DIR/results.json, print the safe ranges
+  run SUITE [--out DIR] [--jobs N] [--baseline FILE] [--shard K/N] [--quiet]
+                        run the suite's cases, write DIR/results.json, print the safe ranges;
+                        with --baseline also the findings, the reports and the gate's exit code
+  check RESULTS --baseline FILE
+                        apply the gate rules; exit 0 pass, 1 fail
+  report RESULTS [--baseline FILE] [--out DIR]
+                        write report.md, report.html and junit.xml
+  accept RESULTS [--baseline FILE] [--record FILE]
+                        write the baseline and add to the verification record
+  merge RESULTS... --out DIR
+                        join the shards of one suite into one results.json
   validate SUITE        parse and check a suite file only
   plan SUITE            list the cases and runs a suite expands to
 
@@ -47,6 +56,10 @@ int main(int argc, char** argv) {
     if (command == "run") return cli::run_command(args);
     if (command == "validate") return cli::validate_command(args);
     if (command == "plan") return cli::plan_command(args);
+    if (command == "check") return cli::check_command(args);
+    if (command == "report") return cli::report_command(args);
+    if (command == "accept") return cli::accept_command(args);
+    if (command == "merge") return cli::merge_command(args);
     throw InputError("command line", fmt::format("unknown command '{}'\n{}", command, kUsage));
   } catch (const InputError& e) {
     std::cerr << "stepgate: error: " << e.what() << "\n";

@@ -59,16 +59,13 @@ json read_json_file(const std::string& path) {
 
 Results read_results(const std::string& path) { return results_from_json(read_json_file(path), path); }
 
-void write_json_atomically(const std::string& path, const json& j) {
+void write_text_atomically(const std::string& path, const std::string& text) {
   const fs::path target(path);
   std::error_code ec;
   if (target.has_parent_path()) {
     fs::create_directories(target.parent_path(), ec);
     if (ec) throw ToolError(fmt::format("cannot create the directory of {}: {}", path, ec.message()));
   }
-  // Invalid UTF-8 in a string (a reason quoting a program's output) becomes U+FFFD rather than
-  // failing a finished sweep at its last step.
-  const std::string text = j.dump(1, ' ', false, json::error_handler_t::replace) + "\n";
   const std::string temp = fmt::format("{}.tmp-{}", path, ::getpid());
   std::FILE* out = std::fopen(temp.c_str(), "wb");
   if (out == nullptr) throw ToolError(fmt::format("cannot write {}: {}", temp, std::strerror(errno)));
@@ -85,6 +82,12 @@ void write_json_atomically(const std::string& path, const json& j) {
     fs::remove(temp, ec);
     throw ToolError(fmt::format("cannot rename {} to {}: {}", temp, path, reason));
   }
+}
+
+void write_json_atomically(const std::string& path, const json& j) {
+  // Invalid UTF-8 in a string (a reason quoting a program's output) becomes U+FFFD rather than
+  // failing a finished sweep at its last step.
+  write_text_atomically(path, j.dump(1, ' ', false, json::error_handler_t::replace) + "\n");
 }
 
 }  // namespace stepgate

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "core/gate_tolerances_json.hpp"
 #include "core/json_fields.hpp"
 #include "core/optimizer_spec_json.hpp"
 
@@ -154,7 +155,8 @@ json to_json(const CaseResult& c, const TraceThinning& t) {
           {"error", c.error},
           {"theory", to_json(c.theory)},
           {"summary", to_json(c.summary)},
-          {"runs", std::move(runs)}};
+          {"runs", std::move(runs)},
+          {"gate", to_json(c.gate)}};
 }
 
 }  // namespace
@@ -175,6 +177,7 @@ json to_json(const Results& r, const TraceThinning& t) {
           {"started", r.started},
           {"finished", r.finished},
           {"shard", r.shard},
+          {"gate", to_json(r.gate)},
           {"cases", std::move(cases)}};
 }
 

@@ -142,6 +142,8 @@ Results results_from_json(const nlohmann::json& j, const std::string& path);
 Results read_results(const std::string& path);
 /// Writes atomically: a temporary file in the same directory, then rename (ToolError on I/O).
 void write_json_atomically(const std::string& path, const nlohmann::json& j);
+/// The same for text (reports, records).
+void write_text_atomically(const std::string& path, const std::string& text);
 /// Reads and parses any JSON file: InputError(path, "cannot read ...") when it cannot be read,
 /// InputError("path:line:column", why) for a syntax error.
 nlohmann::json read_json_file(const std::string& path);

@@ -2,6 +2,7 @@
 // silent about fields it does not (newer writers may add them).
 #include "core/results.hpp"
 
+#include "core/gate_tolerances_json.hpp"
 #include "core/json_fields.hpp"
 #include "core/optimizer_spec_json.hpp"
 
@@ -137,6 +138,7 @@ CaseResult read_case(const JsonField& f) {
   c.data_sha256 = f["data_sha256"].string();
   c.optimum_cost = f["optimum_cost"].number_or_missing();
   c.error = f["error"].string();
+  if (f.has("gate")) c.gate = gate_tolerances_from_json(f["gate"]);
   c.theory = read_theory(f["theory"]);
   c.summary = read_summary(f["summary"]);
   const JsonField runs = f["runs"];
@@ -167,6 +169,7 @@ Results results_from_json(const json& j, const std::string& path) {
   r.started = f["started"].string();
   r.finished = f["finished"].string();
   r.shard = f["shard"].string();
+  if (f.has("gate")) r.gate = gate_tolerances_from_json(f["gate"]);
   const JsonField cases = f["cases"];
   for (std::size_t i = 0; i < cases.array_size(); ++i) r.cases.push_back(read_case(cases[i]));
   return r;

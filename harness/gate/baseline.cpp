@@ -1,8 +1,5 @@
 #include "gate/baseline.hpp"
 
-#include <fstream>
-#include <sstream>
-
 #include "core/error.hpp"
 #include "core/json_fields.hpp"
 
@@ -117,18 +114,6 @@ Baseline baseline_from_json(const json& j, const std::string& path) {
   return b;
 }
 
-Baseline read_baseline(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError(path, "cannot read the baseline file (does it exist? create it with `stepgate accept`)");
-  std::stringstream text;
-  text << in.rdbuf();
-  json j;
-  try {
-    j = json::parse(text.str());
-  } catch (const json::parse_error& e) {
-    throw InputError(path, std::string("not valid JSON: ") + e.what());
-  }
-  return baseline_from_json(j, path);
-}
+Baseline read_baseline(const std::string& path) { return baseline_from_json(read_json_file(path), path); }
 
 }  // namespace stepgate

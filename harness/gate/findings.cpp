@@ -150,10 +150,21 @@ void Gate::theory(const CaseResult& c) {
   double top = 0.0;
   for (const StoredRun& r : c.runs) top = std::max(top, r.record.rate);
   if (std::isnan(measured)) {
+    // Losses that grow only linearly far from the optimum (logistic, softmax) do not blow up
+    // above the threshold: the iteration orbits instead. There the threshold bounds the edge.
+    const double edge = c.summary.edge;
+    if (!std::isnan(edge)) {
+      const double factor = std::max(edge / predicted, predicted / edge);
+      add(c.id, Rule::theory, factor > c.gate.theory_factor ? Severity::fail : Severity::pass,
+          fmt::format("no run diverged up to {}; edge {} vs predicted threshold {} by {} (factor {:.3f}, allowed {:.2f})",
+                      num(top), num(edge), num(predicted), c.theory.rule, factor, c.gate.theory_factor),
+          predicted, edge);
+      return;
+    }
     const bool reachable = predicted * c.gate.theory_factor <= top;
     add(c.id, Rule::theory, reachable ? Severity::fail : Severity::pass,
-        reachable ? fmt::format("theory ({}) predicts blow-up at {}, but no run diverged up to {}", c.theory.rule,
-                                num(predicted), num(top))
+        reachable ? fmt::format("theory ({}) predicts blow-up at {}, but no run diverged up to {} and none converged",
+                                c.theory.rule, num(predicted), num(top))
                   : fmt::format("theory ({}) predicts blow-up at {}, above the highest rate run ({})", c.theory.rule,
                                 num(predicted), num(top)),
         predicted, measured);

@@ -18,7 +18,7 @@ enum class Rule {
   pinned_headroom,     ///< pinned rate outside [floor, edge / min_headroom] or unsafe    (fail)
   pinned_iterations,   ///< iterations at the pinned rate grew beyond tolerance           (fail)
   reference_digits,    ///< min LRE below the requirement                                 (fail)
-  theory,              ///< predicted and measured blow-up disagree by more than a factor (fail)
+  theory,              ///< predicted and measured blow-up (or edge, when nothing blew up) disagree (fail)
   case_presence,       ///< case added (warn) or missing (fail); also "could not be run"
   data_changed,        ///< data or suite SHA-256 differs from the baseline              (warn)
 };

@@ -24,24 +24,34 @@ std::string edge_with_bracket(double edge, double lo, double hi) {
   return fmt::format("{} [{}, {}]", number(edge), number(lo), number(hi));
 }
 
-// Suite strings on one line: a newline would end a table row or a list item.
-std::string one_line(const std::string& s) {
+// Suite strings on one line (a newline would end a table row or a list item), with & and <
+// as character references so that a name cannot open raw HTML (or an entity) in the comment.
+std::string text(const std::string& s) {
   std::string out;
   out.reserve(s.size());
   for (std::size_t i = 0; i < s.size(); ++i) {
     if (s[i] == '\r' && i + 1 < s.size() && s[i + 1] == '\n') continue;
-    out += s[i] == '\n' || s[i] == '\r' ? ' ' : s[i];
+    if (s[i] == '\n' || s[i] == '\r') out += ' ';
+    else if (s[i] == '&') out += "&amp;";
+    else if (s[i] == '<') out += "&lt;";
+    else out += s[i];
   }
   return out;
 }
-// Table cell content: one line, and a pipe escaped so that it does not split the cell.
+// Table cell content: as text, and a pipe escaped so that it does not split the cell.
 std::string cell(const std::string& s) {
   std::string out;
-  for (char ch : one_line(s)) {
+  for (char ch : text(s)) {
     if (ch == '|') out += '\\';
     out += ch;
   }
   return out;
+}
+// Inside a code span (hashes): no references there, only one line.
+std::string code(const std::string& s) {
+  std::string out;
+  for (char ch : s) out += ch == '\n' || ch == '\r' || ch == '`' ? ' ' : ch;
+  return "`" + out + "`";
 }
 
 Severity worst(const std::vector<const Finding*>& findings) {
@@ -65,7 +75,7 @@ class MarkdownWriter {
     verdict();
     details();
     compact_table();
-    out_ += "\n**Scope.** " + scope_warning(in_.results) + "\n";
+    out_ += "\n**Scope.** " + text(scope_warning(in_.results)) + "\n";
     return std::move(out_);
   }
 
@@ -85,7 +95,7 @@ class MarkdownWriter {
     const std::string& sha = in_.results.suite.sha256;
     out_ += fmt::format("**stepgate: {}** — {} failing, {} with warnings, {} cases; suite {} (sha256 {})\n",
                         in_.gate.pass ? "PASS" : "FAIL", failing, warning, in_.results.cases.size(),
-                        one_line(in_.results.suite.name), sha.empty() ? kNone : sha.substr(0, 12) + "…");
+                        text(in_.results.suite.name), sha.empty() ? kNone : sha.substr(0, 12) + "…");
     if (!in_.baseline)
       out_ += "\nNo baseline: only the rules that need none were applied (pinned rate, reference digits, "
               "theory, cases that could not be run).\n";
@@ -105,7 +115,7 @@ class MarkdownWriter {
     const std::vector<const Finding*> findings = in_.gate.of_case(id);
     const CaseResult* c = find_case(in_.results, id);
     const BaselineCase* b = in_.baseline ? in_.baseline->find(id) : nullptr;
-    out_ += fmt::format("\n#### {}: {}\n\n", worst(findings) == Severity::fail ? "FAIL" : "warn", one_line(id));
+    out_ += fmt::format("\n#### {}: {}\n\n", worst(findings) == Severity::fail ? "FAIL" : "warn", text(id));
     if (c || b) range_table(c, b);
     int passing = 0;
     for (const Finding* f : findings) {
@@ -113,7 +123,7 @@ class MarkdownWriter {
         ++passing;
         continue;
       }
-      out_ += fmt::format("- **{}** `{}`: {}\n", to_string(f->severity), to_string(f->rule), one_line(f->message));
+      out_ += fmt::format("- **{}** `{}`: {}\n", to_string(f->severity), to_string(f->rule), text(f->message));
       if (f->rule == Rule::data_changed) both_hashes(c, b);
     }
     if (passing > 0) out_ += fmt::format("- {} other rule{} passed\n", passing, passing == 1 ? "" : "s");
@@ -125,8 +135,8 @@ class MarkdownWriter {
     std::string was = suite_level ? (in_.baseline ? in_.baseline->suite.sha256 : "") : (b ? b->data_sha256 : "");
     std::string now = suite_level ? in_.results.suite.sha256 : (c ? c->data_sha256 : "");
     const char* what = suite_level ? "suite" : "data";
-    out_ += fmt::format("  - {} sha256 baseline: `{}`\n", what, was.empty() ? "none" : one_line(was));
-    out_ += fmt::format("  - {} sha256 current:  `{}`\n", what, now.empty() ? "none" : one_line(now));
+    out_ += fmt::format("  - {} sha256 baseline: {}\n", what, was.empty() ? "none" : code(was));
+    out_ += fmt::format("  - {} sha256 current:  {}\n", what, now.empty() ? "none" : code(now));
   }
 
   void range_table(const CaseResult* c, const BaselineCase* b) {

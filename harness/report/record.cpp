@@ -15,21 +15,25 @@ constexpr const char* kHistory = "## History";
 
 std::string number(double v) { return std::isnan(v) ? kNone : fmt::format("{:.4g}", v); }
 
-// Suite strings on one line (a newline could forge a heading such as "## History"), with
-// pipes escaped for table cells.
-std::string cell(const std::string& s) {
+// Suite strings on one line (a newline could forge a heading such as "## History"), with & and
+// < as character references (no raw HTML from a suite), and pipes escaped in table cells.
+std::string one_line(const std::string& s) {
   std::string out;
   for (char ch : s) {
-    if (ch == '\n' || ch == '\r') ch = ' ';
+    if (ch == '\n' || ch == '\r') out += ' ';
+    else if (ch == '&') out += "&amp;";
+    else if (ch == '<') out += "&lt;";
+    else out += ch;
+  }
+  return out;
+}
+std::string cell(const std::string& s) {
+  std::string out;
+  for (char ch : one_line(s)) {
     if (ch == '|') out += '\\';
     out += ch;
   }
   return out;
-}
-std::string one_line(std::string s) {
-  for (char& ch : s)
-    if (ch == '\n' || ch == '\r') ch = ' ';
-  return s;
 }
 std::string or_none(const std::string& s) { return s.empty() ? kNone : s; }
 
@@ -38,9 +42,11 @@ std::string edge_cell(const BaselineCase& b) {
   return fmt::format("{} [{}, {}]", number(b.edge), number(b.edge_lo), number(b.edge_hi));
 }
 
-std::string data_cell(const CaseResult& c) {
+// The name from the results, the hash from the baseline: the data that was accepted.
+std::string data_cell(const CaseResult& c, const BaselineCase& b) {
   if (c.dataset.empty()) return "no data";
-  return fmt::format("{}, sha256 {}", cell(c.dataset), c.data_sha256.empty() ? "none (generated)" : "`" + cell(c.data_sha256) + "`");
+  if (b.data_sha256.empty()) return fmt::format("{}, sha256 none (generated)", cell(c.dataset));
+  return fmt::format("{}, sha256 `{}`", cell(c.dataset), cell(b.data_sha256));
 }
 
 std::string reference_cell(const CaseResult& c, const BaselineCase& b) {
@@ -76,13 +82,13 @@ std::string render_record_entry(const Results& results, const Baseline& baseline
                                   c.error.empty() ? " (not in the baseline)" : ": could not be run: " + one_line(c.error));
       continue;
     }
-    out += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} | {} |\n", cell(c.id), data_cell(c), number(b->floor),
+    out += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} | {} |\n", cell(c.id), data_cell(c, *b), number(b->floor),
                        edge_cell(*b), number(b->best_rate), number(b->pinned),
                        std::isnan(b->headroom) ? kNone : number(b->headroom) + "x", number(b->blowup),
                        reference_cell(c, *b));
   }
   if (!not_verified.empty()) out += "\n" + not_verified;
-  out += "\n**Scope.** " + scope_warning(results) + "\n";
+  out += "\n**Scope.** " + one_line(scope_warning(results)) + "\n";
   return out;
 }
 

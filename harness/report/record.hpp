@@ -16,6 +16,7 @@ namespace stepgate {
 /// on (data set name and full sha256); cases that could not be run are named as not verified;
 /// then the scope warning. Rates come from `baseline` (what was accepted), names from `results`.
 /// Numbers have 4 significant digits (the baseline file keeps full precision); "–" = none.
+/// Suite strings are put on one line, with & and < written as &amp; and &lt;.
 std::string render_record_entry(const Results& results, const Baseline& baseline);
 
 /// The record text after adding `entry`. An empty (or all-whitespace) record becomes the title

@@ -26,6 +26,7 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
   r.dataset = prepared.dataset;
   r.data_sha256 = prepared.data_sha256;
   r.summary.pinned = c.pinned;
+  r.gate = p.gate;
   try {
     CaseSearchInput in;
     in.case_id = c.id;
@@ -56,6 +57,7 @@ Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& opti
   results.tool = this_tool();
   results.host = this_host();
   results.shard = options.shard;
+  results.gate = suite.gate;
   results.started = utc_now();
 
   const std::map<PreparedKey, PreparedProblem> prepared = prepare_problems(suite, plan);

@@ -18,7 +18,8 @@ TITLE = "stepgate: browser-sample (fail)"
 
 
 class Dom(html.parser.HTMLParser):
-    """Collects tag names, the text content and the <title>."""
+    """Collects tag names, the text content and the document's <title> (the one in <head>;
+    SVG figures have <title> elements of their own for hover text)."""
 
     def __init__(self):
         super().__init__(convert_charrefs=True)
@@ -26,7 +27,7 @@ class Dom(html.parser.HTMLParser):
 
     def handle_starttag(self, tag, attrs):
         self.tags.append(tag)
-        self._in_title = tag == "title"
+        self._in_title = tag == "title" and "body" not in self.tags
 
     def handle_endtag(self, tag):
         self._in_title = False
@@ -56,7 +57,7 @@ def main():
         dom = Dom()
         dom.feed(dump.stdout)
         text = "".join(dom.text)
-        if not dump.stdout.lstrip().lower().startswith("<html"):
+        if "<html" not in dump.stdout[:200].lower():
             failures.append(f"no DOM dumped (exit {dump.returncode}): {dump.stderr[-2000:]}")
         if dom.title != TITLE:
             failures.append(f"title changed: {dom.title!r}, expected {TITLE!r}")

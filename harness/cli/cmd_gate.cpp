@@ -1,0 +1,109 @@
+// stepgate check RESULTS --baseline FILE
+// stepgate report RESULTS [--baseline FILE] [--out DIR]
+// stepgate accept RESULTS [--baseline FILE] [--record FILE]
+// stepgate merge RESULTS... --out DIR
+#include <filesystem>
+#include <fstream>
+#include <iostream>
+#include <sstream>
+
+#include <fmt/format.h>
+
+#include "cli/commands.hpp"
+#include "cli/gate_output.hpp"
+#include "cli/options.hpp"
+#include "core/error.hpp"
+#include "report/record.hpp"
+#include "sweep/merge.hpp"
+
+namespace stepgate::cli {
+
+namespace fs = std::filesystem;
+
+int check_command(const Args& args) {
+  po::options_description opt("check options");
+  opt.add_options()("results", po::value<std::string>()->required(), "results.json")
+      ("baseline", po::value<std::string>()->required(), "accepted baseline (references/SUITE.baseline.json)");
+  po::positional_options_description pos;
+  pos.add("results", 1);
+  const Parsed p = parse_options(args, opt, pos, "stepgate check RESULTS --baseline FILE");
+  if (p.help) return kExitPass;
+  const Results results = read_results(p.vm["results"].as<std::string>());
+  const Baseline baseline = read_baseline(p.vm["baseline"].as<std::string>());
+  const GateReport gate = apply_gate(results, &baseline);
+  print_findings(gate, results);
+  return gate.pass ? kExitPass : kExitFail;
+}
+
+int report_command(const Args& args) {
+  po::options_description opt("report options");
+  opt.add_options()("results", po::value<std::string>()->required(), "results.json")
+      ("baseline", po::value<std::string>(), "accepted baseline to compare with")
+      ("out", po::value<std::string>(), "output folder (default: the folder of RESULTS)");
+  po::positional_options_description pos;
+  pos.add("results", 1);
+  const Parsed p = parse_options(args, opt, pos, "stepgate report RESULTS [--baseline FILE] [--out DIR]");
+  if (p.help) return kExitPass;
+  const std::string path = p.vm["results"].as<std::string>();
+  const Results results = read_results(path);
+  std::optional<Baseline> baseline;
+  if (p.vm.count("baseline")) baseline = read_baseline(p.vm["baseline"].as<std::string>());
+  const GateReport gate = apply_gate(results, baseline ? &*baseline : nullptr);
+  const std::string dir = p.vm.count("out") ? p.vm["out"].as<std::string>() : fs::path(path).parent_path().string();
+  for (const std::string& w : write_reports(dir.empty() ? "." : dir, results, baseline ? &*baseline : nullptr, gate))
+    std::cout << "wrote " << w << "\n";
+  return kExitPass;
+}
+
+int accept_command(const Args& args) {
+  po::options_description opt("accept options");
+  opt.add_options()("results", po::value<std::string>()->required(), "results.json of a whole suite")
+      ("baseline", po::value<std::string>(), "baseline to write (default references/SUITE.baseline.json)")
+      ("record", po::value<std::string>(), "verification record to extend (default reports/SUITE.md)");
+  po::positional_options_description pos;
+  pos.add("results", 1);
+  const Parsed p = parse_options(args, opt, pos, "stepgate accept RESULTS [--baseline FILE] [--record FILE]");
+  if (p.help) return kExitPass;
+  const std::string path = p.vm["results"].as<std::string>();
+  const Results results = read_results(path);
+  if (!results.shard.empty())
+    throw InputError(path, fmt::format("these are the results of shard {}; merge all shards first (stepgate merge)", results.shard));
+  for (const CaseResult& c : results.cases)
+    if (!c.error.empty())
+      throw InputError(path, fmt::format("case {} could not be run ({}); a baseline needs every case", c.id, c.error));
+  const std::string name = results.suite.name;
+  const std::string baseline_path = p.vm.count("baseline") ? p.vm["baseline"].as<std::string>() : "references/" + name + ".baseline.json";
+  const std::string record_path = p.vm.count("record") ? p.vm["record"].as<std::string>() : "reports/" + name + ".md";
+  const Baseline baseline = baseline_from_results(results, utc_now());
+  std::string existing;
+  if (std::ifstream in(record_path); in) {
+    std::stringstream text;
+    text << in.rdbuf();
+    existing = text.str();
+  }
+  write_json_atomically(baseline_path, to_json(baseline));
+  write_text_atomically(record_path, append_record(existing, name, render_record_entry(results, baseline)));
+  std::cout << fmt::format("accepted {} cases of suite '{}'\n  baseline: {}\n  record:   {}\n", baseline.cases.size(), name,
+                           baseline_path, record_path);
+  return kExitPass;
+}
+
+int merge_command(const Args& args) {
+  po::options_description opt("merge options");
+  opt.add_options()("results", po::value<std::vector<std::string>>()->required()->multitoken(), "shard results.json files")
+      ("out", po::value<std::string>()->required(), "output folder for the merged results.json");
+  po::positional_options_description pos;
+  pos.add("results", -1);
+  const Parsed p = parse_options(args, opt, pos, "stepgate merge RESULTS... --out DIR");
+  if (p.help) return kExitPass;
+  const auto paths = p.vm["results"].as<std::vector<std::string>>();
+  std::vector<Results> shards;
+  for (const std::string& path : paths) shards.push_back(read_results(path));
+  const Results merged = merge_shards(std::move(shards), paths);
+  const std::string out = (fs::path(p.vm["out"].as<std::string>()) / "results.json").string();
+  write_json_atomically(out, to_json(merged));
+  std::cout << fmt::format("merged {} shards ({} cases) into {}\n", paths.size(), merged.cases.size(), out);
+  return kExitPass;
+}
+
+}  // namespace stepgate::cli
