@@ -162,6 +162,14 @@ json to_json(const CaseResult& c, const TraceThinning& t) {
 }  // namespace
 
 json to_json(const Results& r, const TraceThinning& t) {
+  json datasets = json::array();
+  for (const DatasetInfo& d : r.datasets) {
+    json stats = json::array();
+    for (const DatasetInfo::Column& c : d.stats)
+      stats.push_back({{"name", c.name}, {"mean", finite_or_null(c.mean)}, {"sd", finite_or_null(c.sd)}});
+    datasets.push_back({{"name", d.name}, {"source", d.source}, {"sha256", d.sha256}, {"rows", d.rows},
+                        {"columns", d.columns}, {"stats", std::move(stats)}});
+  }
   json cases = json::array();
   for (const CaseResult& c : r.cases) cases.push_back(to_json(c, t));
   // The format written is always this build's: r.format only records what was read.
@@ -178,6 +186,7 @@ json to_json(const Results& r, const TraceThinning& t) {
           {"finished", r.finished},
           {"shard", r.shard},
           {"gate", to_json(r.gate)},
+          {"datasets", std::move(datasets)},
           {"cases", std::move(cases)}};
 }
 

@@ -90,6 +90,19 @@ struct CaseResult {
   GateTolerances gate;       ///< the gate tolerances in force for this case (suite merged with problem)
 };
 
+/// A data set as loaded (before scaling): where it came from and what it held.
+struct DatasetInfo {
+  struct Column {
+    std::string name;
+    double mean = kMissing, sd = kMissing;  ///< sd: sample standard deviation (n − 1)
+  };
+  std::string name;
+  std::string source;   ///< file path(s) as resolved, or "generated"
+  std::string sha256;   ///< of the file's bytes; "" for generated data
+  long rows = 0, columns = 0;
+  std::vector<Column> stats;  ///< per feature, then the target
+};
+
 struct SuiteInfo {
   std::string name, path, sha256;
 };
@@ -112,6 +125,7 @@ struct Results {
   /// Shard "K/N" when the results are a shard; "" for a whole suite.
   std::string shard;
   GateTolerances gate;  ///< the suite-level gate section (for rules without a case)
+  std::vector<DatasetInfo> datasets;  ///< every data set the cases used
 };
 
 /// Trace thinning on output: keeps iteration 0, log-spaced iterations (`per_decade` per factor

@@ -170,6 +170,23 @@ Results results_from_json(const json& j, const std::string& path) {
   r.finished = f["finished"].string();
   r.shard = f["shard"].string();
   if (f.has("gate")) r.gate = gate_tolerances_from_json(f["gate"]);
+  if (f.has("datasets")) {
+    const JsonField datasets = f["datasets"];
+    for (std::size_t i = 0; i < datasets.array_size(); ++i) {
+      const JsonField d = datasets[i];
+      DatasetInfo info;
+      info.name = d["name"].string();
+      info.source = d["source"].string();
+      info.sha256 = d["sha256"].string();
+      info.rows = d["rows"].integer<long>();
+      info.columns = d["columns"].integer<long>();
+      const JsonField stats = d["stats"];
+      for (std::size_t k = 0; k < stats.array_size(); ++k)
+        info.stats.push_back({stats[k]["name"].string(), stats[k]["mean"].number_or_missing(),
+                              stats[k]["sd"].number_or_missing()});
+      r.datasets.push_back(std::move(info));
+    }
+  }
   const JsonField cases = f["cases"];
   for (std::size_t i = 0; i < cases.array_size(); ++i) r.cases.push_back(read_case(cases[i]));
   return r;

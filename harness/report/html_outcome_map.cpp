@@ -39,7 +39,7 @@ char outcome_letter(Outcome o) {
 namespace {
 
 constexpr double kLeft = 70, kTop = 22, kRowHeight = 20, kRight = 12;
-constexpr double kMaxGridWidth = 860;
+constexpr double kMaxGridWidth = 850;
 
 // Where two runs share a rate and a seed (a grid rate asked again by the bracketing), the
 // cell shows the worse outcome: what a gate would have to assume.
@@ -61,7 +61,7 @@ std::string outcome_map_html(const CaseResult& c) {
   if (rate_set.empty()) return "<p class=\"note\">No run.</p>\n";
   const std::vector<double> rates(rate_set.begin(), rate_set.end());
   const std::vector<long> seeds(seed_set.begin(), seed_set.end());
-  const double cw = std::clamp(kMaxGridWidth / static_cast<double>(rates.size()), 13.0, 26.0);
+  const double cw = std::clamp(kMaxGridWidth / static_cast<double>(rates.size()), 11.0, 26.0);
   const double grid_w = cw * static_cast<double>(rates.size());
   const double grid_h = kRowHeight * static_cast<double>(seeds.size());
   const double label_h = 58;  // rotated rate labels under the grid
@@ -76,6 +76,8 @@ std::string outcome_map_html(const CaseResult& c) {
   auto col_x = [&](std::size_t j) { return kLeft + cw * static_cast<double>(j); };
 
   std::string out = "<figure class=\"outmap\">\n<div class=\"scroll\">\n";
+  // The letters go in one group after the cells, so their shared attributes are written once.
+  std::string letters = fmt::format("<g class=\"cellletter\" font-size=\"{}\" text-anchor=\"middle\">\n", letter_size);
   out += svg::open(width, height, "outcome of every run of " + c.id + " by rate and seed", "plot");
   for (std::size_t i = 0; i < seeds.size(); ++i) {
     const double ty = kTop + kRowHeight * static_cast<double>(i);
@@ -93,11 +95,11 @@ std::string outcome_map_html(const CaseResult& c) {
       if (!r.reason.empty()) title += " — " + r.reason;
       out += svg::rect_titled(col_x(j) + 0.5, ty + 0.5, cw - 1, kRowHeight - 1,
                               fmt::format("fill=\"{}\"", outcome_colour(r.outcome)), title);
-      out += svg::text(col_x(j) + cw / 2, ty + 14, std::string(1, outcome_letter(r.outcome)),
-                       fmt::format("class=\"cellletter{}\" font-size=\"{}\" text-anchor=\"middle\"",
-                                   r.outcome == Outcome::slow ? " dark" : "", letter_size));
+      letters += svg::text(col_x(j) + cw / 2, ty + 14, std::string(1, outcome_letter(r.outcome)),
+                           r.outcome == Outcome::slow ? "class=\"dark\"" : "");
     }
   }
+  out += letters + "</g>\n";
   // The case's safe range [floor, edge] outlined across all seeds, and the pinned column.
   const CaseSummary& s = c.summary;
   auto first_at_or_above = [&](double v) {

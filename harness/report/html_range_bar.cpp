@@ -2,6 +2,7 @@
 // pinned rate and the blow-up sit, on one log-rate axis, so that a shift shows at a glance.
 #include <algorithm>
 #include <cmath>
+#include <utility>
 #include <vector>
 
 #include <fmt/format.h>
@@ -14,11 +15,12 @@ namespace stepgate {
 
 namespace {
 
-constexpr double kWidth = 960, kHeight = 112;
+constexpr double kWidth = 960, kHeight = 124;
 constexpr double kLeft = 78, kRight = 24;            // room for the row labels
-constexpr double kBaseTop = 22, kBaseHeight = 10;    // baseline band (outlined, thinner)
-constexpr double kNowTop = 38, kNowHeight = 22;      // current band (filled)
-constexpr double kAxisY = 84;
+constexpr double kLabelRows[] = {10, 22};            // baselines of the two marker-label rows
+constexpr double kBaseTop = 32, kBaseHeight = 10;    // baseline band (outlined, thinner)
+constexpr double kNowTop = 48, kNowHeight = 22;      // current band (filled)
+constexpr double kAxisY = 96;
 
 bool positive(double v) { return std::isfinite(v) && v > 0.0; }
 
@@ -30,10 +32,36 @@ void band(std::string& out, const svg::LogScale& x, double floor, double edge, d
   out += svg::rect(x0, top, std::max(2.0, x1 - x0), height, attrs);
 }
 
-void marker(std::string& out, double px, std::string_view cls, std::string_view label, bool label_left) {
-  out += svg::line(px, 12, px, kAxisY, fmt::format("class=\"{}\"", cls));
-  out += svg::text(label_left ? px - 3 : px + 3, 10, label,
-                   fmt::format("class=\"mlabel {}\" text-anchor=\"{}\"", cls, label_left ? "end" : "start"));
+// Marker labels: each takes the first free place among (top row, right of its line), (top
+// row, left), (second row, right), (second row, left) that stays inside the figure, so that
+// close markers do not print over each other.
+class LabelPlacer {
+ public:
+  void place(std::string& out, double px, std::string_view cls, std::string_view label) {
+    const double width = 6.8 * static_cast<double>(label.size()) + 4;  // about 11.5px bold text
+    for (int row = 0; row < 2; ++row)
+      for (bool left : {false, true}) {
+        const double x0 = left ? px - width : px, x1 = left ? px : px + width;
+        if (x0 < 0 || x1 > kWidth || collides(row, x0, x1)) continue;
+        taken_[row].push_back({x0, x1});
+        out += svg::text(left ? px - 3 : px + 3, kLabelRows[row], label,
+                         fmt::format("class=\"mlabel {}\" text-anchor=\"{}\"", cls, left ? "end" : "start"));
+        return;
+      }
+  }
+
+ private:
+  bool collides(int row, double x0, double x1) const {
+    for (const auto& [a, b] : taken_[row])
+      if (x0 < b && a < x1) return true;
+    return false;
+  }
+  std::vector<std::pair<double, double>> taken_[2];
+};
+
+void marker(std::string& out, LabelPlacer& labels, double px, std::string_view cls, std::string_view label) {
+  out += svg::line(px, kLabelRows[0] + 2, px, kAxisY, fmt::format("class=\"{}\"", cls));
+  labels.place(out, px, cls, label);
 }
 
 }  // namespace
@@ -79,12 +107,11 @@ std::string range_bar_html(const CaseResult& c, const BaselineCase* base) {
   }
   if (positive(s.best_rate))
     out += svg::line(x(s.best_rate), kNowTop + 3, x(s.best_rate), kNowTop + kNowHeight - 3, "class=\"best\"");
-  // Markers: blow-up labels on the top line, left/right of their lines so that two close
-  // values do not print over each other; the pinned rate is labelled under the bands.
+  // Markers: blow-up labels above the bands, the pinned rate's under them.
   const double predicted = c.theory.predicted_blowup, measured = s.blowup;
-  const bool both = positive(predicted) && positive(measured);
-  if (positive(predicted)) marker(out, x(predicted), "m-pred", "predicted blow-up", !both || predicted <= measured);
-  if (positive(measured)) marker(out, x(measured), "m-blow", "blow-up", both && measured < predicted);
+  LabelPlacer labels;
+  if (positive(measured)) marker(out, labels, x(measured), "m-blow", "blow-up");
+  if (positive(predicted)) marker(out, labels, x(predicted), "m-pred", "predicted blow-up");
   if (positive(s.pinned)) {
     const double px = x(s.pinned);
     out += svg::line(px, kNowTop - 4, px, kAxisY, "class=\"m-pin\"");

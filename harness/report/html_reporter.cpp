@@ -54,10 +54,12 @@ std::string findings_list(const std::vector<const Finding*>& fs, bool with_case)
       if (f->severity == s) shown += finding_item(*f, with_case);
   for (const Finding* f : fs)
     if (f->severity == Severity::pass) passed.push_back(f);
-  if (!shown.empty()) out += "<ul class=\"findings\">\n" + shown + "</ul>\n";
+  const std::string list = with_case ? "<ul class=\"findings with-case\">\n" : "<ul class=\"findings\">\n";
+  if (!shown.empty()) out += list + shown + "</ul>\n";
   if (!passed.empty()) {
-    out += fmt::format("<details><summary>{} passing check{}</summary>\n<ul class=\"findings\">\n", passed.size(),
+    out += fmt::format("<details><summary>{} passing check{}</summary>\n", passed.size(),
                        passed.size() == 1 ? "" : "s");
+    out += list;
     for (const Finding* f : passed) out += finding_item(*f, with_case);
     out += "</ul>\n</details>\n";
   }
@@ -76,9 +78,10 @@ std::string header(const ReportInput& in) {
   out += fmt::format("<span>{} case{}</span>", r.cases.size(), r.cases.size() == 1 ? "" : "s");
   out += fmt::format("<span>{} fail, {} warn</span>", in.gate.failures, in.gate.warnings);
   if (!r.shard.empty()) out += fmt::format("<span>shard {}</span>", esc(r.shard));
-  out += fmt::format("<span>run {} to {}</span>", esc(r.started), esc(r.finished));
+  if (!r.started.empty()) out += fmt::format("<span>run {} to {}</span>", esc(r.started), esc(r.finished));
   out += fmt::format("<span>stepgate {} ({}, {})</span>", esc(r.tool.version), esc(r.tool.compiler), esc(r.tool.build));
-  out += fmt::format("<span>{} {}, {} cores</span>", esc(r.host.os), esc(r.host.machine), r.host.cores);
+  if (!r.host.os.empty())
+    out += fmt::format("<span>{} {}, {} cores</span>", esc(r.host.os), esc(r.host.machine), r.host.cores);
   if (in.baseline)
     out += fmt::format("<span>baseline accepted {}</span>", esc(in.baseline->accepted));
   else

@@ -11,7 +11,7 @@ body { margin:0; background:var(--bg); color:var(--ink);
        font:14px/1.45 system-ui, -apple-system, "Segoe UI", Roboto, "DejaVu Sans", sans-serif; }
 main { max-width:1040px; margin:0 auto; padding:24px 28px 60px; }
 h1 { font-size:24px; margin:0 0 6px; display:flex; align-items:center; gap:12px; flex-wrap:wrap; }
-h2 { font-size:18px; margin:0 0 10px; display:flex; align-items:center; gap:10px; flex-wrap:wrap; word-break:break-all; }
+h2 { font-size:18px; margin:0 0 10px; display:flex; align-items:center; gap:10px; flex-wrap:wrap; overflow-wrap:anywhere; }
 h3 { font-size:14px; margin:18px 0 6px; color:var(--muted); text-transform:uppercase; letter-spacing:.04em; }
 code, .mono { font-family:"DejaVu Sans Mono", Menlo, Consolas, monospace; font-size:12.5px; }
 .meta { color:var(--muted); margin:0 0 14px; }
@@ -25,19 +25,21 @@ code, .mono { font-family:"DejaVu Sans Mono", Menlo, Consolas, monospace; font-s
 table { border-collapse:collapse; width:100%; }
 th, td { padding:5px 8px; border-bottom:1px solid var(--line); text-align:right; white-space:nowrap; }
 th { font-size:12px; color:var(--muted); font-weight:600; }
-th:first-child, td:first-child { text-align:left; white-space:normal; word-break:break-all; }
+th:first-child, td:first-child { text-align:left; white-space:normal; overflow-wrap:anywhere; }
 td.sev { text-align:center; }
 tbody tr:hover { background:#f3f5f9; }
 a { color:var(--now); text-decoration:none; } a:hover { text-decoration:underline; }
 .was { color:var(--muted); font-size:12px; margin-left:4px; }
 ul.findings { list-style:none; padding:0; margin:6px 0; }
-ul.findings li { padding:5px 0; border-bottom:1px solid var(--line); display:flex; gap:10px; align-items:baseline; }
-ul.findings li .badge { min-width:44px; text-align:center; font-size:11.5px; }
-ul.findings .rule { color:var(--muted); font-size:12.5px; min-width:130px; }
-ul.findings .case { font-weight:600; word-break:break-all; }
+ul.findings li { padding:5px 0; border-bottom:1px solid var(--line); display:grid; gap:10px; align-items:baseline;
+                 grid-template-columns:48px 130px 1fr; }
+ul.findings.with-case li { grid-template-columns:48px minmax(180px, 30%) 130px 1fr; }
+ul.findings li .badge { text-align:center; font-size:11.5px; padding:2px 0; }
+ul.findings .rule { color:var(--muted); font-size:12.5px; }
+ul.findings .case { font-weight:600; overflow-wrap:anywhere; }
 details summary { cursor:pointer; color:var(--muted); padding:6px 0; }
 dl.facts { display:grid; grid-template-columns:max-content 1fr max-content 1fr; gap:2px 14px; margin:0; }
-dl.facts dt { color:var(--muted); } dl.facts dd { margin:0; word-break:break-all; }
+dl.facts dt { color:var(--muted); } dl.facts dd { margin:0; overflow-wrap:anywhere; }
 .error { color:var(--fail); font-weight:600; }
 .note { color:var(--muted); font-size:12.5px; margin:4px 0; }
 figure { margin:4px 0 10px; }
@@ -71,7 +73,7 @@ svg.plot { display:block; max-width:100%; height:auto; font-family:inherit; }
 .xmark { color:var(--fail); font-weight:700; }
 .legline { stroke-width:3; } .legtext { font-size:11.5px; fill:var(--ink); } .legtitle { font-size:11.5px; fill:var(--muted); }
 .cell-none { fill:#fff; stroke:#e3e5ea; }
-.cellletter { fill:#fff; font-weight:700; pointer-events:none; } .cellletter.dark { fill:#3d3520; }
+.cellletter { fill:#fff; font-weight:700; pointer-events:none; } .cellletter .dark { fill:#3d3520; }
 .safe-outline { fill:none; stroke:var(--ink); stroke-width:2; rx:2; }
 .safe-label { fill:var(--ink); }
 )css";

@@ -66,7 +66,8 @@ std::string rect_titled(double x, double y, double w, double h, std::string_view
 }
 
 std::string text(double x, double y, std::string_view content, std::string_view attrs) {
-  return fmt::format("<text x=\"{}\" y=\"{}\" {}>{}</text>\n", num(x), num(y), attrs, html_escape(content));
+  return fmt::format("<text x=\"{}\" y=\"{}\"{}{}>{}</text>\n", num(x), num(y), attrs.empty() ? "" : " ", attrs,
+                     html_escape(content));
 }
 
 std::string polyline(const std::vector<double>& xs, const std::vector<double>& ys, std::string_view attrs) {
@@ -118,18 +119,26 @@ Triple srgb_from_oklab(const Triple& c) {
           to_srgb(-0.0041960863 * l - 0.7034186147 * m + 1.7076147010 * q)};
 }
 
+// Lightness, chroma, hue (radians) of an OKLab colour.
+Triple lch(const Triple& lab) { return {lab[0], std::hypot(lab[1], lab[2]), std::atan2(lab[2], lab[1])}; }
+
 }  // namespace
 
 std::string sequential_colour(double t) {
   // Light amber (#e9b949) to deep indigo (#2b1d6b): light enough to read as "low", dark enough
-  // at the top, and both distinct from the outcome colours' red.
-  static const Triple light = oklab_from_srgb({0xe9 / 255.0, 0xb9 / 255.0, 0x49 / 255.0});
-  static const Triple dark = oklab_from_srgb({0x2b / 255.0, 0x1d / 255.0, 0x6b / 255.0});
+  // at the top. Lightness and chroma are interpolated linearly and the hue along the shorter
+  // arc (through coral and magenta), so the middle keeps its colour instead of turning grey.
+  static const Triple light = lch(oklab_from_srgb({0xe9 / 255.0, 0xb9 / 255.0, 0x49 / 255.0}));
+  static const Triple dark = lch(oklab_from_srgb({0x2b / 255.0, 0x1d / 255.0, 0x6b / 255.0}));
   if (!std::isfinite(t)) t = 0.0;
   t = std::clamp(t, 0.0, 1.0);
-  Triple mix;
-  for (int i = 0; i < 3; ++i) mix[i] = light[i] + t * (dark[i] - light[i]);
-  const Triple s = srgb_from_oklab(mix);
+  constexpr double kPi = 3.14159265358979323846;
+  double dh = dark[2] - light[2];
+  if (dh > kPi) dh -= 2 * kPi;
+  if (dh < -kPi) dh += 2 * kPi;
+  const double l = light[0] + t * (dark[0] - light[0]), c = light[1] + t * (dark[1] - light[1]);
+  const double h = light[2] + t * dh;
+  const Triple s = srgb_from_oklab({l, c * std::cos(h), c * std::sin(h)});
   auto byte = [](double c) { return static_cast<int>(std::lround(c * 255.0)); };
   return fmt::format("#{:02x}{:02x}{:02x}", byte(s[0]), byte(s[1]), byte(s[2]));
 }

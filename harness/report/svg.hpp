@@ -48,9 +48,9 @@ std::string polyline(const std::vector<double>& xs, const std::vector<double>& y
 std::string cross(double x, double y, double r, std::string_view attrs);
 
 /// The sequential palette for rates: t in [0, 1] from light (low rate) to dark (high rate),
-/// interpolated in the OKLab space (Ottosson 2020, "A perceptual color space for image
-/// processing") between a light amber and a deep indigo, so equal steps of t look like equal
-/// steps. Returns "#rrggbb".
+/// interpolated in OKLCh (the polar form of OKLab: Ottosson 2020, "A perceptual color space for
+/// image processing") from a light amber through coral and magenta to a deep indigo, so that
+/// equal steps of t look like about equal steps. Out-of-gamut mixes are clipped. Returns "#rrggbb".
 std::string sequential_colour(double t);
 
 }  // namespace stepgate::svg

@@ -1,8 +1,10 @@
 #include "sweep/prepare.hpp"
 
+#include <cmath>
 #include <set>
 
 #include "core/error.hpp"
+#include "data/column_stats.hpp"
 #include "data/scaling.hpp"
 #include "problems/linear_models.hpp"
 #include "problems/quadratic.hpp"
@@ -61,9 +63,27 @@ ReferenceValues align_reference(const ReferenceValues& ref, const Dataset& data,
   return out;
 }
 
-std::map<PreparedKey, PreparedProblem> prepare_problems(const Suite& suite, const Plan& plan) {
+static DatasetInfo describe(const DatasetSpec& spec, const Dataset& d) {
+  DatasetInfo info;
+  info.name = spec.name;
+  info.source = spec.source == DatasetSpec::Source::generated ? "generated"
+                : spec.source == DatasetSpec::Source::idx     ? spec.path + " + " + spec.labels_path
+                                                              : spec.path;
+  info.sha256 = d.sha256;
+  info.rows = static_cast<long>(d.rows());
+  info.columns = static_cast<long>(d.cols());
+  for (const ColumnStats& c : column_stats(d)) info.stats.push_back({c.name, c.mean, c.sd});
+  const double n = static_cast<double>(d.rows());
+  const double mean = d.y.mean();
+  const double sd = n > 1 ? std::sqrt((d.y.array() - mean).square().sum() / (n - 1)) : kMissing;
+  info.stats.push_back({d.target, mean, sd});
+  return info;
+}
+
+PreparedSweep prepare_problems(const Suite& suite, const Plan& plan) {
   std::map<std::string, Dataset> raw;  // loaded once per dataset
-  std::map<PreparedKey, PreparedProblem> out;
+  PreparedSweep sweep;
+  std::map<PreparedKey, PreparedProblem>& out = sweep.problems;
   for (const PlannedCase& c : plan.cases) {
     const PreparedKey key{c.problem, c.scaling};
     if (out.count(key)) continue;
@@ -71,7 +91,11 @@ std::map<PreparedKey, PreparedProblem> prepare_problems(const Suite& suite, cons
     PreparedProblem prepared;
     const std::string where = suite.path + "#" + p.pointer;
     if (is_linear(p.kind)) {
-      if (!raw.count(p.dataset)) raw.emplace(p.dataset, load_dataset(suite.datasets.at(p.dataset)));
+      if (!raw.count(p.dataset)) {
+        const DatasetSpec& spec = suite.datasets.at(p.dataset);
+        const Dataset& d = raw.emplace(p.dataset, load_dataset(spec)).first->second;
+        sweep.datasets.push_back(describe(spec, d));
+      }
       Dataset data = raw.at(p.dataset);
       apply_scaling(data, suite.scalings.at(c.scaling));
       prepared.problem = build(p, &data, where);
@@ -86,7 +110,7 @@ std::map<PreparedKey, PreparedProblem> prepare_problems(const Suite& suite, cons
     }
     out.emplace(key, std::move(prepared));
   }
-  return out;
+  return sweep;
 }
 
 }  // namespace stepgate

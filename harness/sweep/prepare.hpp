@@ -8,6 +8,7 @@
 #include <utility>
 
 #include "core/reference_values.hpp"
+#include "core/results.hpp"
 #include "problems/problem.hpp"
 #include "suite/suite.hpp"
 #include "sweep/plan.hpp"
@@ -24,9 +25,14 @@ struct PreparedProblem {
 
 using PreparedKey = std::pair<std::size_t, std::string>;  ///< (problem index, scaling)
 
+struct PreparedSweep {
+  std::map<PreparedKey, PreparedProblem> problems;
+  std::vector<DatasetInfo> datasets;  ///< each data set used, as loaded, in first-use order
+};
+
 /// Prepares every (problem, scaling) the plan uses. Throws InputError for bad data (a missing
 /// column, a constant column under standardize, reference names that match no feature, ...).
-std::map<PreparedKey, PreparedProblem> prepare_problems(const Suite& suite, const Plan& plan);
+PreparedSweep prepare_problems(const Suite& suite, const Plan& plan);
 
 /// The suite's reference values put in the order of the parameters: the data set's features,
 /// then "intercept" when the model has one (also accepted as "constant" or "const").

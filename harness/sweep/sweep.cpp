@@ -60,7 +60,9 @@ Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& opti
   results.gate = suite.gate;
   results.started = utc_now();
 
-  const std::map<PreparedKey, PreparedProblem> prepared = prepare_problems(suite, plan);
+  const PreparedSweep prepared_sweep = prepare_problems(suite, plan);
+  const std::map<PreparedKey, PreparedProblem>& prepared = prepared_sweep.problems;
+  results.datasets = prepared_sweep.datasets;
   const int jobs = options.jobs > 0 ? options.jobs
                                     : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   results.host.jobs = jobs;

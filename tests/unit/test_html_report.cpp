@@ -169,12 +169,22 @@ TEST_CASE("report.html escapes every suite string and loads nothing", "[html]") 
 }
 
 TEST_CASE("report.html without a baseline says so and still draws every case", "[html]") {
-  const Results results = make_results();
+  Results results = make_results();
+  const GateReport clean = apply_gate(results, nullptr);
+  const std::string first = make_html_reporter()->render({results, nullptr, clean});
+  CHECK(first.find(clean.pass ? "verdict: pass" : "verdict: fail") != std::string::npos);
+  // A case that could not be run: its error shows (escaped), and it fails the verdict.
+  CaseResult broken;
+  broken.id = "broken/none/gd";
+  broken.error = "command <exit 3>";
+  results.cases.push_back(broken);
   const GateReport gate = apply_gate(results, nullptr);
   const std::string html = make_html_reporter()->render({results, nullptr, gate});
   CHECK(html.find("no baseline") != std::string::npos);
-  CHECK(html.find(gate.pass ? "verdict: pass" : "verdict: fail") != std::string::npos);
-  CHECK(count(html, "<svg ") == 3 * results.cases.size());
+  CHECK(html.find("verdict: fail") != std::string::npos);
+  CHECK(html.find("Could not be run: command &lt;exit 3&gt;") != std::string::npos);
+  CHECK(html.find("No rate to show.") != std::string::npos);
+  CHECK(count(html, "<svg ") == 3 * (results.cases.size() - 1));
   CHECK(html.find("class=\"band-base\"") == std::string::npos);
   CHECK(html.find("class=\"band-now\"") != std::string::npos);
 }

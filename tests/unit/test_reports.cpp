@@ -342,7 +342,7 @@ TEST_CASE("reports: JUnit counts and messages, read by pugixml and by Python's E
 TEST_CASE("reports: JUnit marks a case that could not be run as an error, one without rules as skipped", "[reports]") {
   Results r = sample_results();
   CaseResult broken = make_case("broken/none/gd", "", "");
-  broken.error = "cannot read data \"x.csv\"";
+  broken.error = "cannot read data \"x.csv\":\nline 2 <bad> & worse";  // newline and markup in an attribute
   CaseResult bare = make_case("bare/none/gd", "", "");
   r.cases.push_back(broken);
   r.cases.push_back(bare);

@@ -1,0 +1,77 @@
+// Reference values in the gate: Longley least squares against NIST's certified coefficients
+// (NIST StRD, Linear Least Squares Regression, Longley (1967), certified values;
+// references/longley.certified.json) passes reference_digits when converged to machine
+// precision and fails it when the solutions are left far from converged.
+#include <pugixml.hpp>
+
+#include "e2e_fixtures.hpp"
+
+using namespace stepgate::e2e;
+
+namespace {
+
+const char* const kLongleyCase = "longley-ols/std/nesterov-0.99";
+
+// The junit testcase of one rule of the Longley case, or an empty node.
+pugi::xml_node rule_testcase(const pugi::xml_document& doc, const std::string& rule) {
+  return doc
+      .select_node(("//testcase[@classname='" + std::string(kLongleyCase) + "'][@name='" + rule + "']").c_str())
+      .node();
+}
+
+}  // namespace
+
+TEST_CASE("reference: Longley converged passes reference_digits; far from converged fails", "[e2e]") {
+  TempDir tmp("longley");
+  const fs::path suite = e2e_suite("longley.json");
+  const fs::path base_out = tmp / "base", baseline = tmp / "longley.baseline.json";
+  const CliResult base = expect_exit("run " + quoted(suite.string()) + " --quiet --out " + quoted(base_out.string()),
+                                     tmp.path(), 0);
+  report_time("longley run", base.seconds);
+  const json results = read_json(base_out / "results.json");
+  const json& ref = case_of(results, kLongleyCase).at("summary").at("reference");
+  REQUIRE(ref.is_object());
+  REQUIRE(ref.at("lre_min").is_number());
+  const double digits = ref.at("lre_min");
+  CHECK(digits >= 6.0);  // the default requirement (min_reference_digits)
+  CHECK(ref.at("source").get<std::string>().find("NIST") != std::string::npos);
+  {
+    pugi::xml_document doc;
+    REQUIRE(doc.load_file((base_out / "junit.xml").c_str()));
+    const pugi::xml_node tc = rule_testcase(doc, "reference_digits");
+    REQUIRE(tc);
+    CHECK_FALSE(tc.child("failure"));
+  }
+  expect_exit("accept " + quoted((base_out / "results.json").string()) + " --baseline " + quoted(baseline.string()) +
+                  " --record " + quoted((tmp / "record.md").string()),
+              tmp.path(), 0);
+  expect_exit("check " + quoted((base_out / "results.json").string()) + " --baseline " + quoted(baseline.string()),
+              tmp.path(), 0);
+
+  // The same case with a loose tolerance: "converged" runs stop far from the optimum. The copy
+  // lives elsewhere, so its data and reference paths become absolute (the data bytes are the same).
+  json loose = json::parse(read_text(suite));
+  loose["datasets"]["longley"]["csv"] = (source_dir() / "suites" / "data" / "longley.csv").string();
+  json& problem = problem_of(loose, "longley-ols");
+  problem["reference"] = (source_dir() / "references" / "longley.certified.json").string();
+  problem["outcome"]["tol"] = 1e-4;
+  const fs::path loose_suite = tmp / "loose" / "longley.json", loose_out = tmp / "loose-out";
+  write_json(loose_suite, loose);
+  const CliResult gated = expect_exit("run " + quoted(loose_suite.string()) + " --quiet --baseline " +
+                                          quoted(baseline.string()) + " --out " + quoted(loose_out.string()),
+                                      tmp.path(), 1);
+  report_time("longley loose run", gated.seconds);
+  INFO("stdout:\n" << gated.out);
+  CHECK(gated.out.find(std::string("fail  ") + kLongleyCase + "  reference_digits") != std::string::npos);
+  const json loose_results = read_json(loose_out / "results.json");
+  const json& loose_ref = case_of(loose_results, kLongleyCase).at("summary").at("reference");
+  CHECK(case_of(loose_results, kLongleyCase).at("data_sha256") == case_of(results, kLongleyCase).at("data_sha256"));
+  if (loose_ref.at("lre_min").is_number()) CHECK(loose_ref.at("lre_min").get<double>() < 6.0);
+  const std::string md = read_text(loose_out / "report.md");
+  CHECK(md.find("- **fail** `reference_digits`") != std::string::npos);
+  pugi::xml_document doc;
+  REQUIRE(doc.load_file((loose_out / "junit.xml").c_str()));
+  const pugi::xml_node tc = rule_testcase(doc, "reference_digits");
+  REQUIRE(tc);
+  CHECK(tc.child("failure"));
+}
