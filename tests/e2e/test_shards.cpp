@@ -56,19 +56,21 @@ TEST_CASE("shards: two shards merged equal the unsharded run", "[e2e]") {
                   quoted(gate_small_baseline().string()),
               tmp.path(), 0);
 
-  SECTION("merging one shard of two is bad input") {
+  {  // merging one shard of two is bad input
     const CliResult one = expect_exit("merge " + quoted((s1 / "results.json").string()) + " --out " +
                                           quoted((tmp / "one").string()),
                                       tmp.path(), 2);
     CHECK(one.err.find("shard 2/2 is missing") != std::string::npos);
     CHECK_FALSE(fs::exists(tmp / "one" / "results.json"));
   }
-  SECTION("merging the same shard twice is bad input") {
+  {  // so is merging the same shard twice
+
     expect_exit("merge " + quoted((s1 / "results.json").string()) + " " + quoted((s1 / "results.json").string()) +
                     " --out " + quoted((tmp / "twice").string()),
                 tmp.path(), 2);
   }
-  SECTION("merging an unsharded run is bad input") {
+  {  // and merging a run that is no shard
+
     expect_exit("merge " + quoted(whole.results().string()) + " --out " + quoted((tmp / "whole").string()), tmp.path(),
                 2);
   }
