@@ -2,6 +2,7 @@
 // directory, with stdout and stderr captured to files, returning the exit code.
 #pragma once
 #include <sys/wait.h>
+#include <unistd.h>
 
 #include <atomic>
 #include <chrono>
@@ -11,8 +12,6 @@
 #include <sstream>
 #include <string>
 #include <system_error>
-
-#include <unistd.h>
 
 namespace stepgate::e2e {
 
@@ -43,9 +42,9 @@ inline void write_text(const fs::path& path, const std::string& text) {
 }
 
 struct CliResult {
-  int exit_code = -1;      ///< WEXITSTATUS, or -1 when the command did not exit normally
-  std::string out, err;    ///< captured stdout and stderr
-  double seconds = 0.0;    ///< wall time
+  int exit_code = -1;    ///< WEXITSTATUS, or -1 when the command did not exit normally
+  std::string out, err;  ///< captured stdout and stderr
+  double seconds = 0.0;  ///< wall time
 };
 
 /// Runs `command_line` (a /bin/sh command line) in `working_dir`; stdout and stderr go to
@@ -81,9 +80,8 @@ class TempDir {
   explicit TempDir(const std::string& label) {
     static std::atomic<int> counter{0};
     const auto now = std::chrono::steady_clock::now().time_since_epoch().count();
-    path_ = fs::temp_directory_path() /
-            ("stepgate-e2e-" + label + "-" + std::to_string(::getpid()) + "-" + std::to_string(counter++) + "-" +
-             std::to_string(now));
+    path_ = fs::temp_directory_path() / ("stepgate-e2e-" + label + "-" + std::to_string(::getpid()) + "-" +
+                                         std::to_string(counter++) + "-" + std::to_string(now));
     fs::create_directories(path_);
   }
   ~TempDir() {

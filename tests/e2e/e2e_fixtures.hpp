@@ -2,13 +2,12 @@
 // ~30 s per run on 2 cores, so each is run at most once per process and kept in a cache folder
 // that is removed at exit), suite copies with edits, and small JSON and file helpers.
 #pragma once
+#include <catch2/catch.hpp>
 #include <cstdio>
 #include <iostream>
 #include <map>
-#include <string>
-
-#include <catch2/catch.hpp>
 #include <nlohmann/json.hpp>
+#include <string>
 
 #include "cli_runner.hpp"
 
@@ -62,7 +61,7 @@ inline CliResult expect_exit(const std::string& args, const fs::path& dir, int e
 
 /// A run kept for the whole process: its output folder and what the CLI said.
 struct CachedRun {
-  fs::path out;        ///< the --out folder (results.json, report.md, junit.xml, ...)
+  fs::path out;  ///< the --out folder (results.json, report.md, junit.xml, ...)
   CliResult cli;
   fs::path results() const { return out / "results.json"; }
 };
@@ -109,8 +108,8 @@ inline fs::path demo_baseline() { return cached_baseline("demo", demo_first()); 
 /// The demo again, --jobs 1, gated against the baseline accepted from demo_first().
 inline const CachedRun& demo_second() {
   const fs::path baseline = demo_baseline();
-  return cached_run("demo-jobs1-gated",
-                    "run " + quoted(demo_suite().string()) + " --jobs 1 --quiet --baseline " + quoted(baseline.string()));
+  return cached_run("demo-jobs1-gated", "run " + quoted(demo_suite().string()) + " --jobs 1 --quiet --baseline " +
+                                            quoted(baseline.string()));
 }
 
 inline const CachedRun& gate_small_first() {
@@ -126,7 +125,8 @@ inline fs::path plant_baseline() { return cached_baseline("plant", plant_first()
 /// Copies the plant suite into DIR/suites/plant.json (bytes as they are, or `edited` when
 /// given) and the data into DIR/data/plant.csv (`csv_text` when given), keeping the suite's
 /// relative data path valid. Returns the suite copy.
-inline fs::path plant_copy(const fs::path& dir, const std::string& edited_suite = "", const std::string& csv_text = "") {
+inline fs::path plant_copy(const fs::path& dir, const std::string& edited_suite = "",
+                           const std::string& csv_text = "") {
   const fs::path suite = dir / "suites" / "plant.json";
   write_text(suite, edited_suite.empty() ? read_text(e2e_suite("plant.json")) : edited_suite);
   write_text(dir / "data" / "plant.csv", csv_text.empty() ? read_text(plant_csv()) : csv_text);

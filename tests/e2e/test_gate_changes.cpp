@@ -6,11 +6,13 @@
 // 300 rows of four process readings (temp_dev, pressure_dev, flow_dev, valve_m: the valve travel
 // in metres, a small number) and output = 40 + 3 temp − 1.2 pressure + 2.5 flow + 0.5 valve +
 // noise (σ 0.05). It stands for no real plant.
-#include <cmath>
-#include <sstream>
-
 #include <fmt/format.h>
+
+#include <cmath>
 #include <pugixml.hpp>
+#include <sstream>
+#include <string>
+#include <vector>
 
 #include "e2e_fixtures.hpp"
 
@@ -166,7 +168,10 @@ TEST_CASE("gate: heavy-ball beta 0.9 -> 0.99 (code change) fails the case pinned
   INFO("report.md:\n" << g.report_md);
   REQUIRE_FALSE(section.empty());
   CHECK(g.report_md.find("#### FAIL: " + std::string(kBowlCase)) != std::string::npos);
-  CHECK((has_finding(section, "fail", "edge_moved") || has_finding(section, "fail", "pinned_headroom")));
+  // β 0.99 rings (overshoot) at the rates that suited 0.9: the safe range shrinks far below the
+  // pinned rate, although the theoretical threshold 2(1+β)/L hardly moves.
+  CHECK(has_finding(section, "fail", "edge_moved"));
+  CHECK(has_finding(section, "fail", "pinned_headroom"));
   // The least-squares case did not change: no finding of its own.
   CHECK(case_section(g.report_md, kPlantCase).empty());
   CHECK(case_of(g.results, kBowlCase).at("optimizer").at("beta") == 0.99);

@@ -20,9 +20,8 @@ TEST_CASE("gate: ten re-runs of an unchanged suite all pass", "[e2e]") {
                                       tmp.path(), 0);
     seconds += run.seconds;
     CHECK(run.out.find("verdict: pass (0 failing, 0 warnings, 5 cases)") != std::string::npos);
-    const CliResult check =
-        expect_exit("check " + quoted((out / "results.json").string()) + " --baseline " + quoted(baseline.string()),
-                    tmp.path(), 0);
+    const CliResult check = expect_exit(
+        "check " + quoted((out / "results.json").string()) + " --baseline " + quoted(baseline.string()), tmp.path(), 0);
     CHECK(check.out.find("verdict: pass") != std::string::npos);
     // Same seeds: the located ranges are the same numbers, not just within tolerance.
     const json again = read_json(out / "results.json");

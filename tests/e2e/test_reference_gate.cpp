@@ -14,19 +14,31 @@ const char* const kLongleyCase = "longley-ols/std/nesterov-0.99";
 
 // The junit testcase of one rule of the Longley case, or an empty node.
 pugi::xml_node rule_testcase(const pugi::xml_document& doc, const std::string& rule) {
-  return doc
-      .select_node(("//testcase[@classname='" + std::string(kLongleyCase) + "'][@name='" + rule + "']").c_str())
+  return doc.select_node(("//testcase[@classname='" + std::string(kLongleyCase) + "'][@name='" + rule + "']").c_str())
       .node();
 }
 
 }  // namespace
 
-TEST_CASE("reference: Longley converged passes reference_digits; far from converged fails", "[e2e]") {
+// A copy of the Longley suite elsewhere, with its data and reference paths made absolute (the
+// data bytes stay the same), edited by `edit`.
+template <class Edit>
+fs::path longley_variant(const fs::path& dir, Edit edit) {
+  json suite = json::parse(read_text(e2e_suite("longley.json")));
+  suite["datasets"]["longley"]["csv"] = (source_dir() / "suites" / "data" / "longley.csv").string();
+  problem_of(suite, "longley-ols")["reference"] = (source_dir() / "references" / "longley.certified.json").string();
+  edit(suite);
+  const fs::path path = dir / "longley.json";
+  write_json(path, suite);
+  return path;
+}
+
+TEST_CASE("reference: Longley passes reference_digits when converged and fails it far from converged", "[e2e]") {
   TempDir tmp("longley");
   const fs::path suite = e2e_suite("longley.json");
   const fs::path base_out = tmp / "base", baseline = tmp / "longley.baseline.json";
-  const CliResult base = expect_exit("run " + quoted(suite.string()) + " --quiet --out " + quoted(base_out.string()),
-                                     tmp.path(), 0);
+  const CliResult base =
+      expect_exit("run " + quoted(suite.string()) + " --quiet --out " + quoted(base_out.string()), tmp.path(), 0);
   report_time("longley run", base.seconds);
   const json results = read_json(base_out / "results.json");
   const json& ref = case_of(results, kLongleyCase).at("summary").at("reference");
@@ -48,15 +60,10 @@ TEST_CASE("reference: Longley converged passes reference_digits; far from conver
   expect_exit("check " + quoted((base_out / "results.json").string()) + " --baseline " + quoted(baseline.string()),
               tmp.path(), 0);
 
-  // The same case with a loose tolerance: "converged" runs stop far from the optimum. The copy
-  // lives elsewhere, so its data and reference paths become absolute (the data bytes are the same).
-  json loose = json::parse(read_text(suite));
-  loose["datasets"]["longley"]["csv"] = (source_dir() / "suites" / "data" / "longley.csv").string();
-  json& problem = problem_of(loose, "longley-ols");
-  problem["reference"] = (source_dir() / "references" / "longley.certified.json").string();
-  problem["outcome"]["tol"] = 1e-4;
-  const fs::path loose_suite = tmp / "loose" / "longley.json", loose_out = tmp / "loose-out";
-  write_json(loose_suite, loose);
+  // The same case with a loose tolerance: "converged" runs stop far from the optimum.
+  const fs::path loose_suite =
+      longley_variant(tmp / "loose", [](json& suite) { problem_of(suite, "longley-ols")["outcome"]["tol"] = 1e-4; });
+  const fs::path loose_out = tmp / "loose-out";
   const CliResult gated = expect_exit("run " + quoted(loose_suite.string()) + " --quiet --baseline " +
                                           quoted(baseline.string()) + " --out " + quoted(loose_out.string()),
                                       tmp.path(), 1);
@@ -74,4 +81,32 @@ TEST_CASE("reference: Longley converged passes reference_digits; far from conver
   const pugi::xml_node tc = rule_testcase(doc, "reference_digits");
   REQUIRE(tc);
   CHECK(tc.child("failure"));
+}
+
+TEST_CASE("reference: requiring more digits than the solution has fails reference_digits", "[e2e]") {
+  TempDir tmp("longley-digits");
+  const fs::path base_out = tmp / "base", baseline = tmp / "longley.baseline.json";
+  expect_exit("run " + quoted(e2e_suite("longley.json").string()) + " --quiet --out " + quoted(base_out.string()),
+              tmp.path(), 0);
+  const double digits =
+      case_of(read_json(base_out / "results.json"), kLongleyCase).at("summary").at("reference").at("lre_min");
+  // A first-order method stopped on the cost resolves the solution to fewer digits than a direct solve.
+  REQUIRE(digits < 12.0);
+  expect_exit("accept " + quoted((base_out / "results.json").string()) + " --baseline " + quoted(baseline.string()) +
+                  " --record " + quoted((tmp / "record.md").string()),
+              tmp.path(), 0);
+  const fs::path strict =
+      longley_variant(tmp / "strict", [](json& suite) { suite["gate"]["min_reference_digits"] = 12; });
+  const fs::path out = tmp / "strict-out";
+  const CliResult gated = expect_exit("run " + quoted(strict.string()) + " --quiet --baseline " +
+                                          quoted(baseline.string()) + " --out " + quoted(out.string()),
+                                      tmp.path(), 1);
+  INFO("stdout:\n" << gated.out);
+  CHECK(gated.out.find(std::string("fail  ") + kLongleyCase + "  reference_digits") != std::string::npos);
+  CHECK(gated.out.find("required 12.0") != std::string::npos);
+  // The same runs: only the requirement changed, so the safe range did not move.
+  CHECK(gated.out.find("edge_moved") == std::string::npos);
+  const json results = read_json(out / "results.json");
+  const json& now = case_of(results, kLongleyCase).at("summary");
+  CHECK(now.at("reference").at("lre_min").get<double>() == Approx(digits));
 }

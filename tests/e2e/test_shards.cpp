@@ -52,14 +52,13 @@ TEST_CASE("shards: two shards merged equal the unsharded run", "[e2e]") {
     CHECK(joined_core["cases"][i].at("runs") == full_core["cases"][i].at("runs"));
   }
   // The merged results gate like the unsharded ones.
-  expect_exit("check " + quoted((merged / "results.json").string()) + " --baseline " +
-                  quoted(gate_small_baseline().string()),
-              tmp.path(), 0);
+  expect_exit(
+      "check " + quoted((merged / "results.json").string()) + " --baseline " + quoted(gate_small_baseline().string()),
+      tmp.path(), 0);
 
   {  // merging one shard of two is bad input
-    const CliResult one = expect_exit("merge " + quoted((s1 / "results.json").string()) + " --out " +
-                                          quoted((tmp / "one").string()),
-                                      tmp.path(), 2);
+    const CliResult one = expect_exit(
+        "merge " + quoted((s1 / "results.json").string()) + " --out " + quoted((tmp / "one").string()), tmp.path(), 2);
     CHECK(one.err.find("shard 2/2 is missing") != std::string::npos);
     CHECK_FALSE(fs::exists(tmp / "one" / "results.json"));
   }
