@@ -11,6 +11,7 @@ void print_findings(const GateReport& gate, const Results& results) {
   for (const Finding& f : gate.findings)
     if (f.severity != Severity::pass)
       std::cout << fmt::format("{:<5} {}  {}: {}\n", to_string(f.severity), f.case_id, to_string(f.rule), f.message);
+  // Counts are of findings (one per case and rule); report.md counts cases.
   std::cout << fmt::format("verdict: {} ({} failing, {} warnings, {} cases{})\n", gate.pass ? "pass" : "fail",
                            gate.failures, gate.warnings, results.cases.size(),
                            gate.had_baseline ? "" : "; no baseline: only pinned, reference and theory rules");

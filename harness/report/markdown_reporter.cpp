@@ -93,7 +93,7 @@ class MarkdownWriter {
       warning += s == Severity::warn;
     }
     const std::string& sha = in_.results.suite.sha256;
-    out_ += fmt::format("**stepgate: {}** — {} failing, {} with warnings, {} cases; suite {} (sha256 {})\n",
+    out_ += fmt::format("**stepgate: {}** — {} failing, {} with warnings only, of {} cases; suite {} (sha256 {})\n",
                         in_.gate.pass ? "PASS" : "FAIL", failing, warning, in_.results.cases.size(),
                         text(in_.results.suite.name), sha.empty() ? kNone : sha.substr(0, 12) + "…");
     if (!in_.baseline)

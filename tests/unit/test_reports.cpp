@@ -214,7 +214,7 @@ TEST_CASE("reports: Markdown puts the verdict first and details only warn and fa
 
   const auto lines = lines_of(md);
   REQUIRE(!lines.empty());
-  CHECK(lines[0].rfind("**stepgate: FAIL** — 2 failing, 0 with warnings, 3 cases; suite demo (sha256 eeeeeeeeeeee…)", 0) == 0);
+  CHECK(lines[0].rfind("**stepgate: FAIL** — 2 failing, 0 with warnings only, of 3 cases; suite demo (sha256 eeeeeeeeeeee…)", 0) == 0);
 
   const std::string details = section(md, "### Cases with findings", "### All cases");
   CHECK(details.find(kPassId) == std::string::npos);
