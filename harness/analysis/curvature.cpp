@@ -15,8 +15,12 @@ Curvature exact(const Problem& problem, const Vec& w) {
 }
 
 // Lanczos (Golub & Van Loan, Matrix Computations, 4th ed., sect. 10.1) with full
-// reorthogonalisation; the extreme Ritz values converge first.
-Curvature lanczos(const Problem& problem, const Vec& w, const CurvatureOptions& opt) {
+// reorthogonalisation; the extreme Ritz values converge first. Returns the basis Q (p x m) and
+// the tridiagonal T (m x m).
+struct Krylov {
+  Mat Q, T;
+};
+Krylov lanczos_basis(const Problem& problem, const Vec& w, const CurvatureOptions& opt) {
   const Index p = problem.dim();
   const Index m = std::min(opt.lanczos_steps, p);
   Mat Q(p, m);
@@ -42,14 +46,40 @@ Curvature lanczos(const Problem& problem, const Vec& w, const CurvatureOptions& 
     T(j, j) = alpha[j];
     if (j + 1 < steps) T(j, j + 1) = T(j + 1, j) = beta[j];
   }
-  Eigen::SelfAdjointEigenSolver<Mat> eig(T, Eigen::EigenvaluesOnly);
-  return {eig.eigenvalues().maxCoeff(), eig.eigenvalues().minCoeff(), fmt::format("lanczos({})", steps)};
+  return {Q.leftCols(steps), std::move(T)};
+}
+
+Curvature lanczos(const Problem& problem, const Vec& w, const CurvatureOptions& opt) {
+  const Krylov k = lanczos_basis(problem, w, opt);
+  Eigen::SelfAdjointEigenSolver<Mat> eig(k.T, Eigen::EigenvaluesOnly);
+  return {eig.eigenvalues().maxCoeff(), eig.eigenvalues().minCoeff(), fmt::format("lanczos({})", k.T.rows())};
 }
 
 }  // namespace
 
 Curvature curvature_at(const Problem& problem, const Vec& w, const CurvatureOptions& opt) {
   return problem.dim() <= opt.exact_limit ? exact(problem, w) : lanczos(problem, w, opt);
+}
+
+}  // namespace stepgate
+
+namespace stepgate {
+
+Vec top_eigenvector(const Problem& problem, const Vec& w, const CurvatureOptions& opt) {
+  Vec v;
+  if (problem.dim() <= opt.exact_limit) {
+    Eigen::SelfAdjointEigenSolver<Mat> eig(problem.hessian(w));
+    v = eig.eigenvectors().col(eig.eigenvalues().size() - 1);  // eigenvalues ascend
+  } else {
+    const Krylov k = lanczos_basis(problem, w, opt);
+    Eigen::SelfAdjointEigenSolver<Mat> eig(k.T);
+    v = k.Q * eig.eigenvectors().col(eig.eigenvalues().size() - 1);
+  }
+  v.normalize();
+  Index top = 0;
+  v.cwiseAbs().maxCoeff(&top);
+  if (v[top] < 0) v = -v;
+  return v;
 }
 
 }  // namespace stepgate

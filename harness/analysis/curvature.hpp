@@ -21,4 +21,8 @@ struct Curvature {
 
 Curvature curvature_at(const Problem& problem, const Vec& w, const CurvatureOptions& opt = {});
 
+/// A unit eigenvector of ∇²J(w) for its largest eigenvalue (exact up to exact_limit, else the
+/// Ritz vector of Lanczos); the sign is fixed so that its largest-magnitude entry is positive.
+Vec top_eigenvector(const Problem& problem, const Vec& w, const CurvatureOptions& opt = {});
+
 }  // namespace stepgate

@@ -21,18 +21,31 @@ struct Classification {
   std::optional<long> iterations;  ///< converged only
   double overshoot = 0.0;
   std::string reason;
+  std::optional<Confirmation> confirmation;  ///< converged only
 };
 
 /// Watches a run evaluation by evaluation and says when it is decided.
+///
+/// Convergence is decided only once confirmed: the criterion holds from iteration t1 for
+/// hold+1 evaluations, then on every evaluation up to t1 + max(confirm_min, ⌈confirm_factor·t1⌉)
+/// (capped at the budget, and then at least confirm_min iterations), and the probe beside the
+/// run (when the caller runs one and reports it with set_probe_growth) has not grown. A probe
+/// that grew decides the run `oscillating`: the minimum repels the iteration at this rate.
 class OutcomeMonitor {
  public:
   /// `has_optimum`: J* is known, so gaps are given (criterion automatic → gap).
-  OutcomeMonitor(const OutcomeSettings& settings, bool has_optimum);
+  /// `budget`: the run's last iteration; negative = not known (confirmation then never caps).
+  OutcomeMonitor(const OutcomeSettings& settings, bool has_optimum, long budget = -1);
 
-  /// Feeds one evaluation; returns true when the outcome is decided (diverged, or the
-  /// criterion held for hold+1 evaluations) and the run should stop.
+  /// Feeds one evaluation; returns true when the outcome is decided (diverged, or converged and
+  /// confirmed, or the probe grew) and the run should stop.
   bool observe(const TracePoint& point);
   bool decided() const { return decided_.has_value(); }
+  /// True while a confirmation stretch is under way (the criterion held hold+1 evaluations).
+  bool confirming() const { return confirming_; }
+  /// The probe's growth so far: ‖kick now‖ / ‖kick at the start‖ (NaN or not called: no
+  /// probe). Call before observe() of the same evaluation; reset when confirmation restarts.
+  void set_probe_growth(double growth) { probe_growth_ = growth; }
   /// The classification now; when not decided, the run is taken to have used its budget.
   Classification result() const;
   /// The criterion in force after resolving `automatic`.
@@ -52,11 +65,17 @@ class OutcomeMonitor {
   double prev_value_ = 0.0, min_value_ = 0.0, rises_ = 0.0;
   std::optional<long> stretch_start_;
   long stretch_length_ = 0;
+  long budget_ = -1;
+  bool confirming_ = false;
+  long confirm_until_ = 0;
+  double probe_growth_ = kMissing;
+  std::optional<long> lost_from_, lost_at_;  // the last stretch that broke during confirmation
   std::deque<double> window_;  // plateau: last w+1 costs
   std::optional<Classification> decided_;
 };
 
-/// Classifies a finished trace (the run is taken to have used its budget unless decided earlier).
+/// Classifies a finished trace (the run is taken to have used its budget, the trace's last
+/// iteration, unless decided earlier). No probe: confirmation by the stretch alone.
 Classification classify(std::span<const TracePoint> trace, const OutcomeSettings& settings,
                         bool has_optimum);
 

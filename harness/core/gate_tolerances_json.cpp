@@ -16,6 +16,7 @@ nlohmann::json to_json(const GateTolerances& g) {
           {"iterations_grew", g.iterations_grew},
           {"min_reference_digits", g.min_reference_digits},
           {"theory_factor", g.theory_factor},
+          {"theory_slack", g.theory_slack},
           {"case_added", std::string(to_string(g.case_added))},
           {"case_missing", std::string(to_string(g.case_missing))},
           {"data_changed", std::string(to_string(g.data_changed))}};
@@ -41,6 +42,7 @@ GateTolerances gate_tolerances_from_json(const JsonField& f) {
   number("iterations_grew", g.iterations_grew);
   number("min_reference_digits", g.min_reference_digits);
   number("theory_factor", g.theory_factor);
+  number("theory_slack", g.theory_slack);
   severity("case_added", g.case_added);
   severity("case_missing", g.case_missing);
   severity("data_changed", g.data_changed);

@@ -40,8 +40,23 @@ struct OutcomeSettings {
   /// (gd below 2/L on a quadratic) score 0.
   double overshoot_limit = 3.0;
   /// The criterion must hold at one evaluation and the next `hold` evaluations (so a single dip
-  /// of an oscillating run does not count as convergence).
+  /// of an oscillating run does not count as convergence) before confirmation starts.
   long hold = 3;
+  /// Confirmation (docs/design.md, "Confirmed convergence"): once the criterion has held from
+  /// iteration t1 for hold+1 evaluations, the run goes on to iteration
+  /// t1 + max(confirm_min, ⌈confirm_factor · t1⌉) (capped at the budget) and must meet the
+  /// criterion at every evaluation on the way. 0.5 and 50: after a nonlinear start the unstable
+  /// mode of a rate above the local limit starts 1e-9..1e-4 below the criterion and grows by
+  /// |1 − αλ| per iteration, so it needs a stretch proportional to the time already taken; 50
+  /// iterations of the probe below resolve a growth of 1% per iteration (1.01^50 = 1.6).
+  double confirm_factor = 0.5;
+  long confirm_min = 50;
+  /// The probe: during the stretch a copy of the run, kicked along the top eigenvector of the
+  /// Hessian (size 1e-4 · max(1, ‖w‖)), runs beside it; the run is confirmed only if the kick
+  /// has not grown by the end of the stretch. This excites the one mode that a nonlinear start
+  /// leaves nearly empty, exactly as a quadratic's start excites it. true by default; false
+  /// leaves the stretch alone (cheaper, weaker).
+  bool probe = true;
 
   /// The tolerance in force for the given criterion (resolves NaN to the default).
   double tolerance(Criterion resolved) const;

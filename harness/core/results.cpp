@@ -81,6 +81,10 @@ json to_json(const RunRecord& r, RunRole role, const TraceThinning& t) {
           {"final_cost", last ? finite_or_null(last->cost) : json(nullptr)},
           {"gap", last ? finite_or_null(last->gap) : json(nullptr)},
           {"overshoot", finite_or_null(r.overshoot)},
+          {"confirmation", r.confirmation ? json{{"method", r.confirmation->method},
+                                                 {"until", r.confirmation->until},
+                                                 {"probe_growth", finite_or_null(r.confirmation->probe_growth)}}
+                                          : json(nullptr)},
           {"wall_seconds", finite_or_null(r.wall_seconds)},
           {"trace", std::move(trace)}};
 }
@@ -106,6 +110,7 @@ json to_json(const SeedSummary& s) {
           {"edge_bracket", json::array({finite_or_null(s.edge_lo), finite_or_null(s.edge_hi)})},
           {"blowup", finite_or_null(s.blowup)},
           {"best_rate", finite_or_null(s.best_rate)},
+          {"ragged_top", finite_or_null(s.ragged_top)},
           {"runs", s.runs}};
 }
 
@@ -116,6 +121,9 @@ json to_json(const CaseSummary& s) {
           {"edge", finite_or_null(s.edge)},
           {"edge_bracket", json::array({finite_or_null(s.edge_lo), finite_or_null(s.edge_hi)})},
           {"blowup", finite_or_null(s.blowup)},
+          {"ragged_zone", std::isnan(s.ragged_top)
+                              ? json(nullptr)
+                              : json::array({finite_or_null(s.edge), finite_or_null(s.ragged_top)})},
           {"best_rate", finite_or_null(s.best_rate)},
           {"best_iterations", finite_or_null(s.best_iterations)},
           {"pinned", finite_or_null(s.pinned)},
@@ -166,7 +174,7 @@ json to_json(const Results& r, const TraceThinning& t) {
   for (const DatasetInfo& d : r.datasets) {
     json stats = json::array();
     for (const DatasetInfo::Column& c : d.stats)
-      stats.push_back({{"name", c.name}, {"mean", finite_or_null(c.mean)}, {"sd", finite_or_null(c.sd)}});
+      stats.push_back({{"name", c.name}, {"mean", finite_or_null(c.mean)}, {"sd_population", finite_or_null(c.sd)}});
     datasets.push_back({{"name", d.name}, {"source", d.source}, {"sha256", d.sha256}, {"rows", d.rows},
                         {"columns", d.columns}, {"stats", std::move(stats)}});
   }

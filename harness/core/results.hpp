@@ -45,6 +45,9 @@ struct SeedSummary {
   double floor = kMissing, edge = kMissing, blowup = kMissing;
   double edge_lo = kMissing, edge_hi = kMissing;  ///< the bracket of this seed's edge
   double best_rate = kMissing;
+  /// The highest rate above this seed's edge at which it converged (grid, narrowing, fixed or
+  /// refinement runs): the top of its ragged zone [edge, ragged_top]; NaN when none did.
+  double ragged_top = kMissing;
   int runs = 0;
 };
 
@@ -62,6 +65,12 @@ struct CaseSummary {
   double edge = kMissing;
   double edge_lo = kMissing, edge_hi = kMissing;  ///< edge_bracket: lo safe for all seeds, hi unsafe for some
   double blowup = kMissing;
+  /// Ragged zone [edge, ragged_top]: near some edges the outcome alternates as the rate rises
+  /// (converged, oscillating, converged); the edge stays the top of the contiguous safe range,
+  /// and ragged_top is the highest rate above it at which some seed converged (max over the
+  /// seeds' own ragged tops). NaN when no seed converged above its edge. results.json:
+  /// "ragged_zone": [edge, ragged_top] or null.
+  double ragged_top = kMissing;
   double best_rate = kMissing;
   double best_iterations = kMissing;   ///< median over seeds at best_rate
   double pinned = kMissing;
@@ -94,7 +103,9 @@ struct CaseResult {
 struct DatasetInfo {
   struct Column {
     std::string name;
-    double mean = kMissing, sd = kMissing;  ///< sd: sample standard deviation (n − 1)
+    /// sd: population standard deviation (divisor n), the one `standardize` uses; in
+    /// results.json "sd_population".
+    double mean = kMissing, sd = kMissing;
   };
   std::string name;
   std::string source;   ///< file path(s) as resolved, or "generated"

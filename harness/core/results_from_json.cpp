@@ -51,6 +51,9 @@ StoredRun read_run(const JsonField& f) {
   if (const JsonField it = f["iterations"]; !it.is_null()) r.iterations = it.integer<long>();
   r.steps = f["steps"].integer<long>();
   r.overshoot = f["overshoot"].number_or_missing();
+  if (const JsonField c = f["confirmation"]; !c.is_null())
+    r.confirmation = Confirmation{c["method"].string(), c["until"].integer<long>(),
+                                  c["probe_growth"].number_or_missing()};
   r.wall_seconds = f["wall_seconds"].number_or_missing();
 
   const JsonField trace = f["trace"];
@@ -87,6 +90,7 @@ SeedSummary read_seed(const JsonField& f) {
   read_bracket(f["edge_bracket"], s.edge_lo, s.edge_hi);
   s.blowup = f["blowup"].number_or_missing();
   s.best_rate = f["best_rate"].number_or_missing();
+  s.ragged_top = f["ragged_top"].number_or_missing();
   s.runs = f["runs"].integer<int>();
   return s;
 }
@@ -97,6 +101,10 @@ CaseSummary read_summary(const JsonField& f) {
   s.edge = f["edge"].number_or_missing();
   read_bracket(f["edge_bracket"], s.edge_lo, s.edge_hi);
   s.blowup = f["blowup"].number_or_missing();
+  if (const JsonField zone = f["ragged_zone"]; !zone.is_null()) {
+    if (zone.array_size() != 2) zone.fail("[edge, highest converged rate] or null");
+    s.ragged_top = zone[1].number_or_missing();
+  }
   s.best_rate = f["best_rate"].number_or_missing();
   s.best_iterations = f["best_iterations"].number_or_missing();
   s.pinned = f["pinned"].number_or_missing();
@@ -183,7 +191,7 @@ Results results_from_json(const json& j, const std::string& path) {
       const JsonField stats = d["stats"];
       for (std::size_t k = 0; k < stats.array_size(); ++k)
         info.stats.push_back({stats[k]["name"].string(), stats[k]["mean"].number_or_missing(),
-                              stats[k]["sd"].number_or_missing()});
+                              stats[k]["sd_population"].number_or_missing()});
       r.datasets.push_back(std::move(info));
     }
   }

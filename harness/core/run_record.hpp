@@ -19,6 +19,14 @@ struct TracePoint {
   double grad_norm = kMissing;  ///< ‖∇J‖ on the full data
 };
 
+/// How a run's convergence was confirmed (docs/design.md, "Confirmed convergence"): the
+/// stretch after the criterion was first met, and the probe beside it.
+struct Confirmation {
+  std::string method;              ///< "stretch+probe" or "stretch" (no probe was possible)
+  long until = 0;                  ///< last iteration of the stretch (criterion met throughout)
+  double probe_growth = kMissing;  ///< ‖kick at the end‖ / ‖kick at the start‖; NaN without probe
+};
+
 struct RunRecord {
   double rate = 0.0;              ///< the searched (base) rate
   std::uint64_t seed = 0;         ///< the derived seed of this run (start point, mini-batches)
@@ -26,6 +34,7 @@ struct RunRecord {
   Outcome outcome = Outcome::failed;
   std::string reason;             ///< why: e.g. "gap ≤ 1e-06·gap₀ from iteration 812", "non-finite cost"
   std::optional<long> iterations; ///< converged: first iteration of the stretch that met the criterion
+  std::optional<Confirmation> confirmation;  ///< converged only: how it was confirmed
   long steps = 0;                 ///< iterations actually run (early exit makes it < budget)
   double overshoot = kMissing;    ///< Σ max(0, J_{k+1} − J_k) / (J_0 − min J) over the trace
   std::vector<TracePoint> trace;  ///< every evaluation, in order

@@ -11,7 +11,7 @@ std::vector<ColumnStats> column_stats(const Dataset& data) {
   for (Index j = 0; j < data.X.cols(); ++j) {
     const auto column = data.X.col(j);
     const double mean = n > 0 ? column.mean() : kMissing;
-    const double sd = n > 1 ? std::sqrt((column.array() - mean).square().sum() / double(n - 1))
+    const double sd = n > 0 ? std::sqrt((column.array() - mean).square().sum() / double(n))
                             : kMissing;
     const auto k = static_cast<std::size_t>(j);
     stats.push_back({k < data.features.size() ? data.features[k] : "", mean, sd});

@@ -10,7 +10,9 @@ namespace stepgate {
 struct ColumnStats {
   std::string name;  ///< feature name
   double mean;       ///< arithmetic mean over the rows
-  double sd;         ///< SAMPLE standard deviation (divisor n − 1); NaN (kMissing) when n < 2
+  /// POPULATION standard deviation (divisor n), the one `standardize` divides by (as
+  /// scikit-learn's StandardScaler does); NaN (kMissing) when n < 1.
+  double sd;
 };
 
 /// One entry per feature of data.X, in column order (two-pass: mean, then squared deviations).

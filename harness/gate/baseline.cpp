@@ -40,6 +40,7 @@ Baseline baseline_from_results(const Results& r, const std::string& accepted_at)
     x.edge_spread = s.edge_spread;
     x.precision = s.precision;
     x.predicted_blowup = c.theory.predicted_blowup;
+    x.ragged_top = s.ragged_top;
     b.cases.push_back(std::move(x));
   }
   return b;
@@ -62,7 +63,8 @@ json to_json(const Baseline& b) {
                      {"reference_digits", finite_or_null(c.reference_digits)},
                      {"edge_spread", finite_or_null(c.edge_spread)},
                      {"precision", finite_or_null(c.precision)},
-                     {"predicted_blowup", finite_or_null(c.predicted_blowup)}});
+                     {"predicted_blowup", finite_or_null(c.predicted_blowup)},
+                     {"ragged_top", finite_or_null(c.ragged_top)}});
   return {{"format", kBaselineFormat},
           {"suite", {{"name", b.suite.name}, {"path", b.suite.path}, {"sha256", b.suite.sha256}}},
           {"tool", {{"version", b.tool.version}, {"compiler", b.tool.compiler}, {"build", b.tool.build}}},
@@ -109,6 +111,7 @@ Baseline baseline_from_json(const json& j, const std::string& path) {
     x.edge_spread = c["edge_spread"].number_or_missing();
     x.precision = c["precision"].number_or_missing();
     x.predicted_blowup = c["predicted_blowup"].number_or_missing();
+    if (c.has("ragged_top")) x.ragged_top = c["ragged_top"].number_or_missing();  // absent before 0.2
     b.cases.push_back(std::move(x));
   }
   return b;

@@ -21,6 +21,7 @@ struct BaselineCase {
   double reference_digits = kMissing;  ///< min LRE
   double edge_spread = kMissing, precision = kMissing;
   double predicted_blowup = kMissing;
+  double ragged_top = kMissing;  ///< top of the ragged zone [edge, ragged_top]; NaN = none
 };
 
 struct Baseline {

@@ -38,6 +38,16 @@ std::string change(double base, double now) {
   return fmt::format("{} -> {} ({:+.1f}%)", num(base), num(now), 100.0 * (now / base - 1.0));
 }
 
+}  // namespace
+
+double ragged_move(double base_lo, double base_hi, double now_lo, double now_hi) {
+  if (now_lo > base_hi) return now_lo / base_hi - 1.0;
+  if (now_hi < base_lo) return 1.0 - now_hi / base_lo;
+  return 0.0;
+}
+
+namespace {
+
 class Gate {
  public:
   Gate(const Results& r, const Baseline* b) : results_(r), baseline_(b) {}
@@ -75,9 +85,18 @@ void Gate::compare_range(const CaseResult& c, const BaselineCase& b) {
         fmt::format("a safe range appeared (edge {}); the baseline had none", num(s.edge)), b.edge, s.edge);
   } else {
     const double allowed = g.edge_moved + precision + spread(s.edge_spread) + spread(b.edge_spread);
-    const double moved = std::abs(s.edge / b.edge - 1.0);
+    // Ragged zones: where outcomes alternate above the edge, an edge anywhere in [edge,
+    // ragged_top] of either side is the same picture, so the move is measured between the zones.
+    const double b_top = std::isnan(b.ragged_top) ? b.edge : std::max(b.edge, b.ragged_top);
+    const double s_top = std::isnan(s.ragged_top) ? s.edge : std::max(s.edge, s.ragged_top);
+    const double moved = ragged_move(b.edge, b_top, s.edge, s_top);
+    const bool ragged = b_top > b.edge || s_top > s.edge;
+    std::string zones;
+    if (ragged)
+      zones = fmt::format("; ragged zones: baseline [{}, {}], current [{}, {}], {} apart", num(b.edge), num(b_top),
+                          num(s.edge), num(s_top), moved == 0.0 ? "overlapping" : fmt::format("{:.1f}%", 100.0 * moved));
     add(c.id, Rule::edge_moved, moved > allowed ? Severity::fail : Severity::pass,
-        fmt::format("edge {} (allowed +-{:.1f}%)", change(b.edge, s.edge), 100.0 * allowed), b.edge, s.edge);
+        fmt::format("edge {} (allowed +-{:.1f}%){}", change(b.edge, s.edge), 100.0 * allowed, zones), b.edge, s.edge);
   }
   if (!std::isnan(b.floor) && !std::isnan(s.floor)) {
     const double allowed = g.floor_moved + precision;
@@ -147,6 +166,20 @@ void Gate::reference(const CaseResult& c) {
 void Gate::theory(const CaseResult& c) {
   const double predicted = c.theory.predicted_blowup, measured = c.summary.blowup;
   if (std::isnan(predicted)) return;
+  // One-sided: no rate above the local stability limit can converge, so an edge above it is
+  // wrong whatever the blow-up says.
+  const double precision = std::isnan(c.summary.precision) ? 0.0 : c.summary.precision;
+  const double limit = predicted * (1.0 + precision + c.gate.theory_slack);
+  if (!std::isnan(c.summary.edge) && c.summary.edge > limit) {
+    add(c.id, Rule::theory, Severity::fail,
+        fmt::format("edge {} lies above the stability limit {} by {} ({:+.1f}%; allowed up to {}): no rate above it "
+                    "can converge, so runs stopped before they showed their instability, or a gradient or the "
+                    "curvature is scaled wrongly",
+                    num(c.summary.edge), num(predicted), c.theory.rule, 100.0 * (c.summary.edge / predicted - 1.0),
+                    num(limit)),
+        predicted, c.summary.edge);
+    return;
+  }
   double top = 0.0;
   for (const StoredRun& r : c.runs) top = std::max(top, r.record.rate);
   if (std::isnan(measured)) {

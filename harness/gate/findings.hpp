@@ -44,6 +44,12 @@ struct GateReport {
 
 /// Applies every rule. `baseline` may be null: then only the baseline-free rules run.
 /// Tolerances come from each case's `gate` (the suite's, merged per problem).
+/// How far apart two ragged zones [lo, hi] of the edge are, relative: 0 when they overlap,
+/// else the gap between them relative to the lower zone's end (now above: now_lo/base_hi − 1;
+/// now below: 1 − now_hi/base_lo). Without a ragged zone lo = hi = the edge, and this is the
+/// plain relative move.
+double ragged_move(double base_lo, double base_hi, double now_lo, double now_hi);
+
 GateReport apply_gate(const Results& results, const Baseline* baseline);
 
 }  // namespace stepgate

@@ -16,9 +16,4 @@ void AdaGrad::step(Mat& P, const Mat& G, const Vec& rates) {
   P.noalias() -= (G.array() / (S_.array().sqrt() + eps_)).matrix() * rates.asDiagonal();
 }
 
-void AdaGrad::keep_lanes(std::span<const Index> keep) {
-  check_keep(keep);
-  keep_columns(S_, keep);
-}
-
 }  // namespace stepgate::detail

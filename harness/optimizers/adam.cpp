@@ -27,10 +27,4 @@ void Adam::step(Mat& P, const Mat& G, const Vec& rates) {
       ((M_.array() / c1) / ((V_.array() / c2).sqrt() + eps_)).matrix() * rates.asDiagonal();
 }
 
-void Adam::keep_lanes(std::span<const Index> keep) {
-  check_keep(keep);
-  keep_columns(M_, keep);
-  keep_columns(V_, keep);
-}
-
 }  // namespace stepgate::detail

@@ -9,6 +9,5 @@ void GradientDescent::step(Mat& P, const Mat& G, const Vec& rates) {
   P.noalias() -= G * rates.asDiagonal();  // column k scaled by its rate; no temporary
 }
 
-void GradientDescent::keep_lanes(std::span<const Index> keep) { check_keep(keep); }
 
 }  // namespace stepgate::detail

@@ -15,9 +15,4 @@ void HeavyBall::step(Mat& P, const Mat& G, const Vec& rates) {
   P += V_;
 }
 
-void HeavyBall::keep_lanes(std::span<const Index> keep) {
-  check_keep(keep);
-  keep_columns(V_, keep);
-}
-
 }  // namespace stepgate::detail

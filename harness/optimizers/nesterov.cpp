@@ -23,9 +23,4 @@ void Nesterov::step(Mat& P, const Mat& G, const Vec& rates) {
   V_ = beta_ * V_ - G * rates.asDiagonal();
 }
 
-void Nesterov::keep_lanes(std::span<const Index> keep) {
-  check_keep(keep);
-  keep_columns(V_, keep);
-}
-
 }  // namespace stepgate::detail

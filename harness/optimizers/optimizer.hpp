@@ -30,6 +30,10 @@ class Optimizer {
   /// Keeps only the given lanes (strictly increasing indices into the current lanes), in order.
   /// Throws std::invalid_argument for indices that are out of range or not increasing.
   virtual void keep_lanes(std::span<const Index> keep) = 0;
+  /// Appends copies of the given lanes (any indices into the current lanes, repeats allowed) at
+  /// the end, with their whole state: a copy then continues exactly as its original would.
+  /// Used for the confirmation probe of a run. Throws std::invalid_argument for bad indices.
+  virtual void append_lanes(std::span<const Index> from) = 0;
 };
 
 /// Throws std::invalid_argument when a setting is out of range (e.g. beta >= 1, sgd without batch).

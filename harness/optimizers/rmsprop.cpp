@@ -15,9 +15,4 @@ void RMSProp::step(Mat& P, const Mat& G, const Vec& rates) {
   P.noalias() -= (G.array() / (S_.array().sqrt() + eps_)).matrix() * rates.asDiagonal();
 }
 
-void RMSProp::keep_lanes(std::span<const Index> keep) {
-  check_keep(keep);
-  keep_columns(S_, keep);
-}
-
 }  // namespace stepgate::detail

@@ -5,14 +5,37 @@
 #include <span>
 #include <stdexcept>
 #include <string>
+#include <vector>
 
+#include "core/lanes.hpp"
 #include "optimizers/optimizer.hpp"
 
 namespace stepgate::detail {
 
-/// Shape bookkeeping shared by all rules: p parameters, K lanes, checked on every step.
+/// Shape and state bookkeeping shared by all rules: p parameters, K lanes, checked on every
+/// step. A rule registers its per-lane state matrices (p x K) with track() in its constructor;
+/// keep_lanes and append_lanes then act on all of them, so each rule writes only reset and step.
 class LaneOptimizer : public Optimizer {
+ public:
+  void keep_lanes(std::span<const Index> keep) final {
+    check_keep(keep);
+    for (Mat* m : state_) keep_columns(*m, keep);
+  }
+  void append_lanes(std::span<const Index> from) final {
+    for (Index j : from)
+      if (j < 0 || j >= lanes_)
+        throw std::invalid_argument("optimizer append_lanes: index out of range (below " +
+                                    std::to_string(lanes_) + ")");
+    for (Mat* m : state_) append_columns(*m, from);
+    lanes_ += static_cast<Index>(from.size());
+  }
+
  protected:
+  LaneOptimizer() = default;
+  // The state pointers refer to members of this object: copying would alias another's state.
+  LaneOptimizer(const LaneOptimizer&) = delete;
+  LaneOptimizer& operator=(const LaneOptimizer&) = delete;
+  void track(Mat& state) { state_.push_back(&state); }
   void set_shape(Index p, Index lanes) {
     if (p < 0 || lanes < 0) throw std::invalid_argument("optimizer reset: negative p or lanes");
     p_ = p;
@@ -39,32 +62,24 @@ class LaneOptimizer : public Optimizer {
   }
   Index p_ = 0;
   Index lanes_ = 0;
-};
 
-/// Moves column keep[j] to j (safe in order: keep[j] >= j), then drops the rest.
-inline void keep_columns(Mat& X, std::span<const Index> keep) {
-  for (std::size_t j = 0; j < keep.size(); ++j) {
-    const auto dst = static_cast<Index>(j);
-    if (keep[j] != dst) X.col(dst) = X.col(keep[j]);
-  }
-  X.conservativeResize(X.rows(), static_cast<Index>(keep.size()));
-}
+ private:
+  std::vector<Mat*> state_;
+};
 
 /// gd and sgd: P −= α G (sgd differs only in the caller's mini-batch gradients).
 class GradientDescent final : public LaneOptimizer {
  public:
   void reset(Index p, Index lanes) override;
   void step(Mat& P, const Mat& G, const Vec& rates) override;
-  void keep_lanes(std::span<const Index> keep) override;
 };
 
 /// Heavy ball (Polyak 1964): V = β V − α G; P += V.
 class HeavyBall final : public LaneOptimizer {
  public:
-  explicit HeavyBall(double beta) : beta_(beta) {}
+  explicit HeavyBall(double beta) : beta_(beta) { track(V_); }
   void reset(Index p, Index lanes) override;
   void step(Mat& P, const Mat& G, const Vec& rates) override;
-  void keep_lanes(std::span<const Index> keep) override;
 
  private:
   double beta_;
@@ -75,10 +90,9 @@ class HeavyBall final : public LaneOptimizer {
 /// Pascanu 2013, eq. 7/8): P += β² V − (1 + β) α G; V = β V − α G.
 class Nesterov final : public LaneOptimizer {
  public:
-  explicit Nesterov(double beta) : beta_(beta) {}
+  explicit Nesterov(double beta) : beta_(beta) { track(V_); }
   void reset(Index p, Index lanes) override;
   void step(Mat& P, const Mat& G, const Vec& rates) override;
-  void keep_lanes(std::span<const Index> keep) override;
 
  private:
   double beta_;
@@ -88,10 +102,9 @@ class Nesterov final : public LaneOptimizer {
 /// AdaGrad (Duchi, Hazan & Singer 2011): S += G²; P −= α G / (√S + ε).
 class AdaGrad final : public LaneOptimizer {
  public:
-  explicit AdaGrad(double eps) : eps_(eps) {}
+  explicit AdaGrad(double eps) : eps_(eps) { track(S_); }
   void reset(Index p, Index lanes) override;
   void step(Mat& P, const Mat& G, const Vec& rates) override;
-  void keep_lanes(std::span<const Index> keep) override;
 
  private:
   double eps_;
@@ -101,10 +114,9 @@ class AdaGrad final : public LaneOptimizer {
 /// RMSProp (Tieleman & Hinton 2012): S = ρ S + (1 − ρ) G²; P −= α G / (√S + ε).
 class RMSProp final : public LaneOptimizer {
  public:
-  RMSProp(double rho, double eps) : rho_(rho), eps_(eps) {}
+  RMSProp(double rho, double eps) : rho_(rho), eps_(eps) { track(S_); }
   void reset(Index p, Index lanes) override;
   void step(Mat& P, const Mat& G, const Vec& rates) override;
-  void keep_lanes(std::span<const Index> keep) override;
 
  private:
   double rho_;
@@ -115,10 +127,12 @@ class RMSProp final : public LaneOptimizer {
 /// Adam (Kingma & Ba 2015, Algorithm 1), with bias-corrected moments.
 class Adam final : public LaneOptimizer {
  public:
-  Adam(double beta1, double beta2, double eps) : beta1_(beta1), beta2_(beta2), eps_(eps) {}
+  Adam(double beta1, double beta2, double eps) : beta1_(beta1), beta2_(beta2), eps_(eps) {
+    track(M_);
+    track(V_);
+  }
   void reset(Index p, Index lanes) override;
   void step(Mat& P, const Mat& G, const Vec& rates) override;
-  void keep_lanes(std::span<const Index> keep) override;
 
  private:
   double beta1_;

@@ -92,6 +92,11 @@ std::string outcome_map_html(const CaseResult& c) {
       const RunRecord& r = *it->second;
       std::string title = fmt::format("rate {}, {}: {}", html_number(r.rate), seed_name(seeds[i]), to_string(r.outcome));
       title += r.iterations ? fmt::format(", {} iterations", *r.iterations) : fmt::format(", {} steps run", r.steps);
+      if (r.confirmation)
+        title += r.confirmation->method == "stretch+probe"
+                     ? fmt::format(", confirmed to iteration {} with a probe (kick x{:.3g})", r.confirmation->until,
+                                   r.confirmation->probe_growth)
+                     : fmt::format(", confirmed to iteration {} (stretch only)", r.confirmation->until);
       if (!r.reason.empty()) title += " — " + r.reason;
       out += svg::rect_titled(col_x(j) + 0.5, ty + 0.5, cw - 1, kRowHeight - 1,
                               fmt::format("fill=\"{}\"", outcome_colour(r.outcome)), title);
@@ -133,6 +138,8 @@ std::string outcome_map_html(const CaseResult& c) {
   for (Outcome o : {Outcome::converged, Outcome::slow, Outcome::oscillating, Outcome::diverged, Outcome::failed})
     out += fmt::format("<span><i class=\"key\" style=\"background:{}\"></i>{} {}</span>", outcome_colour(o),
                        outcome_letter(o), to_string(o));
+  out += "<span>C: the criterion held through a confirmation stretch, with a kicked probe beside it "
+         "that did not grow (hover a cell for how)</span>";
   out += "<span><i class=\"key key-none\"></i>not run</span><span><i class=\"key key-safe\"></i>safe range</span>"
          "<span><i class=\"key key-pinmark\"></i>pinned rate</span>";
   out += "</figcaption>\n</figure>\n";

@@ -105,13 +105,15 @@ std::string summary_section(const ReportInput& in) {
         cell += "<span class=\"was\">was " + html_number(was) + "</span>";
       return cell;
     };
+    std::string edge_cell = with_was(s.edge, b ? b->edge : kMissing);
+    if (!std::isnan(s.ragged_top)) edge_cell += "<span class=\"was\">ragged to " + html_number(s.ragged_top) + "</span>";
     const Severity* w = worst(in.gate.of_case(c.id));
     out += fmt::format("<tr><td><a href=\"#case-{}\">{}</a></td>", i + 1, esc(c.id));
     if (!c.error.empty()) {
       out += "<td colspan=\"6\" class=\"error\">not run</td>";
     } else {
       out += fmt::format("<td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td>",
-                         with_was(s.floor, b ? b->floor : kMissing), with_was(s.edge, b ? b->edge : kMissing),
+                         with_was(s.floor, b ? b->floor : kMissing), edge_cell,
                          html_number(s.best_rate), html_number(s.pinned),
                          std::isnan(s.headroom) ? "–" : html_number(s.headroom) + "×",
                          s.reference ? html_number(s.reference->lre_min) : "–");
@@ -147,6 +149,10 @@ std::string case_section(const ReportInput& in, std::size_t index) {
   out += fact("data", c.dataset.empty() ? "none"
                                         : esc(c.dataset) + (c.data_sha256.empty() ? "" : " <code>" + esc(c.data_sha256.substr(0, 12)) + "</code>"));
   out += fact("edge bracket", fmt::format("[{}, {}]", html_number(s.edge_lo), html_number(s.edge_hi)));
+  out += fact("ragged zone", std::isnan(s.ragged_top)
+                                 ? "none (no rate above the edge converged)"
+                                 : fmt::format("[{}, {}]: rates above the edge that still converged",
+                                               html_number(s.edge), html_number(s.ragged_top)));
   out += fact("seed spread of edge", html_number(s.edge_spread));
   out += fact("best iterations", html_number(s.best_iterations));
   out += fact("pinned iterations", html_number(s.pinned_iterations) +

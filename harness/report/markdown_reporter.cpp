@@ -18,6 +18,12 @@ constexpr const char* kNone = "–";  // en dash: a value that does not exist
 
 std::string number(double v) { return std::isnan(v) ? kNone : fmt::format("{:.4g}", v); }
 std::string factor(double v) { return std::isnan(v) ? kNone : fmt::format("{:.4g}x", v); }
+// The edge, with the top of its ragged zone when some rate above it converged.
+std::string edge_ragged(double edge, double ragged_top) {
+  if (std::isnan(edge) || std::isnan(ragged_top)) return number(edge);
+  return fmt::format("{} (ragged to {})", number(edge), number(ragged_top));
+}
+
 std::string edge_with_bracket(double edge, double lo, double hi) {
   if (std::isnan(edge)) return kNone;
   if (std::isnan(lo) && std::isnan(hi)) return number(edge);
@@ -148,6 +154,9 @@ class MarkdownWriter {
     row("floor", b ? number(b->floor) : kNone, s ? number(s->floor) : kNone);
     row("edge [bracket]", b ? edge_with_bracket(b->edge, b->edge_lo, b->edge_hi) : kNone,
         s ? edge_with_bracket(s->edge, s->edge_lo, s->edge_hi) : kNone);
+    if ((b && !std::isnan(b->ragged_top)) || (s && !std::isnan(s->ragged_top)))
+      row("ragged zone", b && !std::isnan(b->ragged_top) ? fmt::format("[{}, {}]", number(b->edge), number(b->ragged_top)) : kNone,
+          s && !std::isnan(s->ragged_top) ? fmt::format("[{}, {}]", number(s->edge), number(s->ragged_top)) : kNone);
     row("best rate", b ? number(b->best_rate) : kNone, s ? number(s->best_rate) : kNone);
     row("pinned", b ? number(b->pinned) : kNone, s ? number(s->pinned) : kNone);
     row("headroom", b ? factor(b->headroom) : kNone, s ? factor(s->headroom) : kNone);
@@ -161,7 +170,7 @@ class MarkdownWriter {
       const CaseSummary& s = c.summary;
       std::string status(to_string(worst(in_.gate.of_case(c.id))));
       if (!c.error.empty()) status += ": not run: " + c.error;
-      out_ += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} |\n", cell(c.id), number(s.floor), number(s.edge),
+      out_ += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} |\n", cell(c.id), number(s.floor), edge_ragged(s.edge, s.ragged_top),
                           number(s.best_rate), number(s.pinned), factor(s.headroom),
                           s.reference ? number(s.reference->lre_min) : kNone, cell(status));
     }

@@ -39,7 +39,9 @@ std::string or_none(const std::string& s) { return s.empty() ? kNone : s; }
 
 std::string edge_cell(const BaselineCase& b) {
   if (std::isnan(b.edge)) return kNone;
-  return fmt::format("{} [{}, {}]", number(b.edge), number(b.edge_lo), number(b.edge_hi));
+  std::string cell = fmt::format("{} [{}, {}]", number(b.edge), number(b.edge_lo), number(b.edge_hi));
+  if (!std::isnan(b.ragged_top)) cell += fmt::format(" (ragged to {})", number(b.ragged_top));
+  return cell;
 }
 
 // The name from the results, the hash from the baseline: the data that was accepted.

@@ -24,7 +24,9 @@ std::string summary_table(const Results& results) {
     }
     const CaseSummary& s = c.summary;
     const std::string digits = s.reference ? format_number(s.reference->lre_min) : "";
-    rows.push_back({c.id, format_number(s.floor), format_number(s.edge), format_number(s.best_rate),
+    const std::string edge = std::isnan(s.ragged_top) ? format_number(s.edge)
+                                                      : format_number(s.edge) + " (ragged to " + format_number(s.ragged_top) + ")";
+    rows.push_back({c.id, format_number(s.floor), edge, format_number(s.best_rate),
                     format_number(s.best_iterations), format_number(s.pinned),
                     std::isnan(s.headroom) ? "-" : fmt::format("{:.2f}x", s.headroom), digits});
   }

@@ -1,10 +1,14 @@
 #include "run/batch.hpp"
 
+#include <algorithm>
 #include <chrono>
+#include <cmath>
 #include <numeric>
 #include <optional>
 #include <stdexcept>
 
+#include "analysis/curvature.hpp"
+#include "core/lanes.hpp"
 #include "core/seed.hpp"
 #include "run/minibatch.hpp"
 
@@ -14,17 +18,10 @@ namespace {
 
 using Clock = std::chrono::steady_clock;
 
-// Moves the kept columns to the front, in order, and drops the rest.
-void keep_columns(Mat& m, std::span<const Index> keep) {
-  for (std::size_t j = 0; j < keep.size(); ++j)
-    if (keep[j] != static_cast<Index>(j)) m.col(static_cast<Index>(j)) = m.col(keep[j]);
-  m.conservativeResize(Eigen::NoChange, static_cast<Index>(keep.size()));
-}
-
-void keep_entries(Vec& v, std::span<const Index> keep) {
-  for (std::size_t j = 0; j < keep.size(); ++j) v[static_cast<Index>(j)] = v[keep[j]];
-  v.conservativeResize(static_cast<Index>(keep.size()));
-}
+// Size of the probe's kick, relative to max(1, ‖w‖): small enough that the dynamics around the
+// run are linear (second-order terms 1e-8 of it), large enough that rounding (1e-16 · ‖w‖)
+// is 1e-12 of it.
+constexpr double kProbeKick = 1e-4;
 
 }  // namespace
 
@@ -37,7 +34,7 @@ long resolved_eval_every(const Problem& problem, const OptimizerSpec& spec, cons
 
 std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& spec,
                                  const RunSettings& settings, std::span<const double> rates,
-                                 BatchSeed seed) {
+                                 BatchSeed seed, const Vec* probe_direction) {
   const Index K = static_cast<Index>(rates.size());
   std::vector<RunRecord> records(rates.size());
   for (Index j = 0; j < K; ++j) {
@@ -58,7 +55,8 @@ std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& sp
   const bool has_optimum = exact_gap || optimum.has_value();
   const double j_star = optimum ? optimum->cost : kMissing;
 
-  std::vector<OutcomeMonitor> monitors(rates.size(), OutcomeMonitor(settings.outcome, has_optimum));
+  std::vector<OutcomeMonitor> monitors(rates.size(),
+                                       OutcomeMonitor(settings.outcome, has_optimum, settings.budget));
   std::vector<bool> failed(rates.size(), false);
   const auto started = Clock::now();
   auto finish_lane = [&](RunRecord& r, const Mat& P, Index col, long steps) {
@@ -67,8 +65,27 @@ std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& sp
     r.wall_seconds = std::chrono::duration<double>(Clock::now() - started).count();
   };
 
-  std::vector<Index> lane(rates.size());  // lane j of the matrices -> record index
-  std::iota(lane.begin(), lane.end(), Index{0});
+  // Column j of the matrices runs record lanes[j].record; a probe column is a kicked copy of
+  // that record's run during its confirmation (docs/design.md, "Confirmed convergence").
+  struct Lane {
+    Index record;
+    bool probe;
+  };
+  std::vector<Lane> lanes;
+  for (Index j = 0; j < K; ++j) lanes.push_back({j, false});
+  std::vector<Index> probe_col(rates.size(), -1), main_col(rates.size(), -1);
+  std::vector<double> kick(rates.size(), 0.0);
+  auto index_columns = [&] {
+    std::fill(probe_col.begin(), probe_col.end(), -1);
+    std::fill(main_col.begin(), main_col.end(), -1);
+    for (std::size_t j = 0; j < lanes.size(); ++j)
+      (lanes[j].probe ? probe_col : main_col)[lanes[j].record] = static_cast<Index>(j);
+  };
+  index_columns();
+  bool probing = settings.outcome.probe;
+  Vec direction;
+  if (probing && probe_direction) direction = *probe_direction;
+
   try {
     const Vec w0 = problem.start(seed.seed);
     Mat P = w0.replicate(1, K);
@@ -80,44 +97,86 @@ std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& sp
     std::optional<MiniBatches> batches;
     if (minibatch) batches.emplace(problem.samples(), spec.batch_size, derive_seed({seed.seed, std::string_view("minibatch")}));
     optimizer->reset(problem.dim(), K);
-    std::vector<Index> keep;
-    keep.reserve(rates.size());
+    std::vector<Index> keep, to_probe;
+    keep.reserve(2 * rates.size());
 
     for (long t = 0;; ++t) {
       const bool at_eval = t % every == 0 || t == settings.budget;
       if (at_eval || !minibatch) problem.evaluate(P, ev, scratch);
-      bool dropped = false;
+      bool changed = false;
+      to_probe.clear();
       if (at_eval) {
         for (Index j = 0; j < P.cols(); ++j) {
+          if (lanes[j].probe) continue;
+          const Index rec = lanes[j].record;
           const double cost = ev.cost[j];
           const double gap = exact_gap ? ev.gap[j] : (has_optimum ? cost - j_star : kMissing);
           const TracePoint point{t, cost, gap, ev.grad.col(j).norm()};
-          RunRecord& r = records[lane[j]];
+          RunRecord& r = records[rec];
           r.trace.push_back(point);
-          if (monitors[lane[j]].observe(point)) {
+          OutcomeMonitor& m = monitors[rec];
+          if (probe_col[rec] >= 0) {
+            const double growth = (P.col(probe_col[rec]) - P.col(j)).norm() / kick[rec];
+            m.set_probe_growth(std::isfinite(growth) ? growth : kInf);
+          }
+          const bool was_confirming = m.confirming();
+          if (m.observe(point)) {
             finish_lane(r, P, j, t);
-            dropped = true;
+            changed = true;
+          } else if (!was_confirming && m.confirming() && probing) {
+            to_probe.push_back(rec);
+          } else if (was_confirming && !m.confirming() && probe_col[rec] >= 0) {
+            changed = true;  // the stretch broke: its probe goes
           }
         }
       }
       if (t == settings.budget) {
         for (Index j = 0; j < P.cols(); ++j)
-          if (!monitors[lane[j]].decided()) finish_lane(records[lane[j]], P, j, t);
+          if (!lanes[j].probe && !monitors[lanes[j].record].decided())
+            finish_lane(records[lanes[j].record], P, j, t);
         break;
       }
-      if (dropped) {
+      if (changed) {
         keep.clear();
-        for (Index j = 0; j < P.cols(); ++j)
-          if (!monitors[lane[j]].decided()) keep.push_back(j);
+        for (Index j = 0; j < P.cols(); ++j) {
+          const OutcomeMonitor& m = monitors[lanes[j].record];
+          if (!m.decided() && (!lanes[j].probe || m.confirming())) keep.push_back(j);
+        }
         if (keep.empty()) break;
         keep_columns(P, keep);
         if (!minibatch) keep_columns(ev.grad, keep);
         keep_entries(base, keep);
-        for (std::size_t j = 0; j < keep.size(); ++j) lane[j] = lane[keep[j]];
-        lane.resize(keep.size());
+        for (std::size_t j = 0; j < keep.size(); ++j) lanes[j] = lanes[keep[j]];
+        lanes.resize(keep.size());
         optimizer->keep_lanes(keep);
-        step_rates.resize(P.cols());
+        index_columns();
       }
+      if (!to_probe.empty()) {
+        if (direction.size() == 0) {
+          try {  // once per batch, at the point of the first run to need it
+            direction = top_eigenvector(problem, P.col(main_col[to_probe.front()]));
+            if (!direction.allFinite() || direction.size() != problem.dim()) throw std::runtime_error("no direction");
+          } catch (const std::exception&) {
+            probing = false;  // no curvature here: confirmation by the stretch alone
+          }
+        }
+        if (probing) {
+          std::vector<Index> from;
+          for (Index rec : to_probe) from.push_back(main_col[rec]);
+          append_columns(P, from);
+          if (!minibatch) append_columns(ev.grad, from);  // this step uses the unkicked gradient
+          append_entries(base, from);
+          optimizer->append_lanes(from);
+          for (std::size_t i = 0; i < to_probe.size(); ++i) {
+            const Index col = P.cols() - static_cast<Index>(to_probe.size()) + static_cast<Index>(i);
+            kick[to_probe[i]] = kProbeKick * std::max(1.0, P.col(from[i]).norm());
+            P.col(col) += kick[to_probe[i]] * direction;
+            lanes.push_back({to_probe[i], true});
+          }
+          index_columns();
+        }
+      }
+      if (step_rates.size() != P.cols()) step_rates.resize(P.cols());
       const Mat* grad = &ev.grad;
       if (minibatch) {
         problem.gradient_rows(P, batches->next(), G, scratch);
@@ -127,12 +186,12 @@ std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& sp
       optimizer->step(P, *grad, step_rates);
     }
   } catch (const std::exception& e) {
-    for (Index j : lane) {
-      if (monitors[j].decided()) continue;
-      failed[j] = true;
-      records[j].outcome = Outcome::failed;
-      records[j].reason = e.what();
-      records[j].wall_seconds = std::chrono::duration<double>(Clock::now() - started).count();
+    for (std::size_t rec = 0; rec < records.size(); ++rec) {
+      if (monitors[rec].decided() || main_col[rec] < 0) continue;
+      failed[rec] = true;
+      records[rec].outcome = Outcome::failed;
+      records[rec].reason = e.what();
+      records[rec].wall_seconds = std::chrono::duration<double>(Clock::now() - started).count();
     }
   }
 
@@ -143,13 +202,14 @@ std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& sp
     records[j].iterations = c.iterations;
     records[j].overshoot = c.overshoot;
     records[j].reason = c.reason;
+    records[j].confirmation = c.confirmation;
   }
   return records;
 }
 
 RunRecord run_single(const Problem& problem, const OptimizerSpec& spec, const RunSettings& settings,
                      double rate, BatchSeed seed) {
-  return std::move(run_batch(problem, spec, settings, std::span<const double>(&rate, 1), seed).front());
+  return std::move(run_batch(problem, spec, settings, std::span<const double>(&rate, 1), seed, nullptr).front());
 }
 
 }  // namespace stepgate

@@ -23,9 +23,15 @@ struct BatchSeed {
 /// Runs `rates` (any order, each > 0) together. Returns one record per rate, in the given order.
 /// Every record's outcome is set; an exception inside the problem makes every unfinished lane
 /// `failed` with the message as reason. Bitwise deterministic for given inputs.
+///
+/// Confirmation: a run whose criterion has held goes on through its confirmation stretch
+/// (OutcomeMonitor), and when settings.outcome.probe is set a kicked copy of it (a probe lane)
+/// runs beside it along `probe_direction` (a unit vector of dim() entries; nullptr = the top
+/// eigenvector of the Hessian at the first run to need it, computed once per batch). Probe
+/// lanes are not recorded; only their growth decides.
 std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& spec,
                                  const RunSettings& settings, std::span<const double> rates,
-                                 BatchSeed seed);
+                                 BatchSeed seed, const Vec* probe_direction = nullptr);
 
 /// The same for one rate.
 RunRecord run_single(const Problem& problem, const OptimizerSpec& spec, const RunSettings& settings,

@@ -5,6 +5,7 @@
 #include <map>
 #include <set>
 
+#include "analysis/curvature.hpp"
 #include "analysis/reference.hpp"
 #include "core/seed.hpp"
 #include "run/batch.hpp"
@@ -86,6 +87,9 @@ class Searcher {
   std::vector<SeedRuns> seeds_;
   std::vector<double> grid_;
   std::vector<StoredRun> order_;  // every run in the order made
+  // The probes' kick direction: the top eigenvector of the Hessian at the optimum, once per
+  // case (where converged runs end); without an optimum each batch finds its own.
+  std::optional<Vec> probe_direction_;
 };
 
 std::vector<Outcome> Searcher::run(SeedRuns& s, const std::vector<double>& rates, RunRole role) {
@@ -93,7 +97,8 @@ std::vector<Outcome> Searcher::run(SeedRuns& s, const std::vector<double>& rates
   for (double r : rates)
     if (!at(s, r) && std::find(todo.begin(), todo.end(), r) == todo.end()) todo.push_back(r);
   if (!todo.empty()) {
-    std::vector<RunRecord> records = run_batch(problem_, in_.optimizer, in_.run, todo, s.seed);
+    std::vector<RunRecord> records = run_batch(problem_, in_.optimizer, in_.run, todo, s.seed,
+                                               probe_direction_ ? &*probe_direction_ : nullptr);
     for (RunRecord& r : records) {
       s.by_rate.emplace(r.rate, order_.size());
       order_.push_back(StoredRun{std::move(r), role});
@@ -183,6 +188,14 @@ void Searcher::locate_seed(SeedRuns& s, std::optional<std::size_t> best) {
 
 CaseSearchOutput Searcher::search() {
   const RatePolicy& p = in_.rates;
+  if (in_.run.outcome.probe) {
+    try {
+      if (const std::optional<Optimum> opt = problem_.optimum(); opt && opt->w.size() == problem_.dim())
+        probe_direction_ = top_eigenvector(problem_, opt->w);
+    } catch (const std::exception&) {
+      probe_direction_.reset();  // each batch tries at its own point
+    }
+  }
   if (p.grid) grid_ = log_grid(*p.grid);
   std::vector<double> fixed = p.fixed;
   if (!std::isnan(in_.pinned)) fixed.push_back(in_.pinned);
@@ -219,7 +232,10 @@ void Searcher::summarise(CaseSearchOutput& out) const {
   double edge = kInf, edge_lo = kInf, edge_hi = kInf, floor = 0.0, blowup = kInf, emax = 0.0;
   bool all_have_edge = !seeds_.empty();
   for (const SeedRuns& s : seeds_) {
-    const SeedSummary& x = s.summary;
+    SeedSummary x = s.summary;
+    if (!std::isnan(x.edge))  // every run is in by now: grid, fixed, narrowing, refinement
+      for (const auto& [rate, index] : s.by_rate)
+        if (rate > x.edge && converged(outcome(index))) x.ragged_top = rate;  // by_rate ascends
     c.seeds.push_back(x);
     c.runs += x.runs;
     if (std::isnan(x.edge)) all_have_edge = false;
@@ -239,6 +255,8 @@ void Searcher::summarise(CaseSearchOutput& out) const {
     c.edge_hi = std::isfinite(edge_hi) ? edge_hi : kMissing;
     c.floor = floor;
     c.edge_spread = emax / edge;
+    for (const SeedSummary& x : c.seeds)
+      if (!std::isnan(x.ragged_top) && !(x.ragged_top <= c.ragged_top)) c.ragged_top = x.ragged_top;
   }
   // Best rate: among rates every seed ran, inside [floor, edge], all converged.
   if (!std::isnan(c.edge)) {

@@ -16,10 +16,11 @@ const std::vector<std::string> kRateKeys = {"grid",          "fixed",        "pr
                                             "lanes",         "locate_edge",  "locate_floor",
                                             "locate_blowup", "refine_points"};
 const std::vector<std::string> kOutcomeKeys = {
-    "criterion", "tol", "target", "plateau_window", "blowup_factor", "overshoot_limit", "hold"};
+    "criterion", "tol", "target", "plateau_window", "blowup_factor", "overshoot_limit", "hold",
+    "confirm_factor", "confirm_min", "probe"};
 const std::vector<std::string> kGateKeys = {
     "edge_moved",           "floor_moved",   "best_moved_factor", "min_headroom", "iterations_grew",
-    "min_reference_digits", "theory_factor", "case_added",        "case_missing", "data_changed"};
+    "min_reference_digits", "theory_factor", "theory_slack", "case_added",        "case_missing", "data_changed"};
 
 void check_levels(const Layers& layers, const std::vector<std::string>& keys) {
   for (const Node& level : layers.levels) ObjectNode(level, keys);
@@ -153,6 +154,11 @@ OutcomeSettings read_outcome(const Layers& outcome) {
     o.overshoot_limit = n->number_if([](double v) { return v >= 0; }, "a number >= 0");
   if (auto n = outcome.find("hold"))
     o.hold = n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0");
+  if (auto n = outcome.find("confirm_factor"))
+    o.confirm_factor = n->number_if([](double v) { return v >= 0 && v <= 100; }, "a number in [0, 100]");
+  if (auto n = outcome.find("confirm_min"))
+    o.confirm_min = n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0");
+  if (auto n = outcome.find("probe")) o.probe = n->boolean();
   if (o.criterion == Criterion::cost && !target)
     criterion->fail(
         "found criterion 'cost' without a target; expected \"target\": the cost to reach");
@@ -203,6 +209,8 @@ GateTolerances read_gate(const Layers& gate) {
         n->number_if([](double v) { return v >= 0 && v <= 17; }, "a number in [0, 17]");
   if (auto n = gate.find("theory_factor"))
     g.theory_factor = n->number_if(at_least_one, "a number >= 1");
+  if (auto n = gate.find("theory_slack"))
+    g.theory_slack = n->number_if([](double v) { return v >= 0 && v <= 1; }, "a number in [0, 1]");
   if (auto n = gate.find("case_added")) g.case_added = severity(*n);
   if (auto n = gate.find("case_missing")) g.case_missing = severity(*n);
   if (auto n = gate.find("data_changed")) g.data_changed = severity(*n);

@@ -75,7 +75,7 @@ static DatasetInfo describe(const DatasetSpec& spec, const Dataset& d) {
   for (const ColumnStats& c : column_stats(d)) info.stats.push_back({c.name, c.mean, c.sd});
   const double n = static_cast<double>(d.rows());
   const double mean = d.y.mean();
-  const double sd = n > 1 ? std::sqrt((d.y.array() - mean).square().sum() / (n - 1)) : kMissing;
+  const double sd = n > 0 ? std::sqrt((d.y.array() - mean).square().sum() / n) : kMissing;  // population, as above
   info.stats.push_back({d.target, mean, sd});
   return info;
 }

@@ -44,11 +44,16 @@ void require_lanes_equal_single_runs(const Problem& problem, const OptimizerSpec
     REQUIRE(alone.outcome == batch[j].outcome);
     REQUIRE(alone.trace.size() == batch[j].trace.size());
     CHECK(alone.iterations == batch[j].iterations);
+    // Relative to the cost, or to 1e-6 of the starting cost (the default gap tolerance) where
+    // the cost is smaller: runs now go on through their confirmation stretch to costs far below
+    // what any criterion looks at, where rounding of w (1e-16·‖w‖) is no longer small next to
+    // ‖w − w*‖, so relative differences of such costs say nothing about the lanes.
     double worst = 0.0;
+    const double floor = 1e-6 * std::abs(alone.trace.front().cost);
     for (std::size_t k = 0; k < alone.trace.size(); ++k) {
       const double a = alone.trace[k].cost, b = batch[j].trace[k].cost;
       if (!std::isfinite(a) || !std::isfinite(b)) continue;
-      worst = std::max(worst, std::abs(a - b) / std::max(std::abs(a), 1e-300));
+      worst = std::max(worst, std::abs(a - b) / std::max({std::abs(a), floor, 1e-300}));
     }
     CHECK(worst <= tolerance);
   }
@@ -68,8 +73,11 @@ TEST_CASE("a lane equals the same run done alone (quadratic, several optimizers)
                              OptimizerKind::adam, OptimizerKind::adagrad}) {
     OptimizerSpec spec;
     spec.kind = kind;
-    // Rates from slow to diverged, so lanes drop out at different iterations.
-    require_lanes_equal_single_runs(*problem, spec, {0.003, 0.03, 0.3, 1.0, 1.9, 2.5, 8.0}, s);
+    // Rates from slow to diverged, so lanes drop out at different iterations. Adam at rate 1
+    // hovers through its confirmation stretch like RMSProp below (its step m/√v keeps a size
+    // of about α), and its lanes agree to 1e-10 there: held to 1e-9.
+    require_lanes_equal_single_runs(*problem, spec, {0.003, 0.03, 0.3, 1.0, 1.9, 2.5, 8.0}, s,
+                                    kind == OptimizerKind::adam ? 1e-9 : 1e-12);
   }
   // RMSProp is the exception, and is held to outcome equality and 1e-4: its step α·g/√v keeps
   // a size of about α however small g is, so it hovers around w* instead of contracting, and

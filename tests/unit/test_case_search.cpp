@@ -128,3 +128,41 @@ TEST_CASE("no safe rate: edge, floor and best do not exist, the blow-up still do
   CHECK(std::isnan(out.summary.best_rate));
   CHECK(std::abs(out.summary.blowup / 2.0 - 1.0) <= 0.01);
 }
+
+// Heavy ball β = 0.95 on a quadratic: near the edge its overshoot hovers about the limit 3, so
+// outcomes alternate as the rate rises (converged, oscillating, ..., converged). The edge stays
+// the top of the contiguous safe range; the converged rates above it are the ragged zone.
+TEST_CASE("ragged zone: converged rates above the edge are recorded, the edge stays contiguous", "[search]") {
+  QuadraticOptions q;
+  q.dim = 20;
+  q.L = 1.0;
+  q.condition = 10.0;
+  q.spectrum = Spectrum::linear;
+  q.seed = 3;
+  const auto problem = make_quadratic(q);
+  CaseSearchInput in;
+  in.case_id = "q2/none/hb-0.95";
+  in.optimizer.kind = OptimizerKind::momentum;
+  in.optimizer.beta = 0.95;
+  in.run.budget = 5000;
+  in.rates.grid = RateGrid{1e-3, 10.0, 10};
+  in.seeds = {1};
+  const CaseSearchOutput out = search_case(*problem, in);
+  const CaseSummary& s = out.summary;
+  REQUIRE_FALSE(std::isnan(s.edge));
+  double top = kMissing;
+  bool gap_above_edge = false;  // a non-converged rate between the edge and a converged one
+  for (const StoredRun& r : out.runs) {
+    if (r.record.rate <= s.edge) continue;
+    if (r.record.outcome == Outcome::converged) top = std::isnan(top) ? r.record.rate : std::max(top, r.record.rate);
+  }
+  for (const StoredRun& r : out.runs)
+    if (r.record.rate > s.edge && r.record.outcome != Outcome::converged && !std::isnan(top) && r.record.rate < top)
+      gap_above_edge = true;
+  fmt::print("hb 0.95 on a quadratic: edge {:.4g}, ragged zone up to {:.4g}\n", s.edge, s.ragged_top);
+  REQUIRE_FALSE(std::isnan(top));  // this case is ragged (measured: edge 1.673, converged at 2.512)
+  CHECK(gap_above_edge);
+  CHECK(s.ragged_top == top);
+  CHECK(s.seeds.front().ragged_top == top);
+  CHECK(s.ragged_top > s.edge);
+}

@@ -64,10 +64,11 @@ TEST_CASE("CSV: whitespace-delimited statsmodels spector.csv", "[data]") {
   REQUIRE(d.rows() == 32);
   REQUIRE(d.cols() == 3);
   CHECK(d.sha256 == sha256_file(path));
-  // numpy (Debian's 1.24.2): mean and std(ddof=1) of the same columns.
+  // numpy (Debian's 1.24.2): mean and std(ddof=0) of the same columns (the population sd,
+  // which standardize uses, as scikit-learn's StandardScaler does).
   const std::string out = run_python(
       "import numpy as np\nX = np.loadtxt('" + path + "', skiprows=1)\n"
-      "for j in (1, 2, 3): print(repr(X[:, j].mean()), repr(X[:, j].std(ddof=1)))\n");
+      "for j in (1, 2, 3): print(repr(X[:, j].mean()), repr(X[:, j].std(ddof=0)))\n");
   if (out.empty()) {
     WARN("python3 with numpy unavailable; reference comparison skipped");
     return;

@@ -38,7 +38,7 @@ Dataset small_table() {  // 6 x 3, mixed signs and magnitudes
 
 }  // namespace
 
-TEST_CASE("column_stats: mean and sample sd (n - 1)", "[data]") {
+TEST_CASE("column_stats: mean and population sd (n), the sd that standardize divides by", "[data]") {
   Dataset d = small_table();
   const std::vector<ColumnStats> stats = column_stats(d);
   REQUIRE(stats.size() == 3);
@@ -48,8 +48,10 @@ TEST_CASE("column_stats: mean and sample sd (n - 1)", "[data]") {
   double ss = 0;
   for (double v : {1.5, 2.5, -3.0, 4.25, 0.0, 7.5}) ss += (v - mean) * (v - mean);
   CHECK(stats[0].mean == Approx(mean).epsilon(1e-15));
-  CHECK(stats[0].sd == Approx(std::sqrt(ss / 5)).epsilon(1e-15));
+  CHECK(stats[0].sd == Approx(std::sqrt(ss / 6)).epsilon(1e-15));
   d.X.conservativeResize(1, Eigen::NoChange);
+  CHECK(column_stats(d)[0].sd == 0.0);
+  d.X.conservativeResize(0, Eigen::NoChange);
   CHECK(std::isnan(column_stats(d)[0].sd));
 }
 

@@ -28,6 +28,8 @@ std::vector<double> geometric(double start, double ratio, int n) {
 
 TEST_CASE("gap criterion: converged at the first iteration of the holding stretch", "[outcome]") {
   OutcomeSettings s;
+  s.confirm_min = 0;  // the criterion alone: confirmation has tests of its own below
+  s.confirm_factor = 0.0;
   s.tol = 1e-3;
   s.hold = 2;
   // gap_k = 0.5^k: 0.5^10 = 9.77e-4 is the first value <= 1e-3.
@@ -103,6 +105,8 @@ TEST_CASE("oscillating even when the criterion is met, if overshoot is above the
 
 TEST_CASE("converged with small overshoot under the limit", "[outcome]") {
   OutcomeSettings s;
+  s.confirm_min = 0;  // the criterion alone: confirmation has tests of its own below
+  s.confirm_factor = 0.0;
   s.tol = 1e-2;
   s.hold = 1;
   s.overshoot_limit = 0.5;
@@ -123,6 +127,8 @@ TEST_CASE("slow: steady decrease that never reaches tol within the budget", "[ou
 
 TEST_CASE("grad criterion: gradient norm relative to its start", "[outcome]") {
   OutcomeSettings s;
+  s.confirm_min = 0;  // the criterion alone: confirmation has tests of its own below
+  s.confirm_factor = 0.0;
   s.criterion = Criterion::grad;
   s.tol = 1.5e-2;
   s.hold = 0;
@@ -147,6 +153,8 @@ TEST_CASE("cost criterion: first cost at or below the target", "[outcome]") {
 
 TEST_CASE("plateau criterion: relative improvement over the window below tol", "[outcome]") {
   OutcomeSettings s;
+  s.confirm_min = 0;  // the criterion alone: confirmation has tests of its own below
+  s.confirm_factor = 0.0;
   s.criterion = Criterion::plateau;
   s.tol = 1e-3;
   s.plateau_window = 2;
@@ -177,4 +185,108 @@ TEST_CASE("outcome names round-trip", "[outcome]") {
                     Outcome::failed})
     CHECK(outcome_from_string(to_string(o)) == o);
   CHECK_FALSE(outcome_from_string("exploded").has_value());
+}
+
+// Confirmed convergence (docs/design.md, "Confirmed convergence"). The traces are modelled on
+// gd at a rate just above 2/λ_max(∇²J(w*)) on a logistic loss: the gap falls fast along the
+// other modes, and the unstable top mode, started tiny, grows by |1 − αλ| per iteration.
+TEST_CASE("confirmation: a trace that meets the criterion and then grows is not converged", "[outcome]") {
+  OutcomeSettings s;
+  s.tol = 1e-6;
+  std::vector<double> v;
+  for (int k = 0; k <= 400; ++k) {
+    const double fast = std::pow(0.3, k);              // the stable modes
+    const double top = 1e-9 * std::pow(1.1 * 1.1, k);   // the unstable mode's gap, growing
+    v.push_back(fast + std::min(top, 3.5e-2));          // it saturates in a period-2 orbit
+  }
+  const auto c = classify(gap_trace(v), s, true);
+  CHECK(c.outcome != Outcome::converged);
+  CHECK_FALSE(c.confirmation.has_value());
+  CHECK(c.reason.find("lost at") != std::string::npos);
+  // The same trace with the old rule (no stretch) was taken as converged at iteration 12.
+  s.confirm_min = 0;
+  s.confirm_factor = 0.0;
+  const auto early = classify(gap_trace(v), s, true);
+  CHECK(early.outcome == Outcome::converged);
+  CHECK(*early.iterations == 12);
+}
+
+TEST_CASE("confirmation: a trace that holds is converged, iterations at the stretch's start", "[outcome]") {
+  OutcomeSettings s;
+  s.tol = 1e-6;
+  s.confirm_min = 50;
+  s.confirm_factor = 0.5;
+  // gap_k = 0.7^k: first ≤ 1e-6 at k = 39 (0.7^39 = 9.1e-7); confirmation to 39 + 50 = 89.
+  const auto trace = gap_trace(geometric(1.0, 0.7, 200));
+  OutcomeMonitor m(s, true, 199);
+  long decided_at = -1;
+  for (const TracePoint& p : trace)
+    if (m.observe(p)) { decided_at = p.iter; break; }
+  CHECK(decided_at == 89);
+  const auto c = m.result();
+  CHECK(c.outcome == Outcome::converged);
+  CHECK(*c.iterations == 39);
+  REQUIRE(c.confirmation.has_value());
+  CHECK(c.confirmation->method == "stretch");
+  CHECK(c.confirmation->until == 89);
+  CHECK(std::isnan(c.confirmation->probe_growth));
+}
+
+TEST_CASE("confirmation: the stretch is a multiple of the time first taken", "[outcome]") {
+  OutcomeSettings s;
+  s.tol = 1e-6;
+  s.confirm_min = 10;
+  s.confirm_factor = 0.5;
+  // gap_k = 0.99^k: first ≤ 1e-6 at k = 1375; stretch max(10, ceil(687.5)) = 688.
+  const auto c = classify(gap_trace(geometric(1.0, 0.99, 3000)), s, true);
+  REQUIRE(c.outcome == Outcome::converged);
+  CHECK(*c.iterations == 1375);
+  CHECK(c.confirmation->until == 1375 + 688);
+}
+
+TEST_CASE("confirmation: a probe that grew makes the run oscillating; one that decayed confirms it",
+          "[outcome]") {
+  OutcomeSettings s;
+  s.tol = 1e-6;
+  s.confirm_min = 50;
+  const auto trace = gap_trace(geometric(1.0, 0.7, 200));
+  for (double growth : {1.6, 0.4}) {
+    OutcomeMonitor m(s, true, 199);
+    for (const TracePoint& p : trace) {
+      if (m.confirming()) m.set_probe_growth(growth);
+      if (m.observe(p)) break;
+    }
+    const auto c = m.result();
+    if (growth > 1) {
+      CHECK(c.outcome == Outcome::oscillating);
+      CHECK(c.reason.find("repels") != std::string::npos);
+    } else {
+      CHECK(c.outcome == Outcome::converged);
+      CHECK(c.confirmation->method == "stretch+probe");
+      CHECK(c.confirmation->probe_growth == 0.4);
+    }
+  }
+}
+
+TEST_CASE("confirmation: capped by the budget, and too late to confirm is slow", "[outcome]") {
+  OutcomeSettings s;
+  s.tol = 1e-6;
+  s.confirm_min = 50;
+  // Met at 39: a budget of 120 caps the stretch at 120 (>= 50 after 39): converged.
+  {
+    const auto c = classify(gap_trace(geometric(1.0, 0.7, 121)), s, true);
+    CHECK(c.outcome == Outcome::converged);
+    CHECK(c.confirmation->until == 89);
+  }
+  {
+    OutcomeSettings t = s;
+    t.confirm_factor = 10.0;  // stretch 390 > budget 120: capped at 120, 81 iterations: enough
+    const auto c = classify(gap_trace(geometric(1.0, 0.7, 121)), t, true);
+    CHECK(c.outcome == Outcome::converged);
+    CHECK(c.confirmation->until == 120);
+  }
+  // Budget 70: only 31 iterations after 39 — confirms nothing: slow, and says why.
+  const auto c = classify(gap_trace(geometric(1.0, 0.7, 71)), s, true);
+  CHECK(c.outcome == Outcome::slow);
+  CHECK(c.reason.find("too late to confirm") != std::string::npos);
 }
