@@ -44,7 +44,8 @@ double OutcomeMonitor::overshoot() const {
 bool OutcomeMonitor::observe(const TracePoint& p) {
   if (decided_) return true;
   const double value = progress_value(p);
-  const bool finite = std::isfinite(p.cost) && std::isfinite(p.grad_norm) &&
+  // A gradient norm that was not given (NaN: commands may leave it out) is no sign of divergence.
+  const bool finite = std::isfinite(p.cost) && !std::isinf(p.grad_norm) &&
                       (!has_optimum_ || std::isfinite(p.gap));
   if (count_ == 0) {
     first_ = p;

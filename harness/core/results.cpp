@@ -86,6 +86,7 @@ json to_json(const RunRecord& r, RunRole role, const TraceThinning& t) {
                                                  {"probe_growth", finite_or_null(r.confirmation->probe_growth)}}
                                           : json(nullptr)},
           {"wall_seconds", finite_or_null(r.wall_seconds)},
+          {"log_lines", r.log_lines},
           {"trace", std::move(trace)}};
 }
 

@@ -55,6 +55,7 @@ StoredRun read_run(const JsonField& f) {
     r.confirmation = Confirmation{c["method"].string(), c["until"].integer<long>(),
                                   c["probe_growth"].number_or_missing()};
   r.wall_seconds = f["wall_seconds"].number_or_missing();
+  if (f.has("log_lines")) r.log_lines = f["log_lines"].integer<long>();
 
   const JsonField trace = f["trace"];
   r.trace.resize(trace.array_size());

@@ -40,6 +40,7 @@ struct RunRecord {
   std::vector<TracePoint> trace;  ///< every evaluation, in order
   Vec final_params;               ///< parameters at the last evaluation
   double wall_seconds = 0.0;      ///< not part of any comparison: timing only
+  long log_lines = 0;             ///< command runs: output lines that were not protocol lines
 
   const TracePoint* last() const { return trace.empty() ? nullptr : &trace.back(); }
 };

@@ -18,6 +18,7 @@ namespace stepgate {
 struct BatchSeed {
   std::uint64_t seed = 0;  ///< derived from the run's coordinates (case id, seed index)
   long index = 0;
+  std::uint64_t number = 0;  ///< the user's seed number (as in the suite): {seed} of commands
 };
 
 /// Runs `rates` (any order, each > 0) together. Returns one record per rate, in the given order.

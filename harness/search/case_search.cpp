@@ -53,13 +53,13 @@ struct SeedRuns {
 
 class Searcher {
  public:
-  Searcher(const Problem& problem, const CaseSearchInput& in, const BatchDone& done)
-      : problem_(problem), in_(in), done_(done) {
+  Searcher(const RunBatchFn& runner, const Problem* problem, const CaseSearchInput& in, const BatchDone& done)
+      : runner_(runner), problem_(problem), in_(in), done_(done) {
     long index = 0;
     for (std::uint64_t n : in.seeds) {
       SeedRuns s;
       s.number = n;
-      s.seed = {run_seed(in.case_id, n), index++};
+      s.seed = {run_seed(in.case_id, n), index++, n};
       s.summary.seed = n;
       seeds_.push_back(std::move(s));
     }
@@ -81,7 +81,8 @@ class Searcher {
   void summarise(CaseSearchOutput& out) const;
   void compare_reference(CaseSearchOutput& out) const;
 
-  const Problem& problem_;
+  const RunBatchFn& runner_;
+  const Problem* problem_;  // nullptr: runs come from elsewhere (a command); no theory
   const CaseSearchInput& in_;
   const BatchDone& done_;
   std::vector<SeedRuns> seeds_;
@@ -97,8 +98,9 @@ std::vector<Outcome> Searcher::run(SeedRuns& s, const std::vector<double>& rates
   for (double r : rates)
     if (!at(s, r) && std::find(todo.begin(), todo.end(), r) == todo.end()) todo.push_back(r);
   if (!todo.empty()) {
-    std::vector<RunRecord> records = run_batch(problem_, in_.optimizer, in_.run, todo, s.seed,
-                                               probe_direction_ ? &*probe_direction_ : nullptr);
+    std::vector<RunRecord> records =
+        runner_ ? runner_(todo, s.seed)
+                : run_batch(*problem_, in_.optimizer, in_.run, todo, s.seed, probe_direction_ ? &*probe_direction_ : nullptr);
     for (RunRecord& r : records) {
       s.by_rate.emplace(r.rate, order_.size());
       order_.push_back(StoredRun{std::move(r), role});
@@ -188,10 +190,10 @@ void Searcher::locate_seed(SeedRuns& s, std::optional<std::size_t> best) {
 
 CaseSearchOutput Searcher::search() {
   const RatePolicy& p = in_.rates;
-  if (in_.run.outcome.probe) {
+  if (in_.run.outcome.probe && problem_ && !runner_) {
     try {
-      if (const std::optional<Optimum> opt = problem_.optimum(); opt && opt->w.size() == problem_.dim())
-        probe_direction_ = top_eigenvector(problem_, opt->w);
+      if (const std::optional<Optimum> opt = problem_->optimum(); opt && opt->w.size() == problem_->dim())
+        probe_direction_ = top_eigenvector(*problem_, opt->w);
     } catch (const std::exception&) {
       probe_direction_.reset();  // each batch tries at its own point
     }
@@ -216,11 +218,15 @@ CaseSearchOutput Searcher::search() {
   }
   CaseSearchOutput out;
   summarise(out);
-  const Theory t = case_theory(problem_, in_.optimizer, problem_.start(seeds_.empty() ? 0 : seeds_[0].seed.seed));
-  out.theory = {t.L, t.mu, t.at_start.lambda_max, t.at_start.lambda_min, t.at_optimum.lambda_max,
-                t.at_optimum.lambda_min, t.predicted_blowup, t.rule, t.at_start.method};
-  if (auto opt = problem_.optimum()) out.optimum_cost = opt->cost;
-  compare_reference(out);
+  if (problem_) {
+    const Theory t = case_theory(*problem_, in_.optimizer, problem_->start(seeds_.empty() ? 0 : seeds_[0].seed.seed));
+    out.theory = {t.L, t.mu, t.at_start.lambda_max, t.at_start.lambda_min, t.at_optimum.lambda_max,
+                  t.at_optimum.lambda_min, t.predicted_blowup, t.rule, t.at_start.method};
+    if (auto opt = problem_->optimum()) out.optimum_cost = opt->cost;
+    compare_reference(out);
+  } else {
+    out.theory.method = "not available (command problem)";
+  }
   out.runs = std::move(order_);
   return out;
 }
@@ -303,8 +309,8 @@ void Searcher::compare_reference(CaseSearchOutput& out) const {
   ref.names = in_.reference->names;
   // The solution of the best rate's run of the first seed; without a best rate, there is none.
   const RunRecord* r = std::isnan(out.summary.best_rate) ? nullptr : at(seeds_.front(), out.summary.best_rate);
-  if (r && r->final_params.size() == problem_.dim()) {
-    const ReferenceComparison cmp = compare_with_reference(problem_, in_.map, r->final_params, *in_.reference);
+  if (r && r->final_params.size() == problem_->dim()) {
+    const ReferenceComparison cmp = compare_with_reference(*problem_, in_.map, r->final_params, *in_.reference);
     ref.lre = cmp.lre;
     ref.lre_min = cmp.lre_min;
     ref.estimate.assign(cmp.estimate.data(), cmp.estimate.data() + cmp.estimate.size());
@@ -315,7 +321,13 @@ void Searcher::compare_reference(CaseSearchOutput& out) const {
 }  // namespace
 
 CaseSearchOutput search_case(const Problem& problem, const CaseSearchInput& in, const BatchDone& on_batch) {
-  return Searcher(problem, in, on_batch).search();
+  const RunBatchFn none;
+  return Searcher(none, &problem, in, on_batch).search();
+}
+
+CaseSearchOutput search_case_with(const RunBatchFn& run, const Problem* problem, const CaseSearchInput& in,
+                                  const BatchDone& on_batch) {
+  return Searcher(run, problem, in, on_batch).search();
 }
 
 }  // namespace stepgate

@@ -5,6 +5,7 @@
 #include <cstdint>
 #include <functional>
 #include <optional>
+#include <span>
 #include <string>
 #include <vector>
 
@@ -45,5 +46,13 @@ std::uint64_t run_seed(const std::string& case_id, std::uint64_t seed_number);
 /// Deterministic: the same input gives the same output bits (timings aside).
 CaseSearchOutput search_case(const Problem& problem, const CaseSearchInput& in,
                              const BatchDone& on_batch = {});
+
+/// Runs a batch of rates for one seed (the runner of a command problem, for example).
+using RunBatchFn = std::function<std::vector<RunRecord>(std::span<const double> rates, BatchSeed seed)>;
+
+/// The same search with runs made by `run`. Without a problem (nullptr) there is no theory,
+/// no optimum and no reference comparison: those fields stay null.
+CaseSearchOutput search_case_with(const RunBatchFn& run, const Problem* problem, const CaseSearchInput& in,
+                                  const BatchDone& on_batch = {});
 
 }  // namespace stepgate

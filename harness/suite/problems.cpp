@@ -1,5 +1,8 @@
 // One entry of the `problems` section: kind, kind options, reference and settings, and the
 // checks that tie it to the rest of the suite (datasets, scalings, optimizers).
+#include <filesystem>
+
+#include "core/placeholders.hpp"
 #include <algorithm>
 
 #include <fmt/format.h>
@@ -34,6 +37,8 @@ const std::vector<KindKey>& kind_keys() {
       {"seed", {K::quadratic}},
       {"start_radius", {K::quadratic}},
       {"function", {K::test_function}},
+      {"command", {K::command}},
+      {"optimum", {K::command}},
   };
   return keys;
 }
@@ -164,6 +169,67 @@ void check_dataless(const Node& node, const Layers& settings, const Suite& suite
   }
 }
 
+// The `command` object of a command problem (README, "Gating your own training code").
+void read_command(const ObjectNode& o, const Suite& suite, ProblemSpec& p) {
+  const Node node = o.require("command");
+  const ObjectNode c(node, {"argv", "cwd", "env", "timeout", "parallel", "serve", "max_output", "grace"});
+  CommandSpec& spec = p.command;
+  const Node argv = c.require("argv");
+  spec.argv = argv.strings();
+  if (spec.argv.empty() || spec.argv.front().empty())
+    argv.fail("found an empty argv; expected [program, arguments...] (never a shell string)");
+  const std::filesystem::path suite_dir = std::filesystem::path(suite.path).parent_path();
+  spec.cwd = suite_dir.string();
+  if (auto n = c.find("cwd")) {
+    const std::filesystem::path cwd(n->string());
+    spec.cwd = (cwd.is_absolute() ? cwd : suite_dir / cwd).lexically_normal().string();
+    if (!std::filesystem::is_directory(spec.cwd))
+      n->fail(fmt::format("found \"{}\", which is not a folder (relative to the suite file: {}); expected the "
+                          "trainer's working directory", n->string(), spec.cwd));
+  }
+  if (spec.cwd.empty()) spec.cwd = ".";
+  if (auto n = c.find("env")) {
+    if (!n->json().is_object()) n->expected("an object of environment variables (name -> text)");
+    for (const auto& item : n->json().items()) {
+      const Node v = n->member(item.key());
+      if (!v.json().is_string()) v.expected("a string");
+      if (item.key().empty() || item.key().find('=') != std::string::npos)
+        v.fail(fmt::format("found variable name \"{}\"; expected a name without '='", item.key()));
+      spec.env[item.key()] = v.string();
+    }
+  }
+  if (auto n = c.find("timeout")) spec.timeout = n->number_if([](double v) { return v > 0 && v <= 86400 * 7; }, "seconds > 0 (at most a week)");
+  if (auto n = c.find("parallel")) spec.parallel = static_cast<int>(n->integer_if([](long v) { return v >= 0 && v <= 256; }, "a whole number in [0, 256] (0 = --jobs)"));
+  if (auto n = c.find("serve")) {
+    spec.serve = n->boolean();
+    if (spec.serve) n->fail("found \"serve\": true; serving mode is not built yet in this version; expected false (one process per run)");
+  }
+  if (auto n = c.find("max_output")) spec.max_output = n->integer_if([](long v) { return v >= 1024; }, "bytes >= 1024");
+  if (auto n = c.find("grace")) spec.grace = n->number_if([](double v) { return v >= 0 && v <= 600; }, "seconds in [0, 600]");
+  if (auto n = o.find("optimum")) spec.optimum = n->number();
+}
+
+// Every placeholder of every argument must be known (the run fails otherwise, too late).
+void check_placeholders(const ObjectNode& o, const Suite& suite, const ProblemSpec& p) {
+  const Node argv = o.require("command").member("argv");
+  for (std::size_t i = 0; i < p.command.argv.size(); ++i)
+    for (const std::string& label : p.optimizers) {
+      const std::map<std::string, std::string> fields = optimizer_fields(suite.optimizers.at(label));
+      try {
+        expand_placeholders(p.command.argv[i], [&](std::string_view name) -> std::optional<std::string> {
+          for (std::string_view known : {"rate", "seed", "budget", "optimizer", "scaling", "case", "out"})
+            if (name == known) return "x";
+          if (name.starts_with("optimizer.") && fields.count(std::string(name.substr(10)))) return "x";
+          return std::nullopt;
+        });
+      } catch (const std::invalid_argument& e) {
+        std::vector<std::string> names;
+        for (const auto& [k, v] : fields) names.push_back("optimizer." + k);
+        argv.element(i).fail(fmt::format("{} (optimizer '{}' has the fields {})", e.what(), label, join(names)));
+      }
+    }
+}
+
 }  // namespace
 
 ProblemSpec read_problem(const Node& node, const std::optional<Node>& defaults,
@@ -176,7 +242,7 @@ ProblemSpec read_problem(const Node& node, const std::optional<Node>& defaults,
   check_name(name, p.name, "problem name");
   std::vector<std::string> kinds;
   for (ProblemKind k : {ProblemKind::least_squares, ProblemKind::logistic, ProblemKind::softmax,
-                        ProblemKind::quadratic, ProblemKind::test_function})
+                        ProblemKind::quadratic, ProblemKind::test_function, ProblemKind::command})
     kinds.emplace_back(to_string(k));
   p.kind = *problem_kind_from_string(o.require("kind").choice(kinds, "problem kind"));
   check_kind_keys(o, p.kind);
@@ -185,6 +251,7 @@ ProblemSpec read_problem(const Node& node, const std::optional<Node>& defaults,
   if (p.kind == ProblemKind::quadratic) read_quadratic(o, p);
   if (p.kind == ProblemKind::test_function)
     p.function = o.require("function").choice(suite_test_function_names(), "test function");
+  if (p.kind == ProblemKind::command) read_command(o, suite, p);
 
   Layers settings;
   if (defaults) settings.levels.push_back(*defaults);
@@ -193,6 +260,7 @@ ProblemSpec read_problem(const Node& node, const std::optional<Node>& defaults,
   if (suite_gate) gate.levels.push_back(*suite_gate);
   read_settings(settings, gate, suite, p);
   check_dataless(node, settings, suite, p);
+  if (p.kind == ProblemKind::command) check_placeholders(o, suite, p);
   if (has_data(p.kind)) read_problem_reference(o, suite, p);
   return p;
 }

@@ -7,6 +7,7 @@
 
 #include "data/file_io.hpp"
 #include "data/sha256.hpp"
+#include "core/placeholders.hpp"
 #include "suite/suite_sections.hpp"
 
 namespace stepgate {
@@ -23,13 +24,15 @@ std::string_view to_string(ProblemKind k) {
       return "quadratic";
     case ProblemKind::test_function:
       return "test_function";
+    case ProblemKind::command:
+      return "command";
   }
   return "least_squares";
 }
 
 std::optional<ProblemKind> problem_kind_from_string(std::string_view s) {
   for (ProblemKind k : {ProblemKind::least_squares, ProblemKind::logistic, ProblemKind::softmax,
-                        ProblemKind::quadratic, ProblemKind::test_function})
+                        ProblemKind::quadratic, ProblemKind::test_function, ProblemKind::command})
     if (to_string(k) == s) return k;
   return std::nullopt;
 }
@@ -106,5 +109,16 @@ Suite parse_suite(const std::string& text, const std::string& path) {
 }
 
 Suite load_suite(const std::string& path) { return parse_suite(read_raw_file(path), path); }
+
+}  // namespace stepgate
+
+namespace stepgate {
+
+std::map<std::string, std::string> optimizer_fields(const OptimizerSpec& s) {
+  return {{"kind", std::string(to_string(s.kind))}, {"beta", exact_number(s.beta)},
+          {"beta1", exact_number(s.beta1)},         {"beta2", exact_number(s.beta2)},
+          {"rho", exact_number(s.rho)},             {"eps", exact_number(s.eps)},
+          {"batch_size", std::to_string(s.batch_size)}};
+}
 
 }  // namespace stepgate

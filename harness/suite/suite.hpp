@@ -8,6 +8,7 @@
 #include <string_view>
 #include <vector>
 
+#include "core/command_spec.hpp"
 #include "core/gate_tolerances.hpp"
 #include "core/optimizer_spec.hpp"
 #include "core/problem_options.hpp"
@@ -45,7 +46,7 @@ struct DatasetSpec {
   GeneratedSpec generated;
 };
 
-enum class ProblemKind { least_squares, logistic, softmax, quadratic, test_function };
+enum class ProblemKind { least_squares, logistic, softmax, quadratic, test_function, command };
 std::string_view to_string(ProblemKind k);
 /// Parses the lower-case name (as printed by to_string); nullopt for anything else.
 std::optional<ProblemKind> problem_kind_from_string(std::string_view s);
@@ -63,6 +64,7 @@ struct ProblemSpec {
   long classes = 0;                     ///< softmax: 0 = max label + 1
   QuadraticOptions quadratic;
   std::string function;                 ///< test_function: name (see make_test_function)
+  CommandSpec command;                  ///< command: the user's training program
   std::vector<std::string> scalings;    ///< keys into Suite::scalings ("none" is always defined)
   std::vector<std::string> optimizers;  ///< keys into Suite::optimizers
   std::map<std::string, double> pinned; ///< optimizer label -> pinned rate
@@ -84,6 +86,9 @@ struct Suite {
   std::vector<ProblemSpec> problems;
   GateTolerances gate;  ///< suite-level gate section (problems hold merged copies)
 };
+
+/// The {optimizer.FIELD} names a command's argv may use, and their text for an optimizer.
+std::map<std::string, std::string> optimizer_fields(const OptimizerSpec& spec);
 
 /// Reads, parses and validates a suite file. Throws InputError whose where() is
 /// "path" + JSON pointer (e.g. "suites/demo.json#/problems/2/optimizers/0") or "path:line:column"

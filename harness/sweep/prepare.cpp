@@ -26,6 +26,7 @@ std::unique_ptr<Problem> build(const ProblemSpec& p, const Dataset* data, const 
       case ProblemKind::softmax: return make_softmax(*data, p.linear, p.classes);
       case ProblemKind::quadratic: return make_quadratic(p.quadratic);
       case ProblemKind::test_function: return make_test_function(p.function);
+      case ProblemKind::command: return nullptr;  // runs come from the user's program (run/command_runner)
     }
   } catch (const std::invalid_argument& e) {
     throw InputError(where, e.what());

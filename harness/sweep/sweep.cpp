@@ -7,6 +7,7 @@
 #include <tbb/parallel_for.h>
 #include <tbb/task_arena.h>
 
+#include "run/command_runner.hpp"
 #include "search/case_search.hpp"
 #include "sweep/prepare.hpp"
 
@@ -15,7 +16,7 @@ namespace stepgate {
 namespace {
 
 CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProblem& prepared,
-                    const BatchDone& on_batch) {
+                    const BatchDone& on_batch, int jobs) {
   const ProblemSpec& p = suite.problems[c.problem];
   CaseResult r;
   r.id = c.id;
@@ -37,7 +38,16 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
     in.pinned = c.pinned;
     in.reference = prepared.reference;
     in.map = prepared.map;
-    CaseSearchOutput out = search_case(*prepared.problem, in, on_batch);
+    CaseSearchOutput out;
+    if (p.kind == ProblemKind::command) {
+      CommandCase cc{p.command, c.id, c.optimizer, c.scaling, optimizer_fields(r.optimizer)};
+      const RunBatchFn runner = [&](std::span<const double> rates, BatchSeed seed) {
+        return run_commands(cc, p.run, rates, seed, jobs);
+      };
+      out = search_case_with(runner, nullptr, in, on_batch);
+    } else {
+      out = search_case(*prepared.problem, in, on_batch);
+    }
     r.summary = std::move(out.summary);
     r.theory = std::move(out.theory);
     r.optimum_cost = out.optimum_cost;
@@ -83,7 +93,7 @@ Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& opti
     tbb::parallel_for(std::size_t{0}, plan.cases.size(), [&](std::size_t i) {
       const PlannedCase& c = plan.cases[i];
       cases[i] = run_case(suite, c, prepared.at({c.problem, c.scaling}),
-                          [&](int runs) { report(runs, 0); });
+                          [&](int runs) { report(runs, 0); }, jobs);
       report(0, 1);
     }, tbb::simple_partitioner());
   });

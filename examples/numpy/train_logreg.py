@@ -1,0 +1,227 @@
+#!/usr/bin/env python3
+"""Full-batch gradient descent on L2-regularised logistic regression, written in plain numpy.
+
+Scenario: Hollowbrook Diagnostics keeps a small in-house screening model on the Wisconsin
+breast-cancer measurements and wants stepgate to tell it which learning rates are safe for
+its own training loop. The objective is the one stepgate's built-in `logistic` problem uses,
+so the two can be compared rate for rate:
+
+    J(w) = s * sum_i [softplus(z_i) - y_i z_i] + (l2/2) * ||w[:d]||^2,   z = X_aug w,
+    s = 1/n (default) or 1 (--sum-loss),
+
+X_aug = [standardised features | column of ones] (ones LAST), so w = [w_1..w_d, b]. The
+penalty covers w_1..w_d only: the intercept b is not penalised (as in stepgate's
+harness/problems/linear_common.cpp, add_ridge). Features are standardised with their mean
+and POPULATION standard deviation (divisor n). Start: w = 0. Update: w <- w - lr * grad J(w).
+
+Columns (suites/data/breast_cancer.csv): target `benign` (1 benign, 0 malignant); features:
+all 30 other columns, in file order (w_1..w_30 follow this order):
+  mean_radius, mean_texture, mean_perimeter, mean_area, mean_smoothness,
+  mean_compactness, mean_concavity, mean_concave_points, mean_symmetry, mean_fractal_dimension,
+  radius_error, texture_error, perimeter_error, area_error, smoothness_error, compactness_error,
+  concavity_error, concave_points_error, symmetry_error, fractal_dimension_error, worst_radius,
+  worst_texture, worst_perimeter, worst_area, worst_smoothness, worst_compactness,
+  worst_concavity, worst_concave_points, worst_symmetry, worst_fractal_dimension
+
+Protocol (stepgate problem kind `command`):
+  per run : train_logreg.py --lr R --seed S --steps N   -> {"iter": k, "cost": J, "grad_norm": g}
+            lines for k = 0..N, then {"params": [...]}
+  serving : train_logreg.py --serve   (requests on stdin, one JSON object per line)
+"""
+import argparse
+import collections
+import csv
+import json
+import math
+import os
+import select
+import signal
+import sys
+
+import numpy as np
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+DEFAULT_DATA = os.path.join(HERE, "..", "..", "suites", "data", "breast_cancer.csv")
+
+
+# ---------------------------------------------------------------------------------------
+# The model
+# ---------------------------------------------------------------------------------------
+
+def load(path, target):
+    with open(path, newline="") as f:
+        rows = list(csv.reader(f))
+    header, body = rows[0], rows[1:]
+    if target not in header:
+        sys.exit(f"train_logreg: {path}: no column named {target!r}; columns are {header}")
+    t = header.index(target)
+    features = [name for j, name in enumerate(header) if j != t]
+    values = np.array(body, dtype=np.float64)
+    y = values[:, t]
+    X = np.delete(values, t, axis=1)
+    if not np.all((y == 0.0) | (y == 1.0)):
+        sys.exit(f"train_logreg: {path}: column {target!r} must hold 0/1 labels")
+    return features, X, y
+
+
+def standardise(X):
+    mean = X.mean(axis=0)
+    sd = np.sqrt(((X - mean) ** 2).sum(axis=0) / X.shape[0])  # population sd (ddof = 0)
+    if np.any(sd == 0.0):
+        sys.exit("train_logreg: a feature column is constant; cannot standardise it")
+    return (X - mean) / sd
+
+
+def softplus(z):
+    """log(1 + exp(z)) without overflow for either sign of z."""
+    return np.maximum(z, 0.0) + np.log1p(np.exp(-np.abs(z)))
+
+
+def sigmoid(z):
+    """1 / (1 + exp(-z)) without overflow."""
+    e = np.exp(-np.abs(z))
+    return np.where(z >= 0.0, 1.0 / (1.0 + e), e / (1.0 + e))
+
+
+class Logistic:
+    def __init__(self, X, y, l2, sum_loss):
+        self.X = np.hstack([X, np.ones((X.shape[0], 1))])  # intercept column LAST
+        self.y = y
+        self.l2 = l2
+        self.d = X.shape[1]  # penalised entries: w[:d]; w[d] is the intercept
+        self.weight = 1.0 if sum_loss else 1.0 / X.shape[0]
+
+    def cost_grad(self, w):
+        z = self.X @ w
+        cost = self.weight * float(np.sum(softplus(z) - self.y * z))
+        # sigma(z) - y, computed as -sigma(-z) where y = 1 so that it keeps its digits.
+        r = np.where(self.y == 1.0, -sigmoid(-z), sigmoid(z))
+        grad = self.weight * (self.X.T @ r)
+        if self.l2 != 0.0:
+            cost += 0.5 * self.l2 * float(w[: self.d] @ w[: self.d])
+            grad[: self.d] += self.l2 * w[: self.d]
+        return cost, grad
+
+
+def train(model, lr, steps, emit, stopped):
+    """Runs `steps` updates from w = 0; emits iterations 0..steps. Returns the final w, or
+    None when the run diverged or was stopped."""
+    w = np.zeros(model.X.shape[1])
+    with np.errstate(all="ignore"):  # overflow shows as a non-finite cost, reported below
+        for k in range(steps + 1):
+            cost, grad = model.cost_grad(w)
+            emit({"iter": k, "cost": cost, "grad_norm": float(np.linalg.norm(grad))})
+            if not math.isfinite(cost) or stopped():
+                return None
+            if k < steps:
+                w = w - lr * grad
+    return w
+
+
+# ---------------------------------------------------------------------------------------
+# stepgate's `command` protocol (the same block is in each example; each file stands alone)
+# ---------------------------------------------------------------------------------------
+
+def say(obj):
+    # json.dumps writes floats with repr (round-trips exactly) and non-finite values as the
+    # bare tokens NaN / Infinity / -Infinity, which stepgate accepts.
+    sys.stdout.write(json.dumps(obj) + "\n")
+    sys.stdout.flush()
+
+
+class Inbox:
+    """JSON lines from fd 0, read with os.read (no Python buffering, so select() on fd 0
+    tells the truth about what is waiting)."""
+
+    def __init__(self):
+        self.partial = b""
+        self.messages = collections.deque()
+        self.eof = False
+
+    def pump(self, block):
+        timeout = None if block else 0.0
+        while not self.eof and select.select([0], [], [], timeout)[0]:
+            chunk = os.read(0, 1 << 16)
+            if not chunk:
+                self.eof = True
+                chunk = b"\n"  # a last line without a newline still counts
+            *lines, self.partial = (self.partial + chunk).split(b"\n")
+            for line in lines:
+                if line.strip():
+                    try:
+                        msg = json.loads(line)
+                    except ValueError:
+                        msg = None
+                    if not isinstance(msg, dict):
+                        sys.exit(f"serve: not a JSON object on stdin: {line[:200]!r}")
+                    self.messages.append(msg)
+            timeout = 0.0
+
+    def next(self):
+        """The next message, waiting for it; None at the end of input."""
+        while not self.messages and not self.eof:
+            self.pump(block=True)
+        return self.messages.popleft() if self.messages else None
+
+    def stop_requested(self, run):
+        """True if a {"stop": run} line has arrived; drops every stop line read so far (a
+        stop for a run that is not running is stale and ignored)."""
+        self.pump(block=False)
+        found = any(m.get("stop") == run for m in self.messages if "stop" in m)
+        if any("stop" in m for m in self.messages):
+            self.messages = collections.deque(m for m in self.messages if "stop" not in m)
+        return found
+
+
+def serve(run_one, default_beta=None):
+    inbox = Inbox()
+    while True:
+        msg = inbox.next()
+        if msg is None:
+            return 0
+        if "run" not in msg:
+            continue  # a stop for a run that has already ended
+        rid = msg["run"]
+        try:
+            rate, seed, budget = float(msg["rate"]), int(msg["seed"]), int(msg["budget"])
+        except (KeyError, TypeError, ValueError) as e:
+            sys.exit(f"serve: request {msg!r}: needs numeric rate, seed and budget ({e})")
+        beta = float(msg["beta"]) if "beta" in msg else default_beta
+        run_one(rate, seed, budget, beta, lambda obj: say({"run": rid, **obj}),
+                lambda: inbox.stop_requested(rid))
+        say({"run": rid, "end": True})
+
+
+# ---------------------------------------------------------------------------------------
+
+def main():
+    p = argparse.ArgumentParser(description=__doc__.split("\n")[0])
+    p.add_argument("--lr", type=float, help="learning rate (per-run mode)")
+    p.add_argument("--seed", type=int, default=0, help="accepted; the run is deterministic anyway")
+    p.add_argument("--steps", type=int, help="number of updates (per-run mode)")
+    p.add_argument("--l2", type=float, default=1e-3, help="L2 strength on w_1..w_d (default 1e-3)")
+    p.add_argument("--data", default=DEFAULT_DATA, help="CSV file (default: suites/data/breast_cancer.csv)")
+    p.add_argument("--target", default="benign", help="0/1 label column (default benign)")
+    p.add_argument("--sum-loss", action="store_true", help="planted change: loss summed, not averaged")
+    p.add_argument("--serve", action="store_true", help="serving mode: requests on stdin")
+    args = p.parse_args()
+    signal.signal(signal.SIGPIPE, signal.SIG_DFL)  # reader gone: end quietly
+
+    _, X, y = load(args.data, args.target)
+    model = Logistic(standardise(X), y, args.l2, args.sum_loss)
+
+    def run_one(rate, seed, budget, beta, emit, stopped):
+        return train(model, rate, budget, emit, stopped)
+
+    if args.serve:
+        return serve(run_one)
+    if args.lr is None or args.steps is None or args.steps < 0:
+        p.error("per-run mode needs --lr and --steps >= 0 (or --serve)")
+    w = run_one(args.lr, args.seed, args.steps, None, say, lambda: False)
+    if w is not None:
+        say({"params": [float(v) for v in w]})
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,217 @@
+#!/usr/bin/env python3
+"""scikit-learn SGDRegressor, trained one epoch at a time, reporting its cost to stepgate.
+
+Scenario: Tamarind Health Analytics predicts one-year disease progression from ten baseline
+measurements (suites/data/diabetes.csv) with scikit-learn's SGDRegressor and its constant
+learning rate eta0, and asks stepgate which eta0 values are safe.
+
+Columns: target `progression`; features: the other ten columns in file order, age, sex, bmi,
+bp, s1, s2, s3, s4, s5, s6.
+Data: features standardised with mean and POPULATION standard deviation (divisor n), unless
+--raw-features (the planted change: features in their raw units). The target is always
+standardised the same way (centred, divided by its population sd), so the zero model has
+cost 0.5 and costs read as fractions of the target's variance.
+Model: SGDRegressor(loss="squared_error", penalty=None, learning_rate="constant", eta0=lr,
+fit_intercept=True, shuffle=True, random_state=numpy.random.RandomState(seed)). One
+partial_fit call = one epoch = n single-row updates in a shuffled order. A RandomState
+object, not the int seed, is passed so that each epoch gets a fresh order (with an int,
+every partial_fit call re-seeds and repeats the first epoch's order); the run is still a
+pure function of the seed. With --alpha A > 0 the penalty is "l2" with that alpha.
+Cost: J = 1/(2n) * sum_i (x_i . coef + intercept - y_i)^2 on the full training set, plus
+(alpha/2) * ||coef||^2 when --alpha is given (the intercept is not penalised), i.e. the
+objective SGDRegressor minimises. Iteration 0 is the zero model SGDRegressor starts from
+(partial_fit's first call starts from coef = 0, intercept = 0); iteration k is after k epochs.
+
+Protocol (stepgate problem kind `command`):
+  per run : train_sgd.py --lr R --seed S --steps EPOCHS   -> {"iter": k, "cost": J} lines
+            for k = 0..EPOCHS, then {"params": [coef..., intercept]}
+  serving : train_sgd.py --serve   (requests on stdin, one JSON object per line)
+"""
+import argparse
+import collections
+import csv
+import json
+import math
+import os
+import select
+import signal
+import sys
+import warnings
+
+import numpy as np
+from sklearn.exceptions import ConvergenceWarning
+from sklearn.linear_model import SGDRegressor
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+DEFAULT_DATA = os.path.join(HERE, "..", "..", "suites", "data", "diabetes.csv")
+
+
+# ---------------------------------------------------------------------------------------
+# The model
+# ---------------------------------------------------------------------------------------
+
+def load(path, target):
+    with open(path, newline="") as f:
+        rows = list(csv.reader(f))
+    header, body = rows[0], rows[1:]
+    if target not in header:
+        sys.exit(f"train_sgd: {path}: no column named {target!r}; columns are {header}")
+    t = header.index(target)
+    values = np.array(body, dtype=np.float64)
+    return np.delete(values, t, axis=1), values[:, t]
+
+
+def standardise(v):
+    mean = v.mean(axis=0)
+    sd = np.sqrt(((v - mean) ** 2).sum(axis=0) / v.shape[0])  # population sd (ddof = 0)
+    if np.any(sd == 0.0):
+        sys.exit("train_sgd: a column is constant; cannot standardise it")
+    return (v - mean) / sd
+
+
+def cost(X, y, coef, intercept, alpha):
+    with np.errstate(all="ignore"):
+        r = X @ coef + intercept - y
+        J = 0.5 * float(r @ r) / X.shape[0]
+        if alpha > 0.0:
+            J += 0.5 * alpha * float(coef @ coef)
+    return J if math.isfinite(J) else float("nan") if math.isnan(J) else float("inf")
+
+
+def train(X, y, alpha, lr, seed, epochs, emit, stopped):
+    """Emits iterations 0..epochs; returns [coef..., intercept], or None when the run
+    diverged or was stopped."""
+    model = SGDRegressor(loss="squared_error", penalty="l2" if alpha > 0.0 else None,
+                         alpha=alpha if alpha > 0.0 else 0.0001, learning_rate="constant",
+                         eta0=lr, fit_intercept=True, shuffle=True, max_iter=1, tol=None,
+                         random_state=np.random.RandomState(seed))
+    coef, intercept = np.zeros(X.shape[1]), 0.0
+    for k in range(epochs + 1):
+        if k > 0:
+            try:
+                model.partial_fit(X, y)
+            except ValueError as e:  # "Floating-point under-/overflow occurred at epoch #1..."
+                print(f"train_sgd: epoch {k}: SGDRegressor gave up: {e}", file=sys.stderr)
+                emit({"iter": k, "cost": float("inf")})
+                return None
+            coef, intercept = model.coef_, float(model.intercept_[0])
+        J = cost(X, y, coef, intercept, alpha)
+        emit({"iter": k, "cost": J})
+        if not math.isfinite(J) or stopped():
+            return None
+    return [float(c) for c in coef] + [intercept]
+
+
+# ---------------------------------------------------------------------------------------
+# stepgate's `command` protocol (the same block is in each example; each file stands alone)
+# ---------------------------------------------------------------------------------------
+
+def say(obj):
+    # json.dumps writes floats with repr (round-trips exactly) and non-finite values as the
+    # bare tokens NaN / Infinity / -Infinity, which stepgate accepts.
+    sys.stdout.write(json.dumps(obj) + "\n")
+    sys.stdout.flush()
+
+
+class Inbox:
+    """JSON lines from fd 0, read with os.read (no Python buffering, so select() on fd 0
+    tells the truth about what is waiting)."""
+
+    def __init__(self):
+        self.partial = b""
+        self.messages = collections.deque()
+        self.eof = False
+
+    def pump(self, block):
+        timeout = None if block else 0.0
+        while not self.eof and select.select([0], [], [], timeout)[0]:
+            chunk = os.read(0, 1 << 16)
+            if not chunk:
+                self.eof = True
+                chunk = b"\n"  # a last line without a newline still counts
+            *lines, self.partial = (self.partial + chunk).split(b"\n")
+            for line in lines:
+                if line.strip():
+                    try:
+                        msg = json.loads(line)
+                    except ValueError:
+                        msg = None
+                    if not isinstance(msg, dict):
+                        sys.exit(f"serve: not a JSON object on stdin: {line[:200]!r}")
+                    self.messages.append(msg)
+            timeout = 0.0
+
+    def next(self):
+        """The next message, waiting for it; None at the end of input."""
+        while not self.messages and not self.eof:
+            self.pump(block=True)
+        return self.messages.popleft() if self.messages else None
+
+    def stop_requested(self, run):
+        """True if a {"stop": run} line has arrived; drops every stop line read so far (a
+        stop for a run that is not running is stale and ignored)."""
+        self.pump(block=False)
+        found = any(m.get("stop") == run for m in self.messages if "stop" in m)
+        if any("stop" in m for m in self.messages):
+            self.messages = collections.deque(m for m in self.messages if "stop" not in m)
+        return found
+
+
+def serve(run_one, default_beta=None):
+    inbox = Inbox()
+    while True:
+        msg = inbox.next()
+        if msg is None:
+            return 0
+        if "run" not in msg:
+            continue  # a stop for a run that has already ended
+        rid = msg["run"]
+        try:
+            rate, seed, budget = float(msg["rate"]), int(msg["seed"]), int(msg["budget"])
+        except (KeyError, TypeError, ValueError) as e:
+            sys.exit(f"serve: request {msg!r}: needs numeric rate, seed and budget ({e})")
+        beta = float(msg["beta"]) if "beta" in msg else default_beta
+        run_one(rate, seed, budget, beta, lambda obj: say({"run": rid, **obj}),
+                lambda: inbox.stop_requested(rid))
+        say({"run": rid, "end": True})
+
+
+# ---------------------------------------------------------------------------------------
+
+def main():
+    p = argparse.ArgumentParser(description=__doc__.split("\n")[0])
+    p.add_argument("--lr", type=float, help="eta0, the constant learning rate (per-run mode)")
+    p.add_argument("--seed", type=int, default=0, help="seed of the shuffling (default 0)")
+    p.add_argument("--steps", type=int, help="number of epochs (per-run mode)")
+    p.add_argument("--alpha", type=float, default=0.0,
+                   help="L2 strength; 0 (default) means penalty=None")
+    p.add_argument("--data", default=DEFAULT_DATA, help="CSV file (default: suites/data/diabetes.csv)")
+    p.add_argument("--target", default="progression", help="target column (default progression)")
+    p.add_argument("--raw-features", action="store_true",
+                   help="planted change: features not standardised (raw units)")
+    p.add_argument("--serve", action="store_true", help="serving mode: requests on stdin")
+    args = p.parse_args()
+    signal.signal(signal.SIGPIPE, signal.SIG_DFL)  # reader gone: end quietly
+    warnings.simplefilter("ignore", ConvergenceWarning)
+    if not (args.alpha >= 0.0):
+        p.error("--alpha must be >= 0")
+
+    X, y = load(args.data, args.target)
+    X = X if args.raw_features else standardise(X)
+    y = standardise(y)
+
+    def run_one(rate, seed, budget, beta, emit, stopped):
+        return train(X, y, args.alpha, rate, seed, budget, emit, stopped)
+
+    if args.serve:
+        return serve(run_one)
+    if args.lr is None or args.steps is None or args.steps < 0:
+        p.error("per-run mode needs --lr and --steps >= 0 (or --serve)")
+    params = run_one(args.lr, args.seed, args.steps, None, say, lambda: False)
+    if params is not None:
+        say({"params": params})
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

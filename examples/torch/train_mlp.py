@@ -1,0 +1,221 @@
+#!/usr/bin/env python3
+"""A small PyTorch MLP classifier, full-batch SGD with momentum, reporting its cost to stepgate.
+
+Scenario: Larkspur Freight sorts parcels into three service tiers (economy, standard,
+express) from eight measurements taken at drop-off. The data are generated here from a
+fixed data seed (2026), not measured: an invented scenario. The columns have very different
+scales on purpose (route distance in the thousands of km, declared value in the hundreds,
+a fragility score between 0 and 1), so input normalisation matters:
+
+  weight_kg, distance_km, declared_value, volume_l, fragility, days_to_deadline,
+  dropoff_hour, tenure_months
+
+Model: 8 -> 16 -> 16 -> 3, tanh (or --activation relu), float64, PyTorch's default initialisation under
+torch.manual_seed(seed) (the run's --seed sets the initial weights only; the data never
+change). Inputs standardised with mean and POPULATION sd (divisor n) unless --no-normalize.
+Training: full batch, torch.optim.SGD(lr, momentum=beta), cross-entropy with reduction
+"mean" (or "sum" with --sum-loss). Iteration k's cost is the full-batch loss after k
+updates (iteration 0: at the initial weights); grad_norm is the norm of its gradient.
+
+Protocol (stepgate problem kind `command`):
+  per run : train_mlp.py --lr R --seed S --steps N [--beta B]  -> {"iter": k, "cost": J,
+            "grad_norm": g} lines for k = 0..N, then {"params": [...]} (all weights, flat)
+  serving : train_mlp.py --serve   (requests on stdin, one JSON object per line; a request's
+            "beta" field, if present, overrides --beta)
+"""
+import argparse
+import collections
+import json
+import math
+import os
+import select
+import signal
+import sys
+
+import numpy as np
+import torch
+
+DATA_SEED = 2026
+ROWS, CLASSES = 1200, 3
+
+
+# ---------------------------------------------------------------------------------------
+# The data and the model
+# ---------------------------------------------------------------------------------------
+
+def make_parcels(rows=ROWS, seed=DATA_SEED):
+    """Larkspur Freight's parcels: features in their natural units, and tier labels 0..2."""
+    rng = np.random.default_rng(seed)
+    weight = rng.lognormal(mean=1.5, sigma=0.6, size=rows)            # kg, ~ 5
+    distance = rng.uniform(50.0, 4000.0, size=rows)                    # km, thousands
+    value = rng.lognormal(mean=5.0, sigma=0.8, size=rows)              # currency, ~ 200
+    volume = weight * rng.uniform(3.0, 8.0, size=rows)                 # litres, ~ 30
+    fragility = rng.beta(2.0, 5.0, size=rows)                          # 0..1
+    deadline = rng.integers(1, 11, size=rows).astype(np.float64)       # days, 1..10
+    hour = rng.uniform(6.0, 22.0, size=rows)                           # hour of day
+    tenure = rng.exponential(30.0, size=rows)                          # months
+    X = np.column_stack([weight, distance, value, volume, fragility, deadline, hour, tenure])
+    # Hidden rule: urgency (near deadline, long route, valuable, fragile) pushes a parcel up
+    # the tiers; late drop-offs and loyal customers nudge it; noise keeps classes overlapping.
+    z = (X - X.mean(axis=0)) / X.std(axis=0)
+    urgency = (-1.2 * z[:, 5] + 0.8 * z[:, 1] + 0.6 * z[:, 2] + 0.5 * z[:, 4]
+               + 0.3 * np.tanh(z[:, 6]) + 0.2 * z[:, 7] - 0.3 * z[:, 0] * z[:, 3])
+    urgency += rng.normal(scale=0.5, size=rows)
+    y = np.digitize(urgency, np.quantile(urgency, [0.4, 0.75]))      # 40% / 35% / 25%
+    return X, y
+
+
+def standardise(X):
+    mean = X.mean(axis=0)
+    sd = np.sqrt(((X - mean) ** 2).sum(axis=0) / X.shape[0])  # population sd (ddof = 0)
+    return (X - mean) / sd
+
+
+ACTIVATIONS = {"tanh": torch.nn.Tanh, "relu": torch.nn.ReLU}
+
+
+def make_model(seed, features, activation):
+    torch.manual_seed(seed)
+    kw = {"dtype": torch.float64}
+    act = ACTIVATIONS[activation]
+    return torch.nn.Sequential(
+        torch.nn.Linear(features, 16, **kw), act(),
+        torch.nn.Linear(16, 16, **kw), act(),
+        torch.nn.Linear(16, CLASSES, **kw))
+
+
+def train(X, y, reduction, activation, lr, seed, steps, beta, emit, stopped):
+    """Emits iterations 0..steps; returns the final parameters as a flat list, or None when
+    the run diverged or was stopped."""
+    model = make_model(seed, X.shape[1], activation)
+    params = list(model.parameters())
+    opt = torch.optim.SGD(params, lr=lr, momentum=beta)
+    loss_fn = torch.nn.CrossEntropyLoss(reduction=reduction)
+    for k in range(steps + 1):
+        opt.zero_grad(set_to_none=False)
+        loss = loss_fn(model(X), y)
+        loss.backward()
+        with torch.no_grad():
+            grad_norm = math.sqrt(sum(float((p.grad * p.grad).sum()) for p in params))
+        cost = float(loss)
+        emit({"iter": k, "cost": cost, "grad_norm": grad_norm})
+        if not math.isfinite(cost) or stopped():
+            return None
+        if k < steps:
+            opt.step()
+    return [float(v) for p in params for v in p.detach().reshape(-1)]
+
+
+# ---------------------------------------------------------------------------------------
+# stepgate's `command` protocol (the same block is in each example; each file stands alone)
+# ---------------------------------------------------------------------------------------
+
+def say(obj):
+    # json.dumps writes floats with repr (round-trips exactly) and non-finite values as the
+    # bare tokens NaN / Infinity / -Infinity, which stepgate accepts.
+    sys.stdout.write(json.dumps(obj) + "\n")
+    sys.stdout.flush()
+
+
+class Inbox:
+    """JSON lines from fd 0, read with os.read (no Python buffering, so select() on fd 0
+    tells the truth about what is waiting)."""
+
+    def __init__(self):
+        self.partial = b""
+        self.messages = collections.deque()
+        self.eof = False
+
+    def pump(self, block):
+        timeout = None if block else 0.0
+        while not self.eof and select.select([0], [], [], timeout)[0]:
+            chunk = os.read(0, 1 << 16)
+            if not chunk:
+                self.eof = True
+                chunk = b"\n"  # a last line without a newline still counts
+            *lines, self.partial = (self.partial + chunk).split(b"\n")
+            for line in lines:
+                if line.strip():
+                    try:
+                        msg = json.loads(line)
+                    except ValueError:
+                        msg = None
+                    if not isinstance(msg, dict):
+                        sys.exit(f"serve: not a JSON object on stdin: {line[:200]!r}")
+                    self.messages.append(msg)
+            timeout = 0.0
+
+    def next(self):
+        """The next message, waiting for it; None at the end of input."""
+        while not self.messages and not self.eof:
+            self.pump(block=True)
+        return self.messages.popleft() if self.messages else None
+
+    def stop_requested(self, run):
+        """True if a {"stop": run} line has arrived; drops every stop line read so far (a
+        stop for a run that is not running is stale and ignored)."""
+        self.pump(block=False)
+        found = any(m.get("stop") == run for m in self.messages if "stop" in m)
+        if any("stop" in m for m in self.messages):
+            self.messages = collections.deque(m for m in self.messages if "stop" not in m)
+        return found
+
+
+def serve(run_one, default_beta=None):
+    inbox = Inbox()
+    while True:
+        msg = inbox.next()
+        if msg is None:
+            return 0
+        if "run" not in msg:
+            continue  # a stop for a run that has already ended
+        rid = msg["run"]
+        try:
+            rate, seed, budget = float(msg["rate"]), int(msg["seed"]), int(msg["budget"])
+        except (KeyError, TypeError, ValueError) as e:
+            sys.exit(f"serve: request {msg!r}: needs numeric rate, seed and budget ({e})")
+        beta = float(msg["beta"]) if "beta" in msg else default_beta
+        run_one(rate, seed, budget, beta, lambda obj: say({"run": rid, **obj}),
+                lambda: inbox.stop_requested(rid))
+        say({"run": rid, "end": True})
+
+
+# ---------------------------------------------------------------------------------------
+
+def main():
+    p = argparse.ArgumentParser(description=__doc__.split("\n")[0])
+    p.add_argument("--lr", type=float, help="learning rate (per-run mode)")
+    p.add_argument("--seed", type=int, default=0, help="seed of the weight initialisation (default 0)")
+    p.add_argument("--steps", type=int, help="number of updates (per-run mode)")
+    p.add_argument("--beta", type=float, default=0.9, help="momentum (default 0.9; 0 = plain gradient descent)")
+    p.add_argument("--activation", choices=sorted(ACTIVATIONS), default="tanh",
+                   help="hidden-layer activation (default tanh)")
+    p.add_argument("--sum-loss", action="store_true", help="planted change: reduction='sum', not 'mean'")
+    p.add_argument("--no-normalize", action="store_true", help="planted change: inputs not standardised")
+    p.add_argument("--serve", action="store_true", help="serving mode: requests on stdin")
+    args = p.parse_args()
+    signal.signal(signal.SIGPIPE, signal.SIG_DFL)  # reader gone: end quietly
+    torch.set_num_threads(1)
+    torch.set_num_interop_threads(1)
+    torch.use_deterministic_algorithms(True)
+
+    X, y = make_parcels()
+    X = torch.from_numpy(X if args.no_normalize else standardise(X))
+    y = torch.from_numpy(y).long()
+    reduction = "sum" if args.sum_loss else "mean"
+
+    def run_one(rate, seed, budget, beta, emit, stopped):
+        return train(X, y, reduction, args.activation, rate, seed, budget, beta, emit, stopped)
+
+    if args.serve:
+        return serve(run_one, default_beta=args.beta)
+    if args.lr is None or args.steps is None or args.steps < 0:
+        p.error("per-run mode needs --lr and --steps >= 0 (or --serve)")
+    params = run_one(args.lr, args.seed, args.steps, args.beta, say, lambda: False)
+    if params is not None:
+        say({"params": params})
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,41 @@
+#include "core/placeholders.hpp"
+
+#include <stdexcept>
+
+#include <fmt/format.h>
+
+namespace stepgate {
+
+std::string expand_placeholders(std::string_view arg,
+                                const std::function<std::optional<std::string>(std::string_view)>& lookup) {
+  std::string out;
+  for (std::size_t i = 0; i < arg.size(); ++i) {
+    const char c = arg[i];
+    if ((c == '{' || c == '}') && i + 1 < arg.size() && arg[i + 1] == c) {
+      out += c;
+      ++i;
+      continue;
+    }
+    if (c != '{') {
+      out += c;
+      continue;
+    }
+    const auto end = arg.find('}', i);
+    if (end == std::string_view::npos)
+      throw std::invalid_argument(fmt::format("'{{' without a closing '}}' in \"{}\"", arg));
+    const std::string_view name = arg.substr(i + 1, end - i - 1);
+    const std::optional<std::string> value = lookup(name);
+    if (!value)
+      throw std::invalid_argument(fmt::format("unknown placeholder {{{}}} in \"{}\"; expected one of {{rate}}, "
+                                              "{{seed}}, {{budget}}, {{optimizer}}, {{optimizer.FIELD}}, "
+                                              "{{scaling}}, {{case}}, {{out}}",
+                                              name, arg));
+    out += *value;
+    i = end;
+  }
+  return out;
+}
+
+std::string exact_number(double v) { return fmt::format("{}", v); }
+
+}  // namespace stepgate

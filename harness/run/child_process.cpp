@@ -1,0 +1,213 @@
+#include "run/child_process.hpp"
+
+#include <algorithm>
+#include <cerrno>
+#include <csignal>
+#include <cstring>
+#include <fcntl.h>
+#include <poll.h>
+#include <sys/wait.h>
+#include <thread>
+#include <unistd.h>
+
+#include "core/error.hpp"
+
+extern char** environ;
+
+namespace stepgate {
+
+namespace {
+
+void close_fd(int& fd) {
+  if (fd >= 0) ::close(fd);
+  fd = -1;
+}
+
+std::vector<std::string> merged_environment(const std::map<std::string, std::string>& extra) {
+  std::map<std::string, std::string> env;
+  for (char** e = environ; e && *e; ++e) {
+    const std::string kv(*e);
+    const auto eq = kv.find('=');
+    if (eq != std::string::npos) env[kv.substr(0, eq)] = kv.substr(eq + 1);
+  }
+  for (const auto& [k, v] : extra) env[k] = v;
+  std::vector<std::string> out;
+  for (const auto& [k, v] : env) out.push_back(k + "=" + v);
+  return out;
+}
+
+}  // namespace
+
+ChildProcess::ChildProcess(const ChildOptions& o) {
+  if (o.argv.empty()) throw ToolError("command: empty argv");
+  std::signal(SIGPIPE, SIG_IGN);  // a child that closed its stdin must not kill the tool
+  // Everything the child needs is built before fork: after it, only async-signal-safe calls.
+  std::vector<std::string> env_strings = merged_environment(o.env);
+  std::vector<char*> argv, envp;
+  for (const std::string& a : o.argv) argv.push_back(const_cast<char*>(a.c_str()));
+  argv.push_back(nullptr);
+  for (std::string& e : env_strings) envp.push_back(e.data());
+  envp.push_back(nullptr);
+  int out[2], err[2], in[2] = {-1, -1};
+  if (::pipe2(out, O_CLOEXEC) != 0 || ::pipe2(err, O_CLOEXEC) != 0 || (o.pipe_stdin && ::pipe2(in, O_CLOEXEC) != 0))
+    throw ToolError(std::string("command: cannot create pipes: ") + std::strerror(errno));
+  const std::string cwd = o.cwd;
+  pid_ = ::fork();
+  if (pid_ < 0) throw ToolError(std::string("command: cannot fork: ") + std::strerror(errno));
+  if (pid_ == 0) {
+    ::setpgid(0, 0);
+    ::dup2(out[1], 1);
+    ::dup2(err[1], 2);
+    if (in[0] >= 0) ::dup2(in[0], 0);
+    else {
+      const int devnull = ::open("/dev/null", O_RDONLY);
+      if (devnull >= 0) ::dup2(devnull, 0);
+    }
+    std::signal(SIGPIPE, SIG_DFL);
+    if (!cwd.empty() && ::chdir(cwd.c_str()) != 0) {
+      const char msg[] = "stepgate: cannot enter the command's working directory\n";
+      (void)!::write(2, msg, sizeof msg - 1);
+      ::_exit(127);
+    }
+    ::execvpe(argv[0], argv.data(), envp.data());
+    const char msg[] = "stepgate: cannot execute the command: ";
+    (void)!::write(2, msg, sizeof msg - 1);
+    const char* why = std::strerror(errno);
+    (void)!::write(2, why, std::strlen(why));
+    (void)!::write(2, "\n", 1);
+    ::_exit(127);
+  }
+  ::setpgid(pid_, pid_);  // also here, so the group exists before either side goes on
+  ::close(out[1]);
+  ::close(err[1]);
+  if (in[0] >= 0) ::close(in[0]);
+  out_ = out[0];
+  err_ = err[0];
+  in_ = in[1];
+}
+
+ChildProcess::~ChildProcess() {
+  if (!exit_ && pid_ > 0) {
+    ::kill(-pid_, SIGKILL);
+    try_reap(true);
+  }
+  close_fd(out_);
+  close_fd(err_);
+  close_fd(in_);
+}
+
+bool ChildProcess::read_lines(std::vector<std::string>& lines, std::chrono::milliseconds timeout) {
+  if (out_ < 0) return false;
+  pollfd fds[2] = {{out_, POLLIN, 0}, {err_, POLLIN, 0}};
+  const int n = ::poll(fds, err_ >= 0 ? 2 : 1, static_cast<int>(timeout.count()));
+  if (n < 0 && errno != EINTR) throw ToolError(std::string("command: poll failed: ") + std::strerror(errno));
+  if (err_ >= 0 && (fds[1].revents & (POLLIN | POLLHUP))) drain_stderr();
+  if (fds[0].revents & (POLLIN | POLLHUP)) {
+    char buf[65536];
+    const ssize_t got = ::read(out_, buf, sizeof buf);
+    if (got <= 0) {
+      if (!partial_.empty()) lines.push_back(std::move(partial_)), partial_.clear();
+      close_fd(out_);
+      return false;
+    }
+    bytes_ += got;
+    std::size_t start = 0;
+    for (std::size_t i = 0; i < static_cast<std::size_t>(got); ++i)
+      if (buf[i] == '\n') {
+        partial_.append(buf + start, i - start);
+        lines.push_back(std::move(partial_));
+        partial_.clear();
+        start = i + 1;
+      }
+    partial_.append(buf + start, static_cast<std::size_t>(got) - start);
+    // A line without end counts as output too; it is bounded by the caller's size cap.
+  }
+  return true;
+}
+
+void ChildProcess::drain_stderr() {
+  char buf[65536];
+  const ssize_t got = ::read(err_, buf, sizeof buf);
+  if (got <= 0) {
+    close_fd(err_);
+    return;
+  }
+  bytes_ += got;
+  err_text_.append(buf, static_cast<std::size_t>(got));
+  if (err_text_.size() > 16384) err_text_.erase(0, err_text_.size() - 8192);
+}
+
+bool ChildProcess::write(const std::string& text) {
+  if (in_ < 0) return false;
+  std::size_t done = 0;
+  while (done < text.size()) {
+    const ssize_t n = ::write(in_, text.data() + done, text.size() - done);
+    if (n < 0) {
+      if (errno == EINTR) continue;
+      close_fd(in_);
+      return false;
+    }
+    done += static_cast<std::size_t>(n);
+  }
+  return true;
+}
+
+void ChildProcess::close_stdin() { close_fd(in_); }
+
+std::optional<ChildExit> ChildProcess::try_reap(bool block) {
+  if (exit_) return exit_;
+  int status = 0;
+  pid_t r;
+  do r = ::waitpid(pid_, &status, block ? 0 : WNOHANG);
+  while (r < 0 && errno == EINTR);
+  if (r != pid_) return std::nullopt;
+  exit_ = WIFSIGNALED(status) ? ChildExit{true, WTERMSIG(status)} : ChildExit{false, WEXITSTATUS(status)};
+  return exit_;
+}
+
+ChildExit ChildProcess::stop(double grace) {
+  if (!exit_) {
+    ::kill(-pid_, SIGTERM);
+    const auto until = std::chrono::steady_clock::now() + std::chrono::duration<double>(grace);
+    while (!try_reap(false) && std::chrono::steady_clock::now() < until) {
+      std::vector<std::string> ignored;
+      if (out_ >= 0) read_lines(ignored, std::chrono::milliseconds(10));  // keep its pipes from filling
+      else std::this_thread::sleep_for(std::chrono::milliseconds(10));
+    }
+  }
+  ::kill(-pid_, SIGKILL);  // the child if it ignored SIGTERM, and whatever it left in its group
+  try_reap(true);
+  while (err_ >= 0) {
+    pollfd p{err_, POLLIN, 0};
+    if (::poll(&p, 1, 0) <= 0) break;
+    drain_stderr();
+  }
+  return *exit_;
+}
+
+ChildExit ChildProcess::wait() {
+  try_reap(true);
+  ::kill(-pid_, SIGKILL);
+  while (err_ >= 0) {
+    pollfd p{err_, POLLIN, 0};
+    if (::poll(&p, 1, 100) <= 0) break;
+    drain_stderr();
+  }
+  return *exit_;
+}
+
+std::string ChildProcess::stderr_tail() const {
+  std::string t = err_text_;
+  while (!t.empty() && (t.back() == '\n' || t.back() == '\r')) t.pop_back();
+  std::size_t pos = t.size();
+  for (int lines = 0; lines < 20 && pos > 0; ++lines) {
+    const auto nl = t.rfind('\n', pos - 1);
+    if (nl == std::string::npos) { pos = 0; break; }
+    pos = nl;
+  }
+  std::string tail = t.substr(pos == 0 ? 0 : pos + 1);
+  if (tail.size() > 4096) tail = tail.substr(tail.size() - 4096);
+  return tail;
+}
+
+}  // namespace stepgate

@@ -1,0 +1,64 @@
+// A child process in a process group of its own, with its stdout and stderr read through pipes
+// (POSIX). The group is what gets stopped, so grandchildren a trainer started go with it; every
+// child is reaped. Not thread-safe per object; many objects may live on many threads.
+#pragma once
+#include <chrono>
+#include <map>
+#include <optional>
+#include <string>
+#include <sys/types.h>
+#include <vector>
+
+namespace stepgate {
+
+struct ChildOptions {
+  std::vector<std::string> argv;          ///< argv[0] looked up on PATH
+  std::string cwd;                        ///< "" = the tool's working directory
+  std::map<std::string, std::string> env; ///< added to the tool's environment
+  bool pipe_stdin = false;                ///< keep a pipe to the child's stdin (serving mode)
+};
+
+/// How a child ended.
+struct ChildExit {
+  bool signalled = false;
+  int code = 0;    ///< exit status, or the signal number when signalled
+};
+
+class ChildProcess {
+ public:
+  /// Starts the child. Throws ToolError when it cannot be started at all (fork or pipe
+  /// failure); an argv[0] that cannot be executed makes the child exit with status 127 and a
+  /// message on its stderr.
+  explicit ChildProcess(const ChildOptions& options);
+  ~ChildProcess();  ///< kills the group (SIGKILL) and reaps the child if still running
+  ChildProcess(const ChildProcess&) = delete;
+  ChildProcess& operator=(const ChildProcess&) = delete;
+
+  /// Waits up to `timeout` for output; appends complete stdout lines (without '\n') to `lines`.
+  /// Returns false once stdout is closed and drained (the child exited or closed it).
+  bool read_lines(std::vector<std::string>& lines, std::chrono::milliseconds timeout);
+  /// Writes text to the child's stdin (serving mode); false when the pipe is closed.
+  bool write(const std::string& text);
+  void close_stdin();
+  /// SIGTERM to the group, then SIGKILL after `grace` seconds if the child has not exited;
+  /// always SIGKILL to the group at the end (leftover grandchildren). Reaps the child.
+  ChildExit stop(double grace);
+  /// Waits for the child to exit (after stdout closed), then SIGKILLs what is left of its group.
+  ChildExit wait();
+  /// Bytes read so far from stdout and stderr together.
+  long bytes_read() const { return bytes_; }
+  /// The last lines of stderr (at most 20 lines, 4 kB).
+  std::string stderr_tail() const;
+  pid_t pid() const { return pid_; }
+
+ private:
+  void drain_stderr();
+  std::optional<ChildExit> try_reap(bool block);
+  pid_t pid_ = -1;
+  int out_ = -1, err_ = -1, in_ = -1;
+  std::string partial_, err_text_;
+  long bytes_ = 0;
+  std::optional<ChildExit> exit_;
+};
+
+}  // namespace stepgate
