@@ -9,17 +9,27 @@ ALLOWED = {
     "suite": {"data", "core"},
     "run": {"problems", "optimizers", "analysis", "core"},
     "search": {"run", "analysis", "core"},
-    "sweep": {"search", "run", "suite", "problems", "data", "core"},
+    # sweep/run_suite applies the gate and writes the reports of a whole run, as `stepgate run`
+    "sweep": {"search", "run", "suite", "problems", "data", "gate", "report", "core"},
     "gate": {"core"},
     "report": {"gate", "core"},
 }
 STAGES = set(ALLOWED) | {"cli"}
 root = pathlib.Path(sys.argv[1] if len(sys.argv) > 1 else ".") / "harness"
-include = re.compile(r'#include\s+"([a-z_]+)/')
+include = re.compile(r'#include\s+"stepgate/([a-z_]+)/')
+bare = re.compile(r'#include\s+"([a-z_]+)/')
 bad = []
 for path in sorted(root.rglob("*.[ch]pp")):
-    stage = path.relative_to(root).parts[0]
-    if stage == "cli":
+    parts = path.relative_to(root).parts
+    stage = parts[0] if len(parts) > 1 else "umbrella"  # harness/stepgate.hpp: the public headers
+    if stage not in STAGES and stage != "umbrella":
+        bad.append(f"{path}: folder '{stage}' is not a stage of the table")
+        continue
+    for n, line in enumerate(path.read_text().splitlines(), 1):
+        b = bare.match(line.strip())
+        if b and b.group(1) in STAGES:  # headers are reached as "stepgate/STAGE/..." only
+            bad.append(f"{path}:{n}: include \"{b.group(1)}/...\" without the stepgate/ prefix")
+    if stage in ("cli", "umbrella"):  # these two may include every stage
         continue
     for n, line in enumerate(path.read_text().splitlines(), 1):
         m = include.match(line.strip())

@@ -1,4 +1,4 @@
-#include "analysis/curvature.hpp"
+#include "stepgate/analysis/curvature.hpp"
 
 #include <algorithm>
 #include <random>

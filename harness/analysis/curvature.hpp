@@ -3,7 +3,7 @@
 #pragma once
 #include <string>
 
-#include "problems/problem.hpp"
+#include "stepgate/problems/problem.hpp"
 
 namespace stepgate {
 

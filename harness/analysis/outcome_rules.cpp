@@ -1,4 +1,4 @@
-#include "analysis/outcome_rules.hpp"
+#include "stepgate/analysis/outcome_rules.hpp"
 
 #include <algorithm>
 #include <cmath>

@@ -9,9 +9,9 @@
 #include <string>
 #include <string_view>
 
-#include "core/outcome.hpp"
-#include "core/outcome_settings.hpp"
-#include "core/run_record.hpp"
+#include "stepgate/core/outcome.hpp"
+#include "stepgate/core/outcome_settings.hpp"
+#include "stepgate/core/run_record.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "analysis/reference.hpp"
+#include "stepgate/analysis/reference.hpp"
 
 #include <algorithm>
 #include <cmath>

@@ -5,9 +5,9 @@
 #include <string>
 #include <vector>
 
-#include "core/feature_map.hpp"
-#include "core/reference_values.hpp"
-#include "problems/problem.hpp"
+#include "stepgate/core/feature_map.hpp"
+#include "stepgate/core/reference_values.hpp"
+#include "stepgate/problems/problem.hpp"
 
 namespace stepgate {
 

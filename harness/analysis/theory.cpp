@@ -1,4 +1,4 @@
-#include "analysis/theory.hpp"
+#include "stepgate/analysis/theory.hpp"
 
 #include <cmath>
 

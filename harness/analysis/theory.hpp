@@ -3,7 +3,7 @@
 #pragma once
 #include <string>
 
-#include "analysis/curvature.hpp"
+#include "stepgate/analysis/curvature.hpp"
 
 namespace stepgate {
 

@@ -9,12 +9,12 @@
 
 #include <fmt/format.h>
 
-#include "cli/commands.hpp"
-#include "cli/gate_output.hpp"
-#include "cli/options.hpp"
-#include "core/error.hpp"
-#include "report/record.hpp"
-#include "sweep/merge.hpp"
+#include "stepgate/cli/commands.hpp"
+#include "stepgate/cli/gate_output.hpp"
+#include "stepgate/cli/options.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/report/record.hpp"
+#include "stepgate/sweep/merge.hpp"
 
 namespace stepgate::cli {
 

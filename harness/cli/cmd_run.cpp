@@ -1,20 +1,18 @@
 // stepgate run SUITE [--out DIR] [--jobs N] [--shard K/N] [--quiet]
 #include <unistd.h>
 
-#include <filesystem>
 #include <iostream>
 
 #include <fmt/format.h>
 #include <fmt/ranges.h>
 
-#include "cli/commands.hpp"
-#include "cli/gate_output.hpp"
-#include "cli/options.hpp"
-#include "cli/progress_line.hpp"
-#include "core/error.hpp"
-#include "report/summary_table.hpp"
-#include "suite/suite.hpp"
-#include "sweep/sweep.hpp"
+#include "stepgate/cli/commands.hpp"
+#include "stepgate/cli/gate_output.hpp"
+#include "stepgate/cli/options.hpp"
+#include "stepgate/cli/progress_line.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/report/summary_table.hpp"
+#include "stepgate/sweep/run_suite.hpp"
 
 namespace stepgate::cli {
 
@@ -43,41 +41,27 @@ int run_command(const Args& args) {
   if (jobs < 0) throw InputError("--jobs", fmt::format("expected a number of threads >= 0, found {}", jobs));
   const bool quiet = p.vm["quiet"].as<bool>();
 
-  const Suite suite = load_suite(p.vm["suite"].as<std::string>());
-  // Read the baseline before any run, so that a bad path fails at once, not after the sweep.
-  std::optional<Baseline> baseline;
-  if (p.vm.count("baseline")) baseline = read_baseline(p.vm["baseline"].as<std::string>());
-  Plan plan = make_plan(suite);
-  SweepOptions options;
+  RunSuiteOptions options;
   options.jobs = jobs;
-  if (p.vm.count("shard")) {
-    const auto [k, n] = parse_shard(p.vm["shard"].as<std::string>());
-    plan = shard_of(plan, k, n);
-    options.shard = fmt::format("{}/{}", k, n);
-  }
-  const std::string out_dir = p.vm.count("out") ? p.vm["out"].as<std::string>() : "reports/out/" + suite.name;
-
+  if (p.vm.count("out")) options.out_dir = p.vm["out"].as<std::string>();
+  if (p.vm.count("baseline")) options.baseline = p.vm["baseline"].as<std::string>();
+  if (p.vm.count("shard")) options.shard = parse_shard(p.vm["shard"].as<std::string>());
   ProgressLine line(!quiet && isatty(STDERR_FILENO));
-  const Results results = run_sweep(suite, plan, options, [&](const SweepProgress& s) { line.update(s); });
+  options.progress = [&](const SweepProgress& s) { line.update(s); };
+  const SuiteRun run = run_suite(p.vm["suite"].as<std::string>(), options);
   line.finish();
-  const std::string path = (std::filesystem::path(out_dir) / "results.json").string();
-  write_json_atomically(path, to_json(results));
-  int failed_cases = 0, runs = 0;
-  for (const CaseResult& c : results.cases) failed_cases += c.error.empty() ? 0 : 1, runs += static_cast<int>(c.runs.size());
-  const GateReport gate = apply_gate(results, baseline ? &*baseline : nullptr);
-  const std::vector<std::string> reports = write_reports(out_dir, results, baseline ? &*baseline : nullptr, gate);
   if (!quiet) {
-    std::cout << summary_table(results);
-    std::cout << fmt::format("\n{} cases, {} runs; results: {}\nreports: {}\n", results.cases.size(), runs, path,
-                             fmt::join(reports, ", "));
-    std::cout << scope_warning(results) << "\n";
+    std::cout << summary_table(run.results);
+    std::cout << fmt::format("\n{} cases, {} runs; results: {}\nreports: {}\n", run.results.cases.size(), run.runs,
+                             run.results_path, fmt::join(run.reports, ", "));
+    std::cout << scope_warning(run.results) << "\n";
   }
-  if (baseline) print_findings(gate, results);
-  if (failed_cases > 0) {
-    std::cerr << fmt::format("stepgate: failure: {} case(s) could not be run (see the table above)\n", failed_cases);
+  if (run.baseline) print_findings(run.gate, run.results);
+  if (run.failed_cases > 0) {
+    std::cerr << fmt::format("stepgate: failure: {} case(s) could not be run (see the table above)\n", run.failed_cases);
     return kExitToolFailure;
   }
-  if (baseline) return gate.pass ? kExitPass : kExitFail;
+  if (run.baseline) return run.gate.pass ? kExitPass : kExitFail;
   return kExitPass;
 }
 

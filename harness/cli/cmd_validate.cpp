@@ -3,11 +3,11 @@
 
 #include <fmt/format.h>
 
-#include "cli/commands.hpp"
-#include "cli/options.hpp"
-#include "core/error.hpp"
-#include "suite/suite.hpp"
-#include "sweep/plan.hpp"
+#include "stepgate/cli/commands.hpp"
+#include "stepgate/cli/options.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/suite/suite.hpp"
+#include "stepgate/sweep/plan.hpp"
 
 namespace stepgate::cli {
 

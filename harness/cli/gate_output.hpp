@@ -3,8 +3,8 @@
 #pragma once
 #include <string>
 
-#include "gate/findings.hpp"
-#include "report/reporter.hpp"
+#include "stepgate/gate/findings.hpp"
+#include "stepgate/report/reporter.hpp"
 
 namespace stepgate::cli {
 

@@ -6,8 +6,8 @@
 #include <string>
 #include <vector>
 
-#include "cli/commands.hpp"
-#include "core/error.hpp"
+#include "stepgate/cli/commands.hpp"
+#include "stepgate/core/error.hpp"
 
 namespace {
 

@@ -1,8 +1,8 @@
-#include "cli/options.hpp"
+#include "stepgate/cli/options.hpp"
 
 #include <iostream>
 
-#include "core/error.hpp"
+#include "stepgate/core/error.hpp"
 
 namespace stepgate::cli {
 

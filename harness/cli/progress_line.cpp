@@ -1,4 +1,4 @@
-#include "cli/progress_line.hpp"
+#include "stepgate/cli/progress_line.hpp"
 
 #include <cstdio>
 

@@ -2,7 +2,7 @@
 #pragma once
 #include <chrono>
 
-#include "sweep/sweep.hpp"
+#include "stepgate/sweep/sweep.hpp"
 
 namespace stepgate::cli {
 

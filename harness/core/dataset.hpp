@@ -4,8 +4,8 @@
 #include <string>
 #include <vector>
 
-#include "core/feature_map.hpp"
-#include "core/types.hpp"
+#include "stepgate/core/feature_map.hpp"
+#include "stepgate/core/types.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "core/feature_map.hpp"
+#include "stepgate/core/feature_map.hpp"
 
 namespace stepgate {
 

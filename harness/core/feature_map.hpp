@@ -2,7 +2,7 @@
 // feature. Kept in core so that analysis/ can map a solution back to original units without
 // knowing about data/.
 #pragma once
-#include "core/types.hpp"
+#include "stepgate/core/types.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "core/gate_tolerances.hpp"
+#include "stepgate/core/gate_tolerances.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "core/gate_tolerances_json.hpp"
+#include "stepgate/core/gate_tolerances_json.hpp"
 
 namespace stepgate {
 

@@ -3,8 +3,8 @@
 #pragma once
 #include <nlohmann/json.hpp>
 
-#include "core/gate_tolerances.hpp"
-#include "core/json_fields.hpp"
+#include "stepgate/core/gate_tolerances.hpp"
+#include "stepgate/core/json_fields.hpp"
 
 namespace stepgate {
 

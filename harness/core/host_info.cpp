@@ -7,7 +7,7 @@
 #include <Eigen/Core>
 #include <fmt/format.h>
 
-#include "core/results.hpp"
+#include "stepgate/core/results.hpp"
 
 #ifndef STEPGATE_VERSION
 #define STEPGATE_VERSION "unknown"  // CMake defines it from project(VERSION)

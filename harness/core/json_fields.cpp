@@ -1,8 +1,8 @@
-#include "core/json_fields.hpp"
+#include "stepgate/core/json_fields.hpp"
 
 #include <cmath>
 
-#include "core/error.hpp"
+#include "stepgate/core/error.hpp"
 
 namespace stepgate {
 

@@ -11,8 +11,8 @@
 
 #include <fmt/format.h>
 
-#include "core/error.hpp"
-#include "core/results.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/core/results.hpp"
 
 namespace stepgate {
 

@@ -3,7 +3,7 @@
 #pragma once
 #include <span>
 
-#include "core/types.hpp"
+#include "stepgate/core/types.hpp"
 
 namespace stepgate {
 

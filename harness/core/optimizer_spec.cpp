@@ -1,4 +1,4 @@
-#include "core/optimizer_spec.hpp"
+#include "stepgate/core/optimizer_spec.hpp"
 
 #include <cmath>
 #include <vector>

@@ -5,7 +5,7 @@
 #include <string>
 #include <string_view>
 
-#include "core/schedule.hpp"
+#include "stepgate/core/schedule.hpp"
 
 namespace stepgate {
 

@@ -1,6 +1,6 @@
-#include "core/optimizer_spec_json.hpp"
+#include "stepgate/core/optimizer_spec_json.hpp"
 
-#include "core/json_fields.hpp"
+#include "stepgate/core/json_fields.hpp"
 
 namespace stepgate {
 

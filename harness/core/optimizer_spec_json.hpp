@@ -5,7 +5,7 @@
 
 #include <nlohmann/json.hpp>
 
-#include "core/optimizer_spec.hpp"
+#include "stepgate/core/optimizer_spec.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "core/outcome.hpp"
+#include "stepgate/core/outcome.hpp"
 
 namespace stepgate {
 

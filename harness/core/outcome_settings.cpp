@@ -1,4 +1,4 @@
-#include "core/outcome_settings.hpp"
+#include "stepgate/core/outcome_settings.hpp"
 
 #include <cmath>
 

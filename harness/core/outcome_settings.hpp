@@ -4,7 +4,7 @@
 #include <optional>
 #include <string_view>
 
-#include "core/types.hpp"
+#include "stepgate/core/types.hpp"
 
 namespace stepgate {
 

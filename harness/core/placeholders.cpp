@@ -1,4 +1,4 @@
-#include "core/placeholders.hpp"
+#include "stepgate/core/placeholders.hpp"
 
 #include <stdexcept>
 

@@ -2,7 +2,7 @@
 #pragma once
 #include <cstdint>
 
-#include "core/types.hpp"
+#include "stepgate/core/types.hpp"
 
 namespace stepgate {
 

@@ -3,7 +3,7 @@
 #include <string>
 #include <vector>
 
-#include "core/types.hpp"
+#include "stepgate/core/types.hpp"
 
 namespace stepgate {
 

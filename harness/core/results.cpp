@@ -1,13 +1,13 @@
 // Results -> results.json. Reading is in results_from_json.cpp, files in json_file.cpp, tool
 // and host facts in host_info.cpp.
-#include "core/results.hpp"
+#include "stepgate/core/results.hpp"
 
 #include <algorithm>
 #include <cmath>
 
-#include "core/gate_tolerances_json.hpp"
-#include "core/json_fields.hpp"
-#include "core/optimizer_spec_json.hpp"
+#include "stepgate/core/gate_tolerances_json.hpp"
+#include "stepgate/core/json_fields.hpp"
+#include "stepgate/core/optimizer_spec_json.hpp"
 
 namespace stepgate {
 
@@ -177,7 +177,10 @@ json to_json(const Results& r, const TraceThinning& t) {
     for (const DatasetInfo::Column& c : d.stats)
       stats.push_back({{"name", c.name}, {"mean", finite_or_null(c.mean)}, {"sd_population", finite_or_null(c.sd)}});
     datasets.push_back({{"name", d.name}, {"source", d.source}, {"sha256", d.sha256}, {"rows", d.rows},
-                        {"columns", d.columns}, {"stats", std::move(stats)}});
+                        {"columns", d.columns},
+                        {"produce", d.produced_by.empty() ? json(nullptr)
+                                                          : json{{"argv", d.produced_by}, {"cwd", d.produced_in}}},
+                        {"stats", std::move(stats)}});
   }
   json cases = json::array();
   for (const CaseResult& c : r.cases) cases.push_back(to_json(c, t));

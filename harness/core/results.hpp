@@ -9,9 +9,9 @@
 
 #include <nlohmann/json.hpp>
 
-#include "core/gate_tolerances.hpp"
-#include "core/optimizer_spec.hpp"
-#include "core/run_record.hpp"
+#include "stepgate/core/gate_tolerances.hpp"
+#include "stepgate/core/optimizer_spec.hpp"
+#include "stepgate/core/run_record.hpp"
 
 namespace stepgate {
 
@@ -110,6 +110,10 @@ struct DatasetInfo {
   std::string name;
   std::string source;   ///< file path(s) as resolved, or "generated"
   std::string sha256;   ///< of the file's bytes; "" for generated data
+  /// The command that produced the file before the sweep (empty: none); results.json
+  /// "produce": {"argv": [...], "cwd": "..."} or null.
+  std::vector<std::string> produced_by;
+  std::string produced_in;
   long rows = 0, columns = 0;
   std::vector<Column> stats;  ///< per feature, then the target
 };

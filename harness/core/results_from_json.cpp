@@ -1,10 +1,10 @@
 // results.json -> Results: strict about the fields it knows (InputError with the JSON pointer),
 // silent about fields it does not (newer writers may add them).
-#include "core/results.hpp"
+#include "stepgate/core/results.hpp"
 
-#include "core/gate_tolerances_json.hpp"
-#include "core/json_fields.hpp"
-#include "core/optimizer_spec_json.hpp"
+#include "stepgate/core/gate_tolerances_json.hpp"
+#include "stepgate/core/json_fields.hpp"
+#include "stepgate/core/optimizer_spec_json.hpp"
 
 namespace stepgate {
 
@@ -189,6 +189,12 @@ Results results_from_json(const json& j, const std::string& path) {
       info.sha256 = d["sha256"].string();
       info.rows = d["rows"].integer<long>();
       info.columns = d["columns"].integer<long>();
+      if (d.has("produce") && !d["produce"].is_null()) {
+        const JsonField p = d["produce"];
+        const JsonField argv = p["argv"];
+        for (std::size_t k = 0; k < argv.array_size(); ++k) info.produced_by.push_back(argv[k].string());
+        info.produced_in = p["cwd"].string();
+      }
       const JsonField stats = d["stats"];
       for (std::size_t k = 0; k < stats.array_size(); ++k)
         info.stats.push_back({stats[k]["name"].string(), stats[k]["mean"].number_or_missing(),

@@ -6,8 +6,8 @@
 #include <string>
 #include <vector>
 
-#include "core/outcome.hpp"
-#include "core/types.hpp"
+#include "stepgate/core/outcome.hpp"
+#include "stepgate/core/types.hpp"
 
 namespace stepgate {
 

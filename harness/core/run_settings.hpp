@@ -1,6 +1,6 @@
 // How long runs go and how they are judged: a plain value a suite describes and run/ executes.
 #pragma once
-#include "core/outcome_settings.hpp"
+#include "stepgate/core/outcome_settings.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "core/schedule.hpp"
+#include "stepgate/core/schedule.hpp"
 
 #include <algorithm>
 #include <cmath>

@@ -1,4 +1,4 @@
-#include "core/seed.hpp"
+#include "stepgate/core/seed.hpp"
 
 namespace stepgate {
 

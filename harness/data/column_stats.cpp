@@ -1,4 +1,4 @@
-#include "data/column_stats.hpp"
+#include "stepgate/data/column_stats.hpp"
 
 #include <cmath>
 

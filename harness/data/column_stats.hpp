@@ -3,7 +3,7 @@
 #include <string>
 #include <vector>
 
-#include "core/dataset.hpp"
+#include "stepgate/core/dataset.hpp"
 
 namespace stepgate {
 

@@ -1,13 +1,13 @@
-#include "data/csv.hpp"
+#include "stepgate/data/csv.hpp"
 
 #include <algorithm>
 #include <stdexcept>
 #include <unordered_map>
 
-#include "core/error.hpp"
-#include "data/file_io.hpp"
-#include "data/quote_text.hpp"
-#include "data/sha256.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/data/file_io.hpp"
+#include "stepgate/data/quote_text.hpp"
+#include "stepgate/data/sha256.hpp"
 
 namespace stepgate {
 

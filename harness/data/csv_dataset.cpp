@@ -4,9 +4,9 @@
 #include <cstdlib>
 #include <unordered_map>
 
-#include "core/error.hpp"
-#include "data/csv.hpp"
-#include "data/quote_text.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/data/csv.hpp"
+#include "stepgate/data/quote_text.hpp"
 
 namespace stepgate {
 namespace {

@@ -1,4 +1,4 @@
-#include "data/file_io.hpp"
+#include "stepgate/data/file_io.hpp"
 
 #include <zlib.h>
 
@@ -7,7 +7,7 @@
 #include <cstring>
 #include <memory>
 
-#include "core/error.hpp"
+#include "stepgate/core/error.hpp"
 
 namespace stepgate {
 namespace {

@@ -1,10 +1,10 @@
-#include "data/generate.hpp"
+#include "stepgate/data/generate.hpp"
 
 #include <cmath>
 
-#include "core/error.hpp"
-#include "core/seed.hpp"
-#include "data/random_draws.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/core/seed.hpp"
+#include "stepgate/data/random_draws.hpp"
 
 namespace stepgate {
 namespace {

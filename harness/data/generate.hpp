@@ -7,7 +7,7 @@
 #include <string>
 #include <vector>
 
-#include "core/dataset.hpp"
+#include "stepgate/core/dataset.hpp"
 
 namespace stepgate {
 

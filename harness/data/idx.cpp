@@ -1,11 +1,11 @@
-#include "data/idx.hpp"
+#include "stepgate/data/idx.hpp"
 
 #include <cmath>
 #include <cstdio>
 
-#include "core/error.hpp"
-#include "data/file_io.hpp"
-#include "data/sha256.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/data/file_io.hpp"
+#include "stepgate/data/sha256.hpp"
 
 namespace stepgate {
 namespace {

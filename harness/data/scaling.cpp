@@ -1,13 +1,13 @@
-#include "data/scaling.hpp"
+#include "stepgate/data/scaling.hpp"
 
 #include <array>
 #include <cmath>
 #include <cstdio>
 #include <random>
 
-#include "core/error.hpp"
-#include "data/quote_text.hpp"
-#include "data/random_draws.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/data/quote_text.hpp"
+#include "stepgate/data/random_draws.hpp"
 
 namespace stepgate {
 namespace {

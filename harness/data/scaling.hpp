@@ -9,7 +9,7 @@
 #include <string_view>
 #include <vector>
 
-#include "core/dataset.hpp"
+#include "stepgate/core/dataset.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "data/sha256.hpp"
+#include "stepgate/data/sha256.hpp"
 
 #include <openssl/evp.h>
 
@@ -8,7 +8,7 @@
 #include <memory>
 #include <stdexcept>
 
-#include "core/error.hpp"
+#include "stepgate/core/error.hpp"
 
 namespace stepgate {
 namespace {

@@ -1,7 +1,7 @@
-#include "gate/baseline.hpp"
+#include "stepgate/gate/baseline.hpp"
 
-#include "core/error.hpp"
-#include "core/json_fields.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/core/json_fields.hpp"
 
 namespace stepgate {
 

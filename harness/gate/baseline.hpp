@@ -6,7 +6,7 @@
 
 #include <nlohmann/json.hpp>
 
-#include "core/results.hpp"
+#include "stepgate/core/results.hpp"
 
 namespace stepgate {
 

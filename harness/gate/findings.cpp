@@ -1,4 +1,4 @@
-#include "gate/findings.hpp"
+#include "stepgate/gate/findings.hpp"
 
 #include <algorithm>
 #include <cmath>

@@ -4,9 +4,9 @@
 #include <string>
 #include <vector>
 
-#include "core/gate_tolerances.hpp"
-#include "core/results.hpp"
-#include "gate/baseline.hpp"
+#include "stepgate/core/gate_tolerances.hpp"
+#include "stepgate/core/results.hpp"
+#include "stepgate/gate/baseline.hpp"
 
 namespace stepgate {
 

@@ -1,7 +1,7 @@
 // AdaGrad, diagonal form: Duchi, Hazan & Singer (2011), "Adaptive subgradient methods for
 // online learning and stochastic optimization", JMLR 12. ε is added to the root, as is usual
 // in implementations (common practice), so that a zero gradient coordinate does not divide 0/0.
-#include "optimizers/update_rules.hpp"
+#include "stepgate/optimizers/update_rules.hpp"
 
 namespace stepgate::detail {
 

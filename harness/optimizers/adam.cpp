@@ -1,7 +1,7 @@
 // Adam: Kingma & Ba (2015), "Adam: A method for stochastic optimization", ICLR, Algorithm 1,
 // with ε added to √v̂ exactly as there (not the "efficient" variant of their section 2, which
 // moves ε and so changes the rule slightly).
-#include "optimizers/update_rules.hpp"
+#include "stepgate/optimizers/update_rules.hpp"
 
 namespace stepgate::detail {
 

@@ -1,4 +1,4 @@
-#include "optimizers/update_rules.hpp"
+#include "stepgate/optimizers/update_rules.hpp"
 
 namespace stepgate::detail {
 

@@ -1,6 +1,6 @@
 // Heavy ball, Polyak (1964), "Some methods of speeding up the convergence of iteration
 // methods": x_{k+1} = x_k − α g_k + β (x_k − x_{k−1}), written with V_k = x_k − x_{k−1}.
-#include "optimizers/update_rules.hpp"
+#include "stepgate/optimizers/update_rules.hpp"
 
 namespace stepgate::detail {
 

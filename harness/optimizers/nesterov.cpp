@@ -6,7 +6,7 @@
 //   v_{t+1} = β v_t − α ∇f(x_t + β v_t),   x_{t+1} = x_t + v_{t+1},
 // shifted to Θ_t = x_t + β v_t: Θ_{t+1} = x_t + (1 + β) v_{t+1} = Θ_t − β v_t + (1 + β) v_{t+1}.
 // With v_0 = 0 both start at Θ_0 = x_0. One gradient per iteration, at the point we hold.
-#include "optimizers/update_rules.hpp"
+#include "stepgate/optimizers/update_rules.hpp"
 
 namespace stepgate::detail {
 

@@ -1,4 +1,4 @@
-#include "optimizers/optimizer.hpp"
+#include "stepgate/optimizers/optimizer.hpp"
 
 #include <cmath>
 #include <stdexcept>
@@ -6,7 +6,7 @@
 
 #include <fmt/format.h>
 
-#include "optimizers/update_rules.hpp"
+#include "stepgate/optimizers/update_rules.hpp"
 
 namespace stepgate {
 

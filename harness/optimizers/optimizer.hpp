@@ -7,8 +7,8 @@
 #include <string>
 #include <string_view>
 
-#include "core/types.hpp"
-#include "core/optimizer_spec.hpp"
+#include "stepgate/core/types.hpp"
+#include "stepgate/core/optimizer_spec.hpp"
 
 namespace stepgate {
 

@@ -1,6 +1,6 @@
 // RMSProp (Tieleman & Hinton 2012): a running mean square of the gradient,
 // S = ρ S + (1 − ρ) G², divides the step: P −= α G / (√S + ε).
-#include "optimizers/update_rules.hpp"
+#include "stepgate/optimizers/update_rules.hpp"
 
 namespace stepgate::detail {
 

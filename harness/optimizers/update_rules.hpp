@@ -7,8 +7,8 @@
 #include <string>
 #include <vector>
 
-#include "core/lanes.hpp"
-#include "optimizers/optimizer.hpp"
+#include "stepgate/core/lanes.hpp"
+#include "stepgate/optimizers/optimizer.hpp"
 
 namespace stepgate::detail {
 

@@ -3,8 +3,8 @@
 #include <mutex>
 #include <stdexcept>
 
-#include "problems/linear_common.hpp"
-#include "problems/linear_models.hpp"
+#include "stepgate/problems/linear_common.hpp"
+#include "stepgate/problems/linear_models.hpp"
 
 namespace stepgate {
 namespace {

@@ -1,11 +1,11 @@
-#include "problems/linear_common.hpp"
+#include "stepgate/problems/linear_common.hpp"
 
 #include <cmath>
 #include <random>
 #include <stdexcept>
 #include <string>
 
-#include "problems/normal_draws.hpp"
+#include "stepgate/problems/normal_draws.hpp"
 
 namespace stepgate::detail {
 

@@ -5,9 +5,9 @@
 #include <mutex>
 #include <span>
 
-#include "core/dataset.hpp"
-#include "problems/linear_models.hpp"
-#include "problems/problem.hpp"
+#include "stepgate/core/dataset.hpp"
+#include "stepgate/problems/linear_models.hpp"
+#include "stepgate/problems/problem.hpp"
 
 namespace stepgate::detail {
 

@@ -4,9 +4,9 @@
 #pragma once
 #include <memory>
 
-#include "core/dataset.hpp"
-#include "core/problem_options.hpp"
-#include "problems/problem.hpp"
+#include "stepgate/core/dataset.hpp"
+#include "stepgate/core/problem_options.hpp"
+#include "stepgate/problems/problem.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "problems/newton.hpp"
+#include "stepgate/problems/newton.hpp"
 
 #include <cmath>
 

@@ -3,7 +3,7 @@
 #pragma once
 #include <functional>
 
-#include "core/types.hpp"
+#include "stepgate/core/types.hpp"
 
 namespace stepgate::detail {
 

@@ -7,7 +7,7 @@
 #include <numbers>
 #include <random>
 
-#include "core/types.hpp"
+#include "stepgate/core/types.hpp"
 
 namespace stepgate::detail {
 

@@ -1,4 +1,4 @@
-#include "problems/problem.hpp"
+#include "stepgate/problems/problem.hpp"
 
 #include <stdexcept>
 

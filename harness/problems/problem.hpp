@@ -12,7 +12,7 @@
 #include <string>
 #include <string_view>
 
-#include "core/types.hpp"
+#include "stepgate/core/types.hpp"
 
 namespace stepgate {
 

@@ -1,13 +1,13 @@
 // J(w) = ½ (w − w*)ᵀ A (w − w*), A = Q Λ Qᵀ with Q Haar-random orthogonal.
-#include "problems/quadratic.hpp"
+#include "stepgate/problems/quadratic.hpp"
 
 #include <algorithm>
 #include <cmath>
 #include <random>
 #include <stdexcept>
 
-#include "core/seed.hpp"
-#include "problems/normal_draws.hpp"
+#include "stepgate/core/seed.hpp"
+#include "stepgate/problems/normal_draws.hpp"
 
 namespace stepgate {
 namespace {

@@ -4,8 +4,8 @@
 #include <cstdint>
 #include <memory>
 
-#include "core/problem_options.hpp"
-#include "problems/problem.hpp"
+#include "stepgate/core/problem_options.hpp"
+#include "stepgate/problems/problem.hpp"
 
 namespace stepgate {
 

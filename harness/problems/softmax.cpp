@@ -7,9 +7,9 @@
 
 #include <fmt/format.h>
 
-#include "problems/linear_common.hpp"
-#include "problems/linear_models.hpp"
-#include "problems/newton.hpp"
+#include "stepgate/problems/linear_common.hpp"
+#include "stepgate/problems/linear_models.hpp"
+#include "stepgate/problems/newton.hpp"
 
 namespace stepgate {
 namespace {

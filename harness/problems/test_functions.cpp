@@ -1,7 +1,7 @@
 // Moré, Garbow & Hillstrom (1981), "Testing Unconstrained Optimization Software", ACM TOMS
 // 7(1):17-41: each function is a sum of squares f(x) = Σ r_i(x)², with the published
 // starting point x0 and minimiser x* (f* = 0). Numbers (#1 ...) are the paper's.
-#include "problems/test_functions.hpp"
+#include "stepgate/problems/test_functions.hpp"
 
 #include <cmath>
 #include <numbers>

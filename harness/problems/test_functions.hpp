@@ -5,7 +5,7 @@
 #include <string_view>
 #include <vector>
 
-#include "problems/problem.hpp"
+#include "stepgate/problems/problem.hpp"
 
 namespace stepgate {
 

@@ -6,9 +6,9 @@
 #include <string>
 #include <string_view>
 
-#include "core/outcome.hpp"
-#include "core/results.hpp"
-#include "gate/baseline.hpp"
+#include "stepgate/core/outcome.hpp"
+#include "stepgate/core/results.hpp"
+#include "stepgate/gate/baseline.hpp"
 
 namespace stepgate {
 

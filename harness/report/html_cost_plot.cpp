@@ -8,9 +8,9 @@
 
 #include <fmt/format.h>
 
-#include "report/html_case_plots.hpp"
-#include "report/html_escape.hpp"
-#include "report/svg.hpp"
+#include "stepgate/report/html_case_plots.hpp"
+#include "stepgate/report/html_escape.hpp"
+#include "stepgate/report/svg.hpp"
 
 namespace stepgate {
 

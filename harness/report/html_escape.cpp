@@ -1,4 +1,4 @@
-#include "report/html_escape.hpp"
+#include "stepgate/report/html_escape.hpp"
 
 namespace stepgate {
 

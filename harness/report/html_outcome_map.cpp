@@ -9,8 +9,8 @@
 
 #include <fmt/format.h>
 
-#include "report/html_case_plots.hpp"
-#include "report/svg.hpp"
+#include "stepgate/report/html_case_plots.hpp"
+#include "stepgate/report/svg.hpp"
 
 namespace stepgate {
 

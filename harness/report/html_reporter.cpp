@@ -8,10 +8,10 @@
 
 #include <fmt/format.h>
 
-#include "report/html_case_plots.hpp"
-#include "report/html_escape.hpp"
-#include "report/html_style.hpp"
-#include "report/reporter.hpp"
+#include "stepgate/report/html_case_plots.hpp"
+#include "stepgate/report/html_escape.hpp"
+#include "stepgate/report/html_style.hpp"
+#include "stepgate/report/reporter.hpp"
 
 namespace stepgate {
 

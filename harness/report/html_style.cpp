@@ -1,4 +1,4 @@
-#include "report/html_style.hpp"
+#include "stepgate/report/html_style.hpp"
 
 namespace stepgate {
 

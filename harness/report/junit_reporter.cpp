@@ -20,7 +20,7 @@
 #include <fmt/format.h>
 #include <pugixml.hpp>
 
-#include "report/reporter.hpp"
+#include "stepgate/report/reporter.hpp"
 
 namespace stepgate {
 

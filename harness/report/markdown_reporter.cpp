@@ -8,7 +8,7 @@
 
 #include <fmt/format.h>
 
-#include "report/reporter.hpp"
+#include "stepgate/report/reporter.hpp"
 
 namespace stepgate {
 

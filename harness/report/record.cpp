@@ -1,10 +1,10 @@
-#include "report/record.hpp"
+#include "stepgate/report/record.hpp"
 
 #include <cmath>
 
 #include <fmt/format.h>
 
-#include "report/reporter.hpp"
+#include "stepgate/report/reporter.hpp"
 
 namespace stepgate {
 

@@ -4,8 +4,8 @@
 #pragma once
 #include <string>
 
-#include "core/results.hpp"
-#include "gate/baseline.hpp"
+#include "stepgate/core/results.hpp"
+#include "stepgate/gate/baseline.hpp"
 
 namespace stepgate {
 

@@ -1,12 +1,35 @@
 // What every reporter shares: the list of reporters and the scope warning.
-#include "report/reporter.hpp"
+#include "stepgate/report/reporter.hpp"
 
+#include <filesystem>
 #include <set>
 #include <utility>
 
 #include <fmt/format.h>
 
 namespace stepgate {
+
+std::vector<std::string> write_reports(const std::string& dir, const ReportInput& in) {
+  std::vector<std::string> written;
+  for (const auto& reporter : all_reporters()) {
+    const std::string path = (std::filesystem::path(dir) / reporter->file_name()).string();
+    write_text_atomically(path, reporter->render(in));
+    written.push_back(path);
+  }
+  return written;
+}
+
+std::string findings_text(const GateReport& gate, const Results& results) {
+  std::string out;
+  for (const Finding& f : gate.findings)
+    if (f.severity != Severity::pass)
+      out += fmt::format("{:<5} {}  {}: {}\n", to_string(f.severity), f.case_id, to_string(f.rule), f.message);
+  // Counts are of findings (one per case and rule); report.md counts cases.
+  out += fmt::format("verdict: {} ({} failing, {} warnings, {} cases{})\n", gate.pass ? "pass" : "fail",
+                     gate.failures, gate.warnings, results.cases.size(),
+                     gate.had_baseline ? "" : "; no baseline: only pinned, reference and theory rules");
+  return out;
+}
 
 std::vector<std::unique_ptr<Reporter>> all_reporters() {
   std::vector<std::unique_ptr<Reporter>> out;

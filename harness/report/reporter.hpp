@@ -5,9 +5,9 @@
 #include <string>
 #include <vector>
 
-#include "core/results.hpp"
-#include "gate/baseline.hpp"
-#include "gate/findings.hpp"
+#include "stepgate/core/results.hpp"
+#include "stepgate/gate/baseline.hpp"
+#include "stepgate/gate/findings.hpp"
 
 namespace stepgate {
 
@@ -35,5 +35,13 @@ std::vector<std::unique_ptr<Reporter>> all_reporters();
 
 /// The plain warning every report carries: rates are verified only on the data named.
 std::string scope_warning(const Results& results);
+
+/// Renders every reporter and writes its file into `dir` (report.md, report.html, junit.xml),
+/// creating the folder; returns the paths written. ToolError when a file cannot be written.
+std::vector<std::string> write_reports(const std::string& dir, const ReportInput& in);
+
+/// The warn and fail findings, one line each ("fail  CASE  RULE: message"), then the verdict
+/// line with the counts of findings: what `stepgate check` and `run --baseline` print.
+std::string findings_text(const GateReport& gate, const Results& results);
 
 }  // namespace stepgate

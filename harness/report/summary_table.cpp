@@ -1,4 +1,4 @@
-#include "report/summary_table.hpp"
+#include "stepgate/report/summary_table.hpp"
 
 #include <algorithm>
 #include <cmath>

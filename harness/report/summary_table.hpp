@@ -2,7 +2,7 @@
 #pragma once
 #include <string>
 
-#include "core/results.hpp"
+#include "stepgate/core/results.hpp"
 
 namespace stepgate {
 

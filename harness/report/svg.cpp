@@ -1,4 +1,4 @@
-#include "report/svg.hpp"
+#include "stepgate/report/svg.hpp"
 
 #include <algorithm>
 #include <array>
@@ -6,7 +6,7 @@
 
 #include <fmt/format.h>
 
-#include "report/html_escape.hpp"
+#include "stepgate/report/html_escape.hpp"
 
 namespace stepgate::svg {
 

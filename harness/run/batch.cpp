@@ -1,4 +1,4 @@
-#include "run/batch.hpp"
+#include "stepgate/run/batch.hpp"
 
 #include <algorithm>
 #include <chrono>
@@ -7,10 +7,10 @@
 #include <optional>
 #include <stdexcept>
 
-#include "analysis/curvature.hpp"
-#include "core/lanes.hpp"
-#include "core/seed.hpp"
-#include "run/minibatch.hpp"
+#include "stepgate/analysis/curvature.hpp"
+#include "stepgate/core/lanes.hpp"
+#include "stepgate/core/seed.hpp"
+#include "stepgate/run/minibatch.hpp"
 
 namespace stepgate {
 

@@ -6,11 +6,11 @@
 #include <span>
 #include <vector>
 
-#include "analysis/outcome_rules.hpp"
-#include "core/run_record.hpp"
-#include "core/run_settings.hpp"
-#include "optimizers/optimizer.hpp"
-#include "problems/problem.hpp"
+#include "stepgate/analysis/outcome_rules.hpp"
+#include "stepgate/core/run_record.hpp"
+#include "stepgate/core/run_settings.hpp"
+#include "stepgate/optimizers/optimizer.hpp"
+#include "stepgate/problems/problem.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "run/child_process.hpp"
+#include "stepgate/run/child_process.hpp"
 
 #include <algorithm>
 #include <cerrno>
@@ -6,17 +6,43 @@
 #include <cstring>
 #include <fcntl.h>
 #include <poll.h>
+#include <sys/prctl.h>
 #include <sys/wait.h>
 #include <thread>
 #include <unistd.h>
 
-#include "core/error.hpp"
+#include "stepgate/core/error.hpp"
 
 extern char** environ;
 
 namespace stepgate {
 
 namespace {
+
+// Grandchildren left in a stopped group are reparented to the tool (a child subreaper) rather
+// than to PID 1, which in a container may never reap them; then the tool reaps them itself.
+void become_subreaper() {
+  static const bool done = [] {
+    ::prctl(PR_SET_CHILD_SUBREAPER, 1);
+    return true;
+  }();
+  (void)done;
+}
+
+// Reaps what is left of a killed group (members that became the tool's children), for at most
+// half a second: SIGKILL has been sent, so they are dying.
+void reap_group(pid_t pgid) {
+  const auto until = std::chrono::steady_clock::now() + std::chrono::milliseconds(500);
+  while (std::chrono::steady_clock::now() < until) {
+    int status = 0;
+    const pid_t r = ::waitpid(-pgid, &status, WNOHANG);
+    if (r > 0) continue;
+    if (r < 0 && errno == EINTR) continue;
+    if (r < 0) return;  // ECHILD: none of the group is (or will be) the tool's child any more
+    if (::kill(-pgid, 0) != 0) return;  // the group is empty
+    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+  }
+}
 
 void close_fd(int& fd) {
   if (fd >= 0) ::close(fd);
@@ -41,6 +67,7 @@ std::vector<std::string> merged_environment(const std::map<std::string, std::str
 ChildProcess::ChildProcess(const ChildOptions& o) {
   if (o.argv.empty()) throw ToolError("command: empty argv");
   std::signal(SIGPIPE, SIG_IGN);  // a child that closed its stdin must not kill the tool
+  become_subreaper();
   // Everything the child needs is built before fork: after it, only async-signal-safe calls.
   std::vector<std::string> env_strings = merged_environment(o.env);
   std::vector<char*> argv, envp;
@@ -90,6 +117,7 @@ ChildProcess::~ChildProcess() {
   if (!exit_ && pid_ > 0) {
     ::kill(-pid_, SIGKILL);
     try_reap(true);
+    reap_group(pid_);
   }
   close_fd(out_);
   close_fd(err_);
@@ -177,6 +205,7 @@ ChildExit ChildProcess::stop(double grace) {
   }
   ::kill(-pid_, SIGKILL);  // the child if it ignored SIGTERM, and whatever it left in its group
   try_reap(true);
+  reap_group(pid_);
   while (err_ >= 0) {
     pollfd p{err_, POLLIN, 0};
     if (::poll(&p, 1, 0) <= 0) break;
@@ -188,6 +217,7 @@ ChildExit ChildProcess::stop(double grace) {
 ChildExit ChildProcess::wait() {
   try_reap(true);
   ::kill(-pid_, SIGKILL);
+  reap_group(pid_);
   while (err_ >= 0) {
     pollfd p{err_, POLLIN, 0};
     if (::poll(&p, 1, 100) <= 0) break;

@@ -1,20 +1,20 @@
-#include "run/command_runner.hpp"
+#include "stepgate/run/command_runner.hpp"
 
 #include <algorithm>
 #include <atomic>
 #include <chrono>
 #include <cmath>
+#include <cstring>
 #include <filesystem>
-#include <memory>
 #include <optional>
 #include <unistd.h>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
-#include "analysis/outcome_rules.hpp"
-#include "core/placeholders.hpp"
-#include "run/child_process.hpp"
+#include "stepgate/analysis/outcome_rules.hpp"
+#include "stepgate/core/placeholders.hpp"
+#include "stepgate/run/child_process.hpp"
 
 namespace stepgate {
 
@@ -22,6 +22,7 @@ namespace {
 
 namespace fs = std::filesystem;
 using Clock = std::chrono::steady_clock;
+using nlohmann::json;
 
 // A fresh folder for {out}: under the system's temporary folder, named by process and counter.
 std::string fresh_folder() {
@@ -33,17 +34,17 @@ std::string fresh_folder() {
 }
 
 // Python's json module writes NaN, Infinity and -Infinity for non-finite floats; JSON has no
-// such tokens, so they are read as null (a non-finite cost).
-nlohmann::json parse_line(const std::string& line) {
-  nlohmann::json j = nlohmann::json::parse(line, nullptr, false);
+// such tokens, so outside strings they are read as null (a non-finite cost).
+json parse_line(const std::string& line) {
+  json j = json::parse(line, nullptr, false);
   if (!j.is_discarded()) return j;
   std::string fixed;
   bool in_string = false;
   for (std::size_t i = 0; i < line.size(); ++i) {
     const char c = line[i];
     if (c == '"' && (i == 0 || line[i - 1] != '\\')) in_string = !in_string;
-    if (!in_string) {
-      bool replaced = false;
+    bool replaced = false;
+    if (!in_string)
       for (std::string_view token : {"-Infinity", "Infinity", "NaN"})
         if (line.compare(i, token.size(), token) == 0) {
           fixed += "null";
@@ -51,114 +52,99 @@ nlohmann::json parse_line(const std::string& line) {
           replaced = true;
           break;
         }
-      if (replaced) continue;
-    }
-    fixed += c;
+    if (!replaced) fixed += c;
   }
-  return nlohmann::json::parse(fixed, nullptr, false);
+  return json::parse(fixed, nullptr, false);
 }
 
-struct Active {
-  std::size_t index = 0;  // into the records
-  std::unique_ptr<ChildProcess> child;
+// One run in progress: its record, its monitor and its protocol state.
+struct RunState {
+  std::size_t index = 0;  // into the batch's records
+  long id = 0;            // serving mode: the request's "run"
   std::unique_ptr<OutcomeMonitor> monitor;
   Clock::time_point started;
   std::string out_dir;
   long line_number = 0;
+  long bytes_at_start = 0;
   std::optional<long> last_iter;
-  std::string fault;  // non-empty: a protocol fault, timeout or size cap
-  bool done = false;
+  std::string fault;      // non-empty: protocol fault, timeout, size cap, process fault
+  bool stop_sent = false; // serving: {"stop": id} written, waiting for its end line
+};
+
+// A serving process and the run it is answering (if any).
+struct Server {
+  std::unique_ptr<ChildProcess> child;
+  std::optional<RunState> run;
+  Clock::time_point stop_sent_at;
 };
 
 }  // namespace
 
-std::vector<RunRecord> run_commands(const CommandCase& c, const RunSettings& settings,
-                                    std::span<const double> rates, BatchSeed seed, int jobs) {
-  std::vector<RunRecord> records(rates.size());
-  for (std::size_t j = 0; j < rates.size(); ++j) {
-    records[j].rate = rates[j];
-    records[j].seed = seed.seed;
-    records[j].seed_index = seed.index;
-  }
-  const bool has_optimum = !std::isnan(c.spec.optimum);
-  const int parallel = std::max(1, c.spec.parallel > 0 ? c.spec.parallel : jobs);
+struct CommandSession::Impl {
+  CommandCase c;
+  RunSettings settings;
+  int parallel = 1;
+  bool has_optimum = false;
+  long next_id = 1;
+  std::vector<Server> servers;
 
-  auto start = [&](std::size_t j) {
-    Active a;
-    a.index = j;
-    a.out_dir = fresh_folder();
+  std::vector<std::string> argv_for(double rate, BatchSeed seed, const std::string& out_dir) const {
     auto lookup = [&](std::string_view name) -> std::optional<std::string> {
-      if (name == "rate") return exact_number(rates[j]);
+      if (name == "rate") return exact_number(rate);
       if (name == "seed") return std::to_string(seed.number);
       if (name == "budget") return std::to_string(settings.budget);
       if (name == "optimizer") return c.optimizer;
       if (name == "scaling") return c.scaling;
       if (name == "case") return c.case_id;
-      if (name == "out") return a.out_dir;
+      if (name == "out") return out_dir;
       if (name.starts_with("optimizer.")) {
         auto it = c.optimizer_fields.find(std::string(name.substr(10)));
         if (it != c.optimizer_fields.end()) return it->second;
       }
       return std::nullopt;
     };
+    std::vector<std::string> argv;
+    for (const std::string& arg : c.spec.argv) argv.push_back(expand_placeholders(arg, lookup));
+    return argv;
+  }
+
+  std::unique_ptr<ChildProcess> spawn(std::vector<std::string> argv, bool serve) const {
     ChildOptions o;
-    for (const std::string& arg : c.spec.argv) o.argv.push_back(expand_placeholders(arg, lookup));
+    o.argv = std::move(argv);
     o.cwd = c.spec.cwd;
     o.env = c.spec.env;
-    a.monitor = std::make_unique<OutcomeMonitor>(settings.outcome, has_optimum, settings.budget);
-    a.started = Clock::now();
-    a.child = std::make_unique<ChildProcess>(o);
-    return a;
-  };
+    o.pipe_stdin = serve;
+    return std::make_unique<ChildProcess>(o);
+  }
 
-  auto finish = [&](Active& a, bool stopped_by_us) {
-    RunRecord& r = records[a.index];
-    const ChildExit ex = stopped_by_us ? a.child->stop(c.spec.grace) : a.child->wait();
-    r.wall_seconds = std::chrono::duration<double>(Clock::now() - a.started).count();
-    r.steps = a.last_iter.value_or(0);
-    const std::string tail = a.child->stderr_tail();
-    const std::string with_tail = tail.empty() ? std::string() : "; stderr: " + tail;
-    const bool decided = a.monitor->decided();
-    std::string fault = a.fault;
-    if (fault.empty() && !decided && !stopped_by_us) {
-      if (ex.signalled) fault = fmt::format("killed by signal {} ({})", ex.code, strsignal(ex.code));
-      else if (ex.code != 0) fault = fmt::format("exited with status {}", ex.code);
-      else if (r.trace.empty()) fault = "no output: the program wrote no {\"iter\", \"cost\"} line";
-    }
-    if (!fault.empty()) {
-      r.outcome = Outcome::failed;
-      r.reason = fault + with_tail;
-    } else {
-      const Classification cl = a.monitor->result();
-      r.outcome = cl.outcome;
-      r.iterations = cl.iterations;
-      r.overshoot = cl.overshoot;
-      r.reason = cl.reason;
-      r.confirmation = cl.confirmation;
-    }
-    std::error_code ec;
-    if (r.outcome != Outcome::failed) fs::remove_all(a.out_dir, ec);
-    else r.reason += " (its {out} folder is kept: " + a.out_dir + ")";
-    a.done = true;
-  };
+  RunState begin(std::size_t index) {
+    RunState s;
+    s.index = index;
+    s.id = next_id++;
+    s.monitor = std::make_unique<OutcomeMonitor>(settings.outcome, has_optimum, settings.budget);
+    s.started = Clock::now();
+    return s;
+  }
 
-  auto take_line = [&](Active& a, const std::string& line) {
-    RunRecord& r = records[a.index];
-    ++a.line_number;
-    const auto first = line.find_first_not_of(" \t\r");
-    if (first == std::string::npos || line[first] != '{') {
-      ++r.log_lines;
-      return;
+  // One line of a run's output (serving mode: with "run" already matched and removed).
+  void take(RunState& s, RunRecord& r, const std::string& raw, const json* parsed) {
+    ++s.line_number;
+    if (!parsed) {
+      const auto first = raw.find_first_not_of(" \t\r");
+      if (first == std::string::npos || raw[first] != '{') {
+        ++r.log_lines;
+        return;
+      }
     }
-    const nlohmann::json j = parse_line(line);
+    const json j = parsed ? *parsed : parse_line(raw);
     if (j.is_discarded() || !j.is_object()) {
-      a.fault = fmt::format("protocol error at output line {}: not a JSON object: {:.120}", a.line_number, line);
+      s.fault = fmt::format("protocol error at output line {}: not a JSON object: {:.120}", s.line_number, raw);
       return;
     }
     if (j.contains("params")) {
-      const auto& p = j["params"];
+      const json& p = j["params"];
       if (!p.is_array()) {
-        a.fault = fmt::format("protocol error at output line {}: \"params\" must be an array of numbers", a.line_number);
+        s.fault = fmt::format("protocol error at output line {}: \"params\" must be an array of numbers", s.line_number);
         return;
       }
       r.final_params.resize(static_cast<Index>(p.size()));
@@ -168,56 +154,273 @@ std::vector<RunRecord> run_commands(const CommandCase& c, const RunSettings& set
     }
     if (!j.contains("iter") || !j["iter"].is_number_integer() || !j.contains("cost") ||
         !(j["cost"].is_number() || j["cost"].is_null())) {
-      a.fault = fmt::format("protocol error at output line {}: expected {{\"iter\": integer, \"cost\": number}}, "
-                            "found {:.120}", a.line_number, line);
+      s.fault = fmt::format("protocol error at output line {}: expected {{\"iter\": integer, \"cost\": number}}, found {:.120}",
+                            s.line_number, raw);
       return;
     }
     const long iter = j["iter"].get<long>();
-    if (a.last_iter && iter <= *a.last_iter) {
-      a.fault = fmt::format("protocol error at output line {}: iter {} does not increase (previous {})", a.line_number,
-                            iter, *a.last_iter);
+    if (s.last_iter && iter <= *s.last_iter) {
+      s.fault = fmt::format("protocol error at output line {}: iter {} does not increase (previous {})", s.line_number,
+                            iter, *s.last_iter);
       return;
     }
-    a.last_iter = iter;
+    s.last_iter = iter;
     const double cost = j["cost"].is_null() ? kMissing : j["cost"].get<double>();
     double grad = kMissing;
     if (j.contains("grad_norm") && j["grad_norm"].is_number()) grad = j["grad_norm"].get<double>();
     const TracePoint point{iter, cost, has_optimum ? cost - c.spec.optimum : kMissing, grad};
     r.trace.push_back(point);
-    a.monitor->observe(point);
-  };
-
-  std::vector<Active> active;
-  std::size_t next = 0;
-  while (next < rates.size() || !active.empty()) {
-    while (next < rates.size() && static_cast<int>(active.size()) < parallel) {
-      try {
-        active.push_back(start(next));
-      } catch (const std::exception& e) {
-        records[next].outcome = Outcome::failed;
-        records[next].reason = std::string("could not start: ") + e.what();
-      }
-      ++next;
-    }
-    const auto wait = std::chrono::milliseconds(active.size() > 1 ? 5 : 50);
-    for (Active& a : active) {
-      std::vector<std::string> lines;
-      const bool open = a.child->read_lines(lines, wait);
-      for (const std::string& line : lines) {
-        if (!a.fault.empty() || a.monitor->decided()) break;
-        take_line(a, line);
-      }
-      const double age = std::chrono::duration<double>(Clock::now() - a.started).count();
-      if (a.fault.empty() && a.child->bytes_read() > c.spec.max_output)
-        a.fault = fmt::format("output over the size cap of {} bytes", c.spec.max_output);
-      if (a.fault.empty() && !a.monitor->decided() && age > c.spec.timeout)
-        a.fault = fmt::format("timeout: no decision after {:g} s (the process group was killed)", c.spec.timeout);
-      if (!a.fault.empty() || a.monitor->decided()) finish(a, true);
-      else if (!open) finish(a, false);
-    }
-    std::erase_if(active, [](const Active& a) { return a.done; });
+    s.monitor->observe(point);
   }
+
+  // Checks the run's limits; true when it must end now (decided or faulty).
+  bool must_end(RunState& s, long bytes_now) const {
+    if (s.fault.empty() && bytes_now - s.bytes_at_start > c.spec.max_output)
+      s.fault = fmt::format("output over the size cap of {} bytes (the process group was killed)", c.spec.max_output);
+    const double age = std::chrono::duration<double>(Clock::now() - s.started).count();
+    if (s.fault.empty() && !s.monitor->decided() && age > c.spec.timeout)
+      s.fault = fmt::format("timeout: no decision after {:g} s (the process group was killed)", c.spec.timeout);
+    return !s.fault.empty() || s.monitor->decided();
+  }
+
+  // Fills the record from the run's state once it is over.
+  void close(RunState& s, RunRecord& r, const std::string& process_fault, const std::string& stderr_tail) const {
+    r.wall_seconds = std::chrono::duration<double>(Clock::now() - s.started).count();
+    r.steps = s.last_iter.value_or(0);
+    std::string fault = s.fault;
+    if (fault.empty() && !s.monitor->decided()) {
+      if (!process_fault.empty()) fault = process_fault;
+      else if (r.trace.empty()) fault = "no output: the program wrote no {\"iter\": k, \"cost\": J} line";
+    }
+    if (!fault.empty()) {
+      r.outcome = Outcome::failed;
+      r.reason = fault + (stderr_tail.empty() ? std::string() : "; stderr: " + stderr_tail);
+    } else {
+      const Classification cl = s.monitor->result();
+      r.outcome = cl.outcome;
+      r.iterations = cl.iterations;
+      r.overshoot = cl.overshoot;
+      r.reason = cl.reason;
+      r.confirmation = cl.confirmation;
+    }
+    if (!s.out_dir.empty()) {
+      std::error_code ec;
+      if (r.outcome != Outcome::failed) fs::remove_all(s.out_dir, ec);
+      else r.reason += " (its {out} folder is kept: " + s.out_dir + ")";
+    }
+  }
+
+  static std::string exit_fault(const ChildExit& ex, const char* what) {
+    if (ex.signalled) return fmt::format("{} killed by signal {} ({})", what, ex.code, ::strsignal(ex.code));
+    if (ex.code != 0) return fmt::format("{} exited with status {}", what, ex.code);
+    return "";
+  }
+
+  void run_per_process(std::span<const double> rates, BatchSeed seed, std::vector<RunRecord>& records) {
+    struct Active {
+      RunState state;
+      std::unique_ptr<ChildProcess> child;
+    };
+    std::vector<Active> active;
+    std::size_t next = 0;
+    while (next < rates.size() || !active.empty()) {
+      while (next < rates.size() && static_cast<int>(active.size()) < parallel) {
+        Active a{begin(next), nullptr};
+        try {
+          a.state.out_dir = fresh_folder();
+          a.child = spawn(argv_for(rates[next], seed, a.state.out_dir), false);
+          active.push_back(std::move(a));
+        } catch (const std::exception& e) {
+          a.state.fault = std::string("could not start: ") + e.what();
+          close(a.state, records[next], "", "");
+        }
+        ++next;
+      }
+      const auto wait = std::chrono::milliseconds(active.size() > 1 ? 5 : 50);
+      for (Active& a : active) {
+        RunRecord& r = records[a.state.index];
+        std::vector<std::string> lines;
+        const bool open = a.child->read_lines(lines, wait);
+        for (const std::string& line : lines) {
+          if (!a.state.fault.empty() || a.state.monitor->decided()) break;
+          take(a.state, r, line, nullptr);
+        }
+        if (must_end(a.state, a.child->bytes_read())) {
+          a.child->stop(c.spec.grace);
+          close(a.state, r, "", a.child->stderr_tail());
+          a.child.reset();
+        } else if (!open) {
+          const ChildExit ex = a.child->wait();
+          close(a.state, r, exit_fault(ex, "the program"), a.child->stderr_tail());
+          a.child.reset();
+        }
+      }
+      std::erase_if(active, [](const Active& a) { return !a.child; });
+    }
+  }
+
+  json request(const RunState& s, double rate, BatchSeed seed) const {
+    json q = {{"run", s.id},           {"rate", rate},          {"seed", seed.number},
+              {"budget", settings.budget}, {"optimizer", c.optimizer}, {"scaling", c.scaling}};
+    for (const auto& [k, v] : c.optimizer_fields)
+      if (!q.contains(k) && k != "kind") {
+        char* end = nullptr;
+        const double x = std::strtod(v.c_str(), &end);
+        q[k] = (end && *end == '\0') ? json(x) : json(v);
+      }
+    return q;
+  }
+
+  void run_serving(std::span<const double> rates, BatchSeed seed, std::vector<RunRecord>& records) {
+    const int workers = std::min<int>(parallel, static_cast<int>(rates.size()));
+    if (static_cast<int>(servers.size()) < workers) servers.resize(static_cast<std::size_t>(workers));
+    std::size_t next = 0;
+    auto busy = [&] {
+      for (const Server& s : servers)
+        if (s.run) return true;
+      return false;
+    };
+    auto fail_server = [&](Server& sv, const std::string& fault) {
+      // The process is in an unknown state: it goes, and the next run gets a fresh one.
+      const ChildExit ex = sv.child->stop(c.spec.grace);
+      const std::string tail = sv.child->stderr_tail();
+      if (sv.run) {
+        RunState& s = *sv.run;
+        if (s.fault.empty() && !s.monitor->decided())
+          s.fault = fault.empty() ? exit_fault(ex, "the serving process") + " during the run" : fault;
+        close(s, records[s.index], "", tail);
+        sv.run.reset();
+      }
+      sv.child.reset();
+    };
+    while (next < rates.size() || busy()) {
+      for (int w = 0; w < workers; ++w) {
+        Server& sv = servers[static_cast<std::size_t>(w)];
+        if (sv.run || next >= rates.size()) continue;
+        RunState s = begin(next);
+        try {
+          if (!sv.child) sv.child = spawn(argv_for(rates[next], seed, ""), true);
+          s.bytes_at_start = sv.child->bytes_read();
+          if (!sv.child->write(request(s, rates[next], seed).dump() + "\n")) {
+            const ChildExit ex = sv.child->stop(c.spec.grace);
+            s.fault = exit_fault(ex, "the serving process") + " before taking the request";
+            close(s, records[next], "", sv.child->stderr_tail());
+            sv.child.reset();
+          } else {
+            sv.run = std::move(s);
+          }
+        } catch (const std::exception& e) {
+          s.fault = std::string("could not start: ") + e.what();
+          close(s, records[next], "", "");
+        }
+        ++next;
+      }
+      const auto wait = std::chrono::milliseconds(workers > 1 ? 5 : 50);
+      for (Server& sv : servers) {
+        if (!sv.run) continue;
+        RunState& s = *sv.run;
+        RunRecord& r = records[s.index];
+        std::vector<std::string> lines;
+        const bool open = sv.child->read_lines(lines, wait);
+        bool ended = false;
+        for (const std::string& line : lines) {
+          const auto first = line.find_first_not_of(" \t\r");
+          if (first == std::string::npos || line[first] != '{') {
+            ++r.log_lines;
+            continue;
+          }
+          json j = parse_line(line);
+          if (j.is_discarded() || !j.is_object() || !j.contains("run")) {
+            if (!s.stop_sent && s.fault.empty())
+              s.fault = fmt::format("protocol error at output line {}: expected a JSON object with \"run\", found {:.120}",
+                                    s.line_number + 1, line);
+            break;
+          }
+          if (j["run"] != json(s.id)) continue;  // a late line of an earlier run
+          if (j.contains("end") && j["end"] == true) {
+            ended = true;
+            break;
+          }
+          if (s.stop_sent || !s.fault.empty() || s.monitor->decided()) continue;
+          j.erase("run");
+          take(s, r, line, &j);
+        }
+        if (!s.fault.empty() && !s.stop_sent) {
+          fail_server(sv, "");
+          continue;
+        }
+        if (ended) {
+          close(s, r, "", "");
+          sv.run.reset();
+          continue;
+        }
+        if (!open) {
+          fail_server(sv, "");
+          continue;
+        }
+        if (!s.stop_sent && must_end(s, sv.child->bytes_read())) {
+          if (!s.fault.empty()) {
+            fail_server(sv, "");
+            continue;
+          }
+          s.stop_sent = true;
+          sv.stop_sent_at = Clock::now();
+          if (!sv.child->write(json{{"stop", s.id}}.dump() + "\n")) fail_server(sv, "");
+          continue;
+        }
+        // A program that does not end a stopped run within the grace period is stopped itself.
+        if (s.stop_sent &&
+            std::chrono::duration<double>(Clock::now() - sv.stop_sent_at).count() > std::max(c.spec.grace, 1.0)) {
+          close(s, r, "", "");  // decided already; only the process goes
+          sv.run.reset();
+          sv.child->stop(c.spec.grace);
+          sv.child.reset();
+        }
+      }
+    }
+  }
+
+  void end_servers() {
+    for (Server& sv : servers) {
+      if (!sv.child) continue;
+      sv.child->close_stdin();  // end of input: the program exits
+      const auto until = Clock::now() + std::chrono::duration<double>(c.spec.grace);
+      std::vector<std::string> ignored;
+      while (Clock::now() < until && sv.child->read_lines(ignored, std::chrono::milliseconds(20))) ignored.clear();
+      sv.child->stop(0.2);
+      sv.child.reset();
+    }
+    servers.clear();
+  }
+};
+
+CommandSession::CommandSession(CommandCase c, RunSettings settings, int jobs) : impl_(std::make_unique<Impl>()) {
+  impl_->c = std::move(c);
+  impl_->settings = std::move(settings);
+  impl_->parallel = std::max(1, impl_->c.spec.parallel > 0 ? impl_->c.spec.parallel : jobs);
+  impl_->has_optimum = !std::isnan(impl_->c.spec.optimum);
+}
+
+CommandSession::~CommandSession() {
+  if (impl_) impl_->end_servers();
+}
+
+std::vector<RunRecord> CommandSession::run(std::span<const double> rates, BatchSeed seed) {
+  std::vector<RunRecord> records(rates.size());
+  for (std::size_t j = 0; j < rates.size(); ++j) {
+    records[j].rate = rates[j];
+    records[j].seed = seed.seed;
+    records[j].seed_index = seed.index;
+  }
+  if (impl_->c.spec.serve) impl_->run_serving(rates, seed, records);
+  else impl_->run_per_process(rates, seed, records);
   return records;
+}
+
+std::vector<RunRecord> run_commands(const CommandCase& c, const RunSettings& settings, std::span<const double> rates,
+                                    BatchSeed seed, int jobs) {
+  CommandSession session(c, settings, jobs);
+  return session.run(rates, seed);
 }
 
 }  // namespace stepgate

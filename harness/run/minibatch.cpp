@@ -1,10 +1,10 @@
-#include "run/minibatch.hpp"
+#include "stepgate/run/minibatch.hpp"
 
 #include <algorithm>
 #include <numeric>
 #include <random>
 
-#include "core/seed.hpp"
+#include "stepgate/core/seed.hpp"
 
 namespace stepgate {
 

@@ -5,7 +5,7 @@
 #include <span>
 #include <vector>
 
-#include "core/types.hpp"
+#include "stepgate/core/types.hpp"
 
 namespace stepgate {
 

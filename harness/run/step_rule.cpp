@@ -1,4 +1,4 @@
-#include "run/step_rule.hpp"
+#include "stepgate/run/step_rule.hpp"
 
 namespace stepgate {
 

@@ -1,7 +1,7 @@
 // Which theoretical threshold applies to an optimizer (joins optimizers/ and analysis/).
 #pragma once
-#include "analysis/theory.hpp"
-#include "optimizers/optimizer.hpp"
+#include "stepgate/analysis/theory.hpp"
+#include "stepgate/optimizers/optimizer.hpp"
 
 namespace stepgate {
 

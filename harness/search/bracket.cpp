@@ -1,4 +1,4 @@
-#include "search/bracket.hpp"
+#include "stepgate/search/bracket.hpp"
 
 #include <cmath>
 #include <stdexcept>

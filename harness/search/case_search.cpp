@@ -1,17 +1,17 @@
-#include "search/case_search.hpp"
+#include "stepgate/search/case_search.hpp"
 
 #include <algorithm>
 #include <cmath>
 #include <map>
 #include <set>
 
-#include "analysis/curvature.hpp"
-#include "analysis/reference.hpp"
-#include "core/seed.hpp"
-#include "run/batch.hpp"
-#include "run/step_rule.hpp"
-#include "search/bracket.hpp"
-#include "search/rate_grid.hpp"
+#include "stepgate/analysis/curvature.hpp"
+#include "stepgate/analysis/reference.hpp"
+#include "stepgate/core/seed.hpp"
+#include "stepgate/run/batch.hpp"
+#include "stepgate/run/step_rule.hpp"
+#include "stepgate/search/bracket.hpp"
+#include "stepgate/search/rate_grid.hpp"
 
 namespace stepgate {
 

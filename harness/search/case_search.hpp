@@ -9,13 +9,13 @@
 #include <string>
 #include <vector>
 
-#include "core/feature_map.hpp"
-#include "core/optimizer_spec.hpp"
-#include "core/rate_policy.hpp"
-#include "core/reference_values.hpp"
-#include "core/results.hpp"
-#include "core/run_settings.hpp"
-#include "run/batch.hpp"  // Problem comes with the runner that executes it
+#include "stepgate/core/feature_map.hpp"
+#include "stepgate/core/optimizer_spec.hpp"
+#include "stepgate/core/rate_policy.hpp"
+#include "stepgate/core/reference_values.hpp"
+#include "stepgate/core/results.hpp"
+#include "stepgate/core/run_settings.hpp"
+#include "stepgate/run/batch.hpp"  // Problem comes with the runner that executes it
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "search/rate_grid.hpp"
+#include "stepgate/search/rate_grid.hpp"
 
 #include <cmath>
 #include <stdexcept>

@@ -2,7 +2,7 @@
 #pragma once
 #include <vector>
 
-#include "core/rate_policy.hpp"
+#include "stepgate/core/rate_policy.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "suite/json_reader.hpp"
+#include "stepgate/suite/json_reader.hpp"
 
 #include <algorithm>
 #include <cctype>
@@ -8,7 +8,7 @@
 
 #include <fmt/format.h>
 
-#include "core/error.hpp"
+#include "stepgate/core/error.hpp"
 
 namespace stepgate::suite_detail {
 namespace {

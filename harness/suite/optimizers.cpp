@@ -2,7 +2,7 @@
 // predefined ones named like their kind ("gd", "adam", ...) with published defaults.
 #include <fmt/format.h>
 
-#include "suite/suite_sections.hpp"
+#include "stepgate/suite/suite_sections.hpp"
 
 namespace stepgate::suite_detail {
 namespace {

@@ -1,13 +1,13 @@
 // One entry of the `problems` section: kind, kind options, reference and settings, and the
 // checks that tie it to the rest of the suite (datasets, scalings, optimizers).
-#include <filesystem>
-
-#include "core/placeholders.hpp"
 #include <algorithm>
+#include <filesystem>
 
 #include <fmt/format.h>
 
-#include "suite/suite_sections.hpp"
+#include "stepgate/core/custom_kinds.hpp"
+#include "stepgate/core/placeholders.hpp"
+#include "stepgate/suite/suite_sections.hpp"
 
 namespace stepgate::suite_detail {
 namespace {
@@ -43,31 +43,59 @@ const std::vector<KindKey>& kind_keys() {
   return keys;
 }
 
-const std::vector<std::string>& problem_keys() {
-  static const std::vector<std::string> keys = [] {
-    std::vector<std::string> k = {"name", "kind"};
-    for (const KindKey& kk : kind_keys()) k.push_back(kk.key);
-    for (const std::string& s : settings_keys()) k.push_back(s);
-    return k;
-  }();
-  return keys;
+// The kinds that registered themselves (core/custom_kinds.hpp), read once per problem entry.
+std::vector<CustomKind> registered_kinds() {
+  std::vector<CustomKind> kinds;
+  for (const std::string& name : custom_kind_names())
+    if (auto k = find_custom_kind(name)) kinds.push_back(std::move(*k));
+  return kinds;
+}
+
+// Every key a problem entry may have: name, kind, the keys of every kind (built-in and
+// registered) and the settings. A key of another kind is then refused by check_kind_keys with
+// the kinds it is for, rather than as unknown.
+std::vector<std::string> problem_keys(const std::vector<CustomKind>& custom) {
+  std::vector<std::string> k = {"name", "kind"};
+  for (const KindKey& kk : kind_keys()) k.push_back(kk.key);
+  for (const CustomKind& c : custom)
+    for (const std::string& key : c.keys)
+      if (std::find(k.begin(), k.end(), key) == k.end()) k.push_back(key);
+  for (const std::string& s : settings_keys()) k.push_back(s);
+  return k;
 }
 
 bool has_data(ProblemKind k) {
   return k == ProblemKind::least_squares || k == ProblemKind::logistic || k == ProblemKind::softmax;
 }
 
-void check_kind_keys(const ObjectNode& o, ProblemKind kind) {
-  for (const KindKey& kk : kind_keys()) {
-    if (!o.has(kk.key) || std::count(kk.kinds.begin(), kk.kinds.end(), kind)) continue;
-    std::vector<std::string> names;
-    for (ProblemKind k : kk.kinds) names.emplace_back(to_string(k));
-    o.require(kk.key).fail(fmt::format("key '{}' does not apply to a {} problem; it is for: {}",
-                                       kk.key, to_string(kind), join(names)));
+// Fails at the first key of the entry that belongs to kinds other than `kind` (`custom` is the
+// registered kind when kind is ProblemKind::custom).
+void check_kind_keys(const ObjectNode& o, ProblemKind kind, const CustomKind* custom,
+                     const std::vector<CustomKind>& registered) {
+  const std::string kind_name = custom ? custom->name : std::string(to_string(kind));
+  const auto applies_to_custom = [](const CustomKind& c, const std::string& key) {
+    return std::count(c.keys.begin(), c.keys.end(), key) > 0 || (key == "dataset" && c.uses_dataset);
+  };
+  for (const std::string& key : o.keys()) {
+    std::vector<std::string> owners;  // the kinds the key is for
+    bool applies = false;
+    for (const KindKey& kk : kind_keys())
+      if (key == kk.key) {
+        for (ProblemKind k : kk.kinds) owners.emplace_back(to_string(k));
+        applies = !custom && std::count(kk.kinds.begin(), kk.kinds.end(), kind) > 0;
+      }
+    for (const CustomKind& c : registered)
+      if (applies_to_custom(c, key) && std::count(owners.begin(), owners.end(), c.name) == 0)
+        owners.push_back(c.name);
+    if (custom) applies = applies_to_custom(*custom, key);
+    if (owners.empty() || applies) continue;  // name, kind, settings; or a key of this kind
+    o.require(key).fail(fmt::format("key '{}' does not apply to a {} problem; it is for: {}", key,
+                                    kind_name, join(owners)));
   }
 }
 
-void read_linear(const ObjectNode& o, const Suite& suite, ProblemSpec& p) {
+// The `dataset` key: a data set the suite defines.
+const DatasetSpec& read_dataset_key(const ObjectNode& o, const Suite& suite, ProblemSpec& p) {
   const Node dataset = o.require("dataset");
   p.dataset = dataset.string();
   const auto it = suite.datasets.find(p.dataset);
@@ -78,7 +106,22 @@ void read_linear(const ObjectNode& o, const Suite& suite, ProblemSpec& p) {
         "undefined dataset '{}'{}; defined: {}", p.dataset, did_you_mean(p.dataset, defined),
         defined.empty() ? "none (the suite has no datasets section)" : join(defined)));
   }
-  const DatasetSpec& d = it->second;
+  return it->second;
+}
+
+// A registered kind: its data set (when it uses one) and its own keys, passed to its factory
+// as they are written (the factory checks their values).
+void read_custom(const ObjectNode& o, const CustomKind& kind, const Suite& suite, ProblemSpec& p) {
+  p.custom_kind = kind.name;
+  if (kind.uses_dataset) read_dataset_key(o, suite, p);
+  p.custom_params = nlohmann::json::object();
+  for (const std::string& key : kind.keys)
+    if (auto n = o.find(key)) p.custom_params[key] = nlohmann::json(n->json());
+}
+
+void read_linear(const ObjectNode& o, const Suite& suite, ProblemSpec& p) {
+  const Node dataset = o.require("dataset");
+  const DatasetSpec& d = read_dataset_key(o, suite, p);
   if (p.kind != ProblemKind::least_squares && d.source == DatasetSpec::Source::generated &&
       d.generated.kind == GeneratedSpec::linear)
     dataset.fail(
@@ -149,14 +192,15 @@ void read_problem_reference(const ObjectNode& o, const Suite& suite, ProblemSpec
 // Settings that a problem without data cannot use.
 void check_dataless(const Node& node, const Layers& settings, const Suite& suite,
                     const ProblemSpec& p) {
-  if (has_data(p.kind)) return;
+  if (uses_dataset(p)) return;
+  const std::string kind = problem_kind_name(p);
   if (auto n = settings.find("scalings"))
     for (std::size_t i = 0; i < p.scalings.size(); ++i)
       if (p.scalings[i] != "none")
         n->element(i).fail(
             fmt::format("found scaling '{}' on a {} problem, which has no data to scale; "
                         "expected only \"none\"",
-                        p.scalings[i], to_string(p.kind)));
+                        p.scalings[i], kind));
   for (std::size_t i = 0; i < p.optimizers.size(); ++i) {
     const OptimizerSpec& spec = suite.optimizers.at(p.optimizers[i]);
     const auto listed = settings.find("optimizers");
@@ -165,7 +209,7 @@ void check_dataless(const Node& node, const Layers& settings, const Suite& suite
           .fail(fmt::format(
               "found optimizer '{}' with batch_size {} on a {} problem, which has no samples to "
               "batch; expected full-batch optimizers (batch_size 0)",
-              p.optimizers[i], spec.batch_size, to_string(p.kind)));
+              p.optimizers[i], spec.batch_size, kind));
   }
 }
 
@@ -202,7 +246,6 @@ void read_command(const ObjectNode& o, const Suite& suite, ProblemSpec& p) {
   if (auto n = c.find("parallel")) spec.parallel = static_cast<int>(n->integer_if([](long v) { return v >= 0 && v <= 256; }, "a whole number in [0, 256] (0 = --jobs)"));
   if (auto n = c.find("serve")) {
     spec.serve = n->boolean();
-    if (spec.serve) n->fail("found \"serve\": true; serving mode is not built yet in this version; expected false (one process per run)");
   }
   if (auto n = c.find("max_output")) spec.max_output = n->integer_if([](long v) { return v >= 1024; }, "bytes >= 1024");
   if (auto n = c.find("grace")) spec.grace = n->number_if([](double v) { return v >= 0 && v <= 600; }, "seconds in [0, 600]");
@@ -217,6 +260,11 @@ void check_placeholders(const ObjectNode& o, const Suite& suite, const ProblemSp
       const std::map<std::string, std::string> fields = optimizer_fields(suite.optimizers.at(label));
       try {
         expand_placeholders(p.command.argv[i], [&](std::string_view name) -> std::optional<std::string> {
+          for (std::string_view known : {"rate", "seed", "out"})
+            if (name == known && p.command.serve)
+              throw std::invalid_argument(fmt::format(
+                  "found {{{}}} in the argv of a serving program, which is started once for many runs; "
+                  "expected it in the requests (\"rate\", \"seed\") instead", name));
           for (std::string_view known : {"rate", "seed", "budget", "optimizer", "scaling", "case", "out"})
             if (name == known) return "x";
           if (name.starts_with("optimizer.") && fields.count(std::string(name.substr(10)))) return "x";
@@ -234,19 +282,23 @@ void check_placeholders(const ObjectNode& o, const Suite& suite, const ProblemSp
 
 ProblemSpec read_problem(const Node& node, const std::optional<Node>& defaults,
                          const std::optional<Node>& suite_gate, Suite& suite) {
-  const ObjectNode o(node, problem_keys());
+  const std::vector<CustomKind> registered = registered_kinds();
+  const ObjectNode o(node, problem_keys(registered));
   ProblemSpec p;
   p.pointer = node.pointer();
   const Node name = o.require("name");
   p.name = name.string();
   check_name(name, p.name, "problem name");
-  std::vector<std::string> kinds;
-  for (ProblemKind k : {ProblemKind::least_squares, ProblemKind::logistic, ProblemKind::softmax,
-                        ProblemKind::quadratic, ProblemKind::test_function, ProblemKind::command})
-    kinds.emplace_back(to_string(k));
-  p.kind = *problem_kind_from_string(o.require("kind").choice(kinds, "problem kind"));
-  check_kind_keys(o, p.kind);
+  std::vector<std::string> kinds = builtin_problem_kind_names();
+  for (const CustomKind& c : registered) kinds.push_back(c.name);
+  const std::string& kind = o.require("kind").choice(kinds, "problem kind");
+  const CustomKind* custom = nullptr;
+  for (const CustomKind& c : registered)
+    if (c.name == kind) custom = &c;
+  p.kind = custom ? ProblemKind::custom : *problem_kind_from_string(kind);
+  check_kind_keys(o, p.kind, custom, registered);
 
+  if (custom) read_custom(o, *custom, suite, p);
   if (has_data(p.kind)) read_linear(o, suite, p);
   if (p.kind == ProblemKind::quadratic) read_quadratic(o, p);
   if (p.kind == ProblemKind::test_function)

@@ -4,8 +4,8 @@
 
 #include <fmt/format.h>
 
-#include "data/file_io.hpp"
-#include "suite/suite_sections.hpp"
+#include "stepgate/data/file_io.hpp"
+#include "stepgate/suite/suite_sections.hpp"
 
 namespace stepgate {
 namespace suite_detail {

@@ -7,7 +7,7 @@
 
 #include <fmt/format.h>
 
-#include "suite/suite_sections.hpp"
+#include "stepgate/suite/suite_sections.hpp"
 
 namespace stepgate::suite_detail {
 namespace {

@@ -1,14 +1,14 @@
 // load_suite / parse_suite: the top level of a suite file, and the names the suite stage owns.
-#include "suite/suite.hpp"
+#include "stepgate/suite/suite.hpp"
 
 #include <filesystem>
 
 #include <fmt/format.h>
 
-#include "data/file_io.hpp"
-#include "data/sha256.hpp"
-#include "core/placeholders.hpp"
-#include "suite/suite_sections.hpp"
+#include "stepgate/data/file_io.hpp"
+#include "stepgate/data/sha256.hpp"
+#include "stepgate/core/placeholders.hpp"
+#include "stepgate/suite/suite_sections.hpp"
 
 namespace stepgate {
 
@@ -26,15 +26,57 @@ std::string_view to_string(ProblemKind k) {
       return "test_function";
     case ProblemKind::command:
       return "command";
+    case ProblemKind::custom:
+      return "custom";
   }
   return "least_squares";
 }
 
+namespace {
+constexpr ProblemKind kBuiltinKinds[] = {ProblemKind::least_squares, ProblemKind::logistic,
+                                         ProblemKind::softmax,       ProblemKind::quadratic,
+                                         ProblemKind::test_function, ProblemKind::command};
+}  // namespace
+
 std::optional<ProblemKind> problem_kind_from_string(std::string_view s) {
-  for (ProblemKind k : {ProblemKind::least_squares, ProblemKind::logistic, ProblemKind::softmax,
-                        ProblemKind::quadratic, ProblemKind::test_function, ProblemKind::command})
+  for (ProblemKind k : kBuiltinKinds)
     if (to_string(k) == s) return k;
   return std::nullopt;
+}
+
+const std::vector<std::string>& builtin_problem_kind_names() {
+  static const std::vector<std::string> names = [] {
+    std::vector<std::string> n;
+    for (ProblemKind k : kBuiltinKinds) n.emplace_back(to_string(k));
+    return n;
+  }();
+  return names;
+}
+
+const std::vector<std::string>& reserved_problem_keys() {
+  static const std::vector<std::string> keys = [] {
+    std::vector<std::string> k = {"name", "kind", "dataset", "reference"};
+    for (const std::string& s : suite_detail::settings_keys()) k.push_back(s);
+    return k;
+  }();
+  return keys;
+}
+
+std::string problem_kind_name(const ProblemSpec& p) {
+  return p.kind == ProblemKind::custom ? p.custom_kind : std::string(to_string(p.kind));
+}
+
+bool uses_dataset(const ProblemSpec& p) {
+  switch (p.kind) {
+    case ProblemKind::least_squares:
+    case ProblemKind::logistic:
+    case ProblemKind::softmax:
+      return true;
+    case ProblemKind::custom:
+      return !p.dataset.empty();  // read_problem requires one exactly when the kind uses data
+    default:
+      return false;
+  }
 }
 
 const std::vector<std::string>& suite_test_function_names() {

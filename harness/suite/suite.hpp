@@ -8,16 +8,18 @@
 #include <string_view>
 #include <vector>
 
-#include "core/command_spec.hpp"
-#include "core/gate_tolerances.hpp"
-#include "core/optimizer_spec.hpp"
-#include "core/problem_options.hpp"
-#include "core/rate_policy.hpp"
-#include "core/reference_values.hpp"
-#include "core/run_settings.hpp"
-#include "data/csv.hpp"
-#include "data/generate.hpp"
-#include "data/scaling.hpp"
+#include <nlohmann/json.hpp>
+
+#include "stepgate/core/command_spec.hpp"
+#include "stepgate/core/gate_tolerances.hpp"
+#include "stepgate/core/optimizer_spec.hpp"
+#include "stepgate/core/problem_options.hpp"
+#include "stepgate/core/rate_policy.hpp"
+#include "stepgate/core/reference_values.hpp"
+#include "stepgate/core/run_settings.hpp"
+#include "stepgate/data/csv.hpp"
+#include "stepgate/data/generate.hpp"
+#include "stepgate/data/scaling.hpp"
 
 namespace stepgate {
 
@@ -44,12 +46,23 @@ struct DatasetSpec {
   long max_rows = 0;    ///< 0 = all rows
   // generated
   GeneratedSpec generated;
+  /// csv: a command of the team's pipeline that writes the file before any case uses it
+  /// ("produce": {"argv", "cwd", "env", "timeout"}); its file is then hashed like any other.
+  std::optional<CommandSpec> produce;
 };
 
-enum class ProblemKind { least_squares, logistic, softmax, quadratic, test_function, command };
+/// `custom`: a kind registered by the program that links the library (core/custom_kinds.hpp,
+/// sweep/registry.hpp); its name is ProblemSpec::custom_kind.
+enum class ProblemKind { least_squares, logistic, softmax, quadratic, test_function, command, custom };
 std::string_view to_string(ProblemKind k);
-/// Parses the lower-case name (as printed by to_string); nullopt for anything else.
+/// Parses the lower-case name of a built-in kind (as printed by to_string); nullopt for anything
+/// else, also for "custom" (a suite names a registered kind by its own name).
 std::optional<ProblemKind> problem_kind_from_string(std::string_view s);
+/// The names of the built-in kinds, in declaration order (without "custom").
+const std::vector<std::string>& builtin_problem_kind_names();
+/// The keys of a problem entry that a registered kind may not claim as its own: "name", "kind",
+/// "dataset", "reference" and the settings keys ("scalings", "optimizers", "seeds", ...).
+const std::vector<std::string>& reserved_problem_keys();
 
 /// Names a test_function problem may use. The suite stage may not include problems/, so it
 /// keeps its own list; a unit test checks that it equals problems' test_function_names().
@@ -65,6 +78,8 @@ struct ProblemSpec {
   QuadraticOptions quadratic;
   std::string function;                 ///< test_function: name (see make_test_function)
   CommandSpec command;                  ///< command: the user's training program
+  std::string custom_kind;              ///< custom: the registered kind's name
+  nlohmann::json custom_params = nlohmann::json::object();  ///< custom: the kind's keys present in the entry
   std::vector<std::string> scalings;    ///< keys into Suite::scalings ("none" is always defined)
   std::vector<std::string> optimizers;  ///< keys into Suite::optimizers
   std::map<std::string, double> pinned; ///< optimizer label -> pinned rate
@@ -74,6 +89,12 @@ struct ProblemSpec {
   std::optional<ReferenceValues> reference;  ///< in original units, in LinearLayout order
   GateTolerances gate;                  ///< suite gate section merged with the problem's own
 };
+
+/// The kind as results.json records it: the registered name for a custom kind, else to_string(kind).
+std::string problem_kind_name(const ProblemSpec& p);
+/// True when the problem is built on a data set (linear models, and registered kinds that use one):
+/// then `dataset` names it and every scaling applies.
+bool uses_dataset(const ProblemSpec& p);
 
 struct Suite {
   std::string name;

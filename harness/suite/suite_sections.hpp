@@ -5,8 +5,8 @@
 #include <optional>
 #include <string>
 
-#include "suite/json_reader.hpp"
-#include "suite/suite.hpp"
+#include "stepgate/suite/json_reader.hpp"
+#include "stepgate/suite/suite.hpp"
 
 namespace stepgate::suite_detail {
 

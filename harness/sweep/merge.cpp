@@ -1,11 +1,11 @@
-#include "sweep/merge.hpp"
+#include "stepgate/sweep/merge.hpp"
 
 #include <algorithm>
 #include <cstdio>
 
 #include <fmt/format.h>
 
-#include "core/error.hpp"
+#include "stepgate/core/error.hpp"
 
 namespace stepgate {
 

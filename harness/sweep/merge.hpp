@@ -3,7 +3,7 @@
 #pragma once
 #include <vector>
 
-#include "core/results.hpp"
+#include "stepgate/core/results.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "sweep/plan.hpp"
+#include "stepgate/sweep/plan.hpp"
 
 #include <cmath>
 #include <stdexcept>

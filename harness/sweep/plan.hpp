@@ -4,7 +4,7 @@
 #include <string>
 #include <vector>
 
-#include "suite/suite.hpp"
+#include "stepgate/suite/suite.hpp"
 
 namespace stepgate {
 

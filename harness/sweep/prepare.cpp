@@ -1,24 +1,51 @@
-#include "sweep/prepare.hpp"
+#include "stepgate/sweep/prepare.hpp"
 
+#include <chrono>
 #include <cmath>
+#include <filesystem>
 #include <set>
 
-#include "core/error.hpp"
-#include "data/column_stats.hpp"
-#include "data/scaling.hpp"
-#include "problems/linear_models.hpp"
-#include "problems/quadratic.hpp"
-#include "problems/test_functions.hpp"
+#include <fmt/format.h>
+
+#include "stepgate/run/child_process.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/data/column_stats.hpp"
+#include "stepgate/data/scaling.hpp"
+#include "stepgate/problems/linear_models.hpp"
+#include "stepgate/problems/quadratic.hpp"
+#include "stepgate/problems/test_functions.hpp"
+#include "stepgate/sweep/registry.hpp"
 
 namespace stepgate {
 
 namespace {
 
-bool is_linear(ProblemKind k) {
-  return k == ProblemKind::least_squares || k == ProblemKind::logistic || k == ProblemKind::softmax;
+// A registered kind's problem from its factory. Its exceptions are input errors at the entry
+// (or at one of the kind's keys, when the factory threw InputError(KEY, ...)).
+std::unique_ptr<Problem> build_custom(const ProblemSpec& p, const Dataset* data, const std::string& where) {
+  const ProblemFactory factory = find_problem_factory(p.custom_kind);
+  if (!factory)
+    throw InputError(where, fmt::format("problem kind '{}' has no factory (register it with "
+                                        "register_problem_kind, sweep/registry.hpp)", p.custom_kind));
+  std::unique_ptr<Problem> problem;
+  try {
+    problem = factory(p.custom_params, data);
+  } catch (const InputError& e) {
+    if (p.custom_params.contains(e.where()))
+      throw InputError(where + "/" + e.where(), fmt::format("problem kind '{}': {}", p.custom_kind, e.message()));
+    throw InputError(where, fmt::format("problem kind '{}' could not build the problem: {}", p.custom_kind, e.what()));
+  } catch (const std::exception& e) {
+    throw InputError(where, fmt::format("problem kind '{}' could not build the problem: {}", p.custom_kind, e.what()));
+  }
+  if (!problem) throw InputError(where, fmt::format("problem kind '{}': the factory returned no problem", p.custom_kind));
+  if (problem->dim() < 1)
+    throw InputError(where, fmt::format("problem kind '{}': the problem has {} parameters; expected at least 1",
+                                        p.custom_kind, problem->dim()));
+  return problem;
 }
 
 std::unique_ptr<Problem> build(const ProblemSpec& p, const Dataset* data, const std::string& where) {
+  if (p.kind == ProblemKind::custom) return build_custom(p, data, where);
   try {
     switch (p.kind) {
       case ProblemKind::least_squares: return make_least_squares(*data, p.linear);
@@ -27,6 +54,7 @@ std::unique_ptr<Problem> build(const ProblemSpec& p, const Dataset* data, const 
       case ProblemKind::quadratic: return make_quadratic(p.quadratic);
       case ProblemKind::test_function: return make_test_function(p.function);
       case ProblemKind::command: return nullptr;  // runs come from the user's program (run/command_runner)
+      case ProblemKind::custom: break;            // above
     }
   } catch (const std::invalid_argument& e) {
     throw InputError(where, e.what());
@@ -64,6 +92,36 @@ ReferenceValues align_reference(const ReferenceValues& ref, const Dataset& data,
   return out;
 }
 
+// Runs a data set's produce command (the team's pipeline) and waits for it. A command that
+// fails, times out or writes no file is bad input of the suite (exit 2), with its stderr.
+static void produce(const DatasetSpec& spec) {
+  const CommandSpec& c = *spec.produce;
+  const std::string where = spec.suite_path + "#" + spec.pointer + "/produce";
+  ChildOptions o;
+  o.argv = c.argv;
+  o.cwd = c.cwd;
+  o.env = c.env;
+  ChildProcess child(o);
+  const auto started = std::chrono::steady_clock::now();
+  std::vector<std::string> lines;
+  bool open = true;
+  while (open) {
+    lines.clear();
+    open = child.read_lines(lines, std::chrono::milliseconds(100));
+    if (open && std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count() > c.timeout) {
+      child.stop(c.grace);
+      throw InputError(where, fmt::format("the produce command did not finish within {:g} s (stopped); stderr: {}",
+                                          c.timeout, child.stderr_tail()));
+    }
+  }
+  const ChildExit ex = child.wait();
+  if (ex.signalled || ex.code != 0)
+    throw InputError(where, fmt::format("the produce command {} {}; stderr: {}", ex.signalled ? "was killed by signal" : "exited with status",
+                                        ex.code, child.stderr_tail()));
+  if (!std::filesystem::is_regular_file(spec.path))
+    throw InputError(where, fmt::format("the produce command succeeded but wrote no file {}", spec.path));
+}
+
 static DatasetInfo describe(const DatasetSpec& spec, const Dataset& d) {
   DatasetInfo info;
   info.name = spec.name;
@@ -71,6 +129,7 @@ static DatasetInfo describe(const DatasetSpec& spec, const Dataset& d) {
                 : spec.source == DatasetSpec::Source::idx     ? spec.path + " + " + spec.labels_path
                                                               : spec.path;
   info.sha256 = d.sha256;
+  if (spec.produce) info.produced_by = spec.produce->argv, info.produced_in = spec.produce->cwd;
   info.rows = static_cast<long>(d.rows());
   info.columns = static_cast<long>(d.cols());
   for (const ColumnStats& c : column_stats(d)) info.stats.push_back({c.name, c.mean, c.sd});
@@ -91,9 +150,10 @@ PreparedSweep prepare_problems(const Suite& suite, const Plan& plan) {
     const ProblemSpec& p = suite.problems[c.problem];
     PreparedProblem prepared;
     const std::string where = suite.path + "#" + p.pointer;
-    if (is_linear(p.kind)) {
+    if (uses_dataset(p)) {
       if (!raw.count(p.dataset)) {
         const DatasetSpec& spec = suite.datasets.at(p.dataset);
+        if (spec.produce) produce(spec);
         const Dataset& d = raw.emplace(p.dataset, load_dataset(spec)).first->second;
         sweep.datasets.push_back(describe(spec, d));
       }

@@ -7,11 +7,11 @@
 #include <string>
 #include <utility>
 
-#include "core/reference_values.hpp"
-#include "core/results.hpp"
-#include "problems/problem.hpp"
-#include "suite/suite.hpp"
-#include "sweep/plan.hpp"
+#include "stepgate/core/reference_values.hpp"
+#include "stepgate/core/results.hpp"
+#include "stepgate/problems/problem.hpp"
+#include "stepgate/suite/suite.hpp"
+#include "stepgate/sweep/plan.hpp"
 
 namespace stepgate {
 

@@ -1,4 +1,4 @@
-#include "sweep/sweep.hpp"
+#include "stepgate/sweep/sweep.hpp"
 
 #include <atomic>
 #include <mutex>
@@ -7,9 +7,9 @@
 #include <tbb/parallel_for.h>
 #include <tbb/task_arena.h>
 
-#include "run/command_runner.hpp"
-#include "search/case_search.hpp"
-#include "sweep/prepare.hpp"
+#include "stepgate/run/command_runner.hpp"
+#include "stepgate/search/case_search.hpp"
+#include "stepgate/sweep/prepare.hpp"
 
 namespace stepgate {
 
@@ -40,9 +40,10 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
     in.map = prepared.map;
     CaseSearchOutput out;
     if (p.kind == ProblemKind::command) {
-      CommandCase cc{p.command, c.id, c.optimizer, c.scaling, optimizer_fields(r.optimizer)};
+      CommandSession session(CommandCase{p.command, c.id, c.optimizer, c.scaling, optimizer_fields(r.optimizer)},
+                             p.run, jobs);
       const RunBatchFn runner = [&](std::span<const double> rates, BatchSeed seed) {
-        return run_commands(cc, p.run, rates, seed, jobs);
+        return session.run(rates, seed);
       };
       out = search_case_with(runner, nullptr, in, on_batch);
     } else {

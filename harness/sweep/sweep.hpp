@@ -4,9 +4,9 @@
 #pragma once
 #include <functional>
 
-#include "core/results.hpp"
-#include "suite/suite.hpp"
-#include "sweep/plan.hpp"
+#include "stepgate/core/results.hpp"
+#include "stepgate/suite/suite.hpp"
+#include "stepgate/sweep/plan.hpp"
 
 namespace stepgate {
 

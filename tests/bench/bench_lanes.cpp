@@ -6,9 +6,9 @@
 #include <random>
 #include <vector>
 
-#include "problems/linear_models.hpp"
-#include "problems/quadratic.hpp"
-#include "run/batch.hpp"
+#include "stepgate/problems/linear_models.hpp"
+#include "stepgate/problems/quadratic.hpp"
+#include "stepgate/run/batch.hpp"
 
 using namespace stepgate;
 

@@ -4,7 +4,7 @@
 #include <cstdio>
 #include <cstdlib>
 
-#include "optimizers/optimizer.hpp"
+#include "stepgate/optimizers/optimizer.hpp"
 
 // Eigen allocates with std::malloc, not operator new, so malloc itself is counted: glibc lets a
 // program interpose malloc and forward to its __libc_* entry points. Elsewhere nothing is counted.

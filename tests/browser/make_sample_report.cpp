@@ -5,9 +5,9 @@
 #include <iostream>
 #include <string>
 
-#include "gate/baseline.hpp"
-#include "gate/findings.hpp"
-#include "report/reporter.hpp"
+#include "stepgate/gate/baseline.hpp"
+#include "stepgate/gate/findings.hpp"
+#include "stepgate/report/reporter.hpp"
 
 using namespace stepgate;
 

@@ -1,8 +1,8 @@
 // NIST StRD Longley data and certified values, shared by the reference tests.
 #pragma once
-#include "analysis/reference.hpp"
-#include "core/dataset.hpp"
-#include "data/csv.hpp"
+#include "stepgate/analysis/reference.hpp"
+#include "stepgate/core/dataset.hpp"
+#include "stepgate/data/csv.hpp"
 
 namespace stepgate::testdata {
 

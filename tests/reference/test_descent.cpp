@@ -6,11 +6,11 @@
 #include <catch2/catch.hpp>
 #include <fmt/format.h>
 
-#include "data/csv.hpp"
-#include "data/scaling.hpp"
+#include "stepgate/data/csv.hpp"
+#include "stepgate/data/scaling.hpp"
 #include "longley.hpp"
-#include "problems/linear_models.hpp"
-#include "run/batch.hpp"
+#include "stepgate/problems/linear_models.hpp"
+#include "stepgate/run/batch.hpp"
 
 using namespace stepgate;
 

@@ -3,12 +3,12 @@
 #include <cmath>
 #include <fmt/format.h>
 
-#include "analysis/theory.hpp"
-#include "data/scaling.hpp"
-#include "data/sha256.hpp"
+#include "stepgate/analysis/theory.hpp"
+#include "stepgate/data/scaling.hpp"
+#include "stepgate/data/sha256.hpp"
 #include "longley.hpp"
-#include "problems/linear_models.hpp"
-#include "run/batch.hpp"
+#include "stepgate/problems/linear_models.hpp"
+#include "stepgate/run/batch.hpp"
 
 using namespace stepgate;
 

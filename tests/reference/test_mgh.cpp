@@ -5,8 +5,8 @@
 #include <cmath>
 #include <fmt/format.h>
 
-#include "problems/test_functions.hpp"
-#include "run/batch.hpp"
+#include "stepgate/problems/test_functions.hpp"
+#include "stepgate/run/batch.hpp"
 
 using namespace stepgate;
 

@@ -5,12 +5,12 @@
 #include <cmath>
 #include <fmt/format.h>
 
-#include "analysis/reference.hpp"
-#include "analysis/theory.hpp"
-#include "data/csv.hpp"
-#include "data/scaling.hpp"
-#include "problems/linear_models.hpp"
-#include "run/batch.hpp"
+#include "stepgate/analysis/reference.hpp"
+#include "stepgate/analysis/theory.hpp"
+#include "stepgate/data/csv.hpp"
+#include "stepgate/data/scaling.hpp"
+#include "stepgate/problems/linear_models.hpp"
+#include "stepgate/run/batch.hpp"
 
 using namespace stepgate;
 

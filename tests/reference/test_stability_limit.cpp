@@ -15,11 +15,11 @@
 #include <sstream>
 
 #include "../unit/data_test_support.hpp"
-#include "data/csv.hpp"
-#include "data/generate.hpp"
-#include "data/scaling.hpp"
-#include "problems/linear_models.hpp"
-#include "search/case_search.hpp"
+#include "stepgate/data/csv.hpp"
+#include "stepgate/data/generate.hpp"
+#include "stepgate/data/scaling.hpp"
+#include "stepgate/problems/linear_models.hpp"
+#include "stepgate/search/case_search.hpp"
 
 using namespace stepgate;
 

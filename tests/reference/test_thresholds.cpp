@@ -17,11 +17,11 @@
 #include <cmath>
 #include <fmt/format.h>
 
-#include "analysis/theory.hpp"
-#include "problems/quadratic.hpp"
-#include "run/batch.hpp"
-#include "run/step_rule.hpp"
-#include "search/bracket.hpp"
+#include "stepgate/analysis/theory.hpp"
+#include "stepgate/problems/quadratic.hpp"
+#include "stepgate/run/batch.hpp"
+#include "stepgate/run/step_rule.hpp"
+#include "stepgate/search/bracket.hpp"
 
 using namespace stepgate;
 

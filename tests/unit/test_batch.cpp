@@ -4,10 +4,10 @@
 #include <cmath>
 #include <random>
 
-#include "problems/linear_models.hpp"
-#include "problems/quadratic.hpp"
-#include "run/batch.hpp"
-#include "run/minibatch.hpp"
+#include "stepgate/problems/linear_models.hpp"
+#include "stepgate/problems/quadratic.hpp"
+#include "stepgate/run/batch.hpp"
+#include "stepgate/run/minibatch.hpp"
 
 using namespace stepgate;
 

@@ -4,9 +4,9 @@
 #include <cmath>
 #include <fmt/format.h>
 
-#include "problems/quadratic.hpp"
-#include "search/case_search.hpp"
-#include "search/rate_grid.hpp"
+#include "stepgate/problems/quadratic.hpp"
+#include "stepgate/search/case_search.hpp"
+#include "stepgate/search/rate_grid.hpp"
 
 using namespace stepgate;
 

@@ -4,12 +4,12 @@
 #include <random>
 #include <sstream>
 
-#include "core/error.hpp"
-#include "data/column_stats.hpp"
-#include "data/csv.hpp"
-#include "data/file_io.hpp"
-#include "data/idx.hpp"
-#include "data/sha256.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/data/column_stats.hpp"
+#include "stepgate/data/csv.hpp"
+#include "stepgate/data/file_io.hpp"
+#include "stepgate/data/idx.hpp"
+#include "stepgate/data/sha256.hpp"
 #include "data_test_support.hpp"
 
 using namespace stepgate;

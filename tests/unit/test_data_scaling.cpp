@@ -4,11 +4,11 @@
 #include <cstring>
 #include <sstream>
 
-#include "core/error.hpp"
-#include "core/feature_map.hpp"
-#include "data/column_stats.hpp"
-#include "data/generate.hpp"
-#include "data/scaling.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/core/feature_map.hpp"
+#include "stepgate/data/column_stats.hpp"
+#include "stepgate/data/generate.hpp"
+#include "stepgate/data/scaling.hpp"
 #include "data_test_support.hpp"
 
 using namespace stepgate;

@@ -2,8 +2,8 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 
-#include "gate/baseline.hpp"
-#include "gate/findings.hpp"
+#include "stepgate/gate/baseline.hpp"
+#include "stepgate/gate/findings.hpp"
 
 using namespace stepgate;
 
@@ -25,6 +25,12 @@ const Finding* rule_of(const GateReport& g, Rule rule) {
   for (const Finding& f : g.findings)
     if (f.rule == rule) return &f;
   return nullptr;
+}
+
+Baseline baseline_of(const CaseResult& c) {
+  Results r;
+  r.cases.push_back(c);
+  return baseline_from_results(r, "t");
 }
 
 GateReport gate_one(const CaseResult& c, const Baseline* b = nullptr) {
@@ -59,9 +65,7 @@ TEST_CASE("theory rule: an edge above predicted x (1 + precision + slack) fails"
 }
 
 TEST_CASE("edge_moved: plain relative move against precision and seed spreads", "[gate]") {
-  Baseline b;
-  CaseResult base = theory_case(1.0, kMissing, kMissing);
-  b = baseline_from_results(Results{.cases = {base}}, "t");
+  const Baseline b = baseline_of(theory_case(1.0, kMissing, kMissing));
   // Allowed: 0.05 + 0.01 precision = 6%.
   CHECK(rule_of(gate_one(theory_case(1.059, kMissing, kMissing), &b), Rule::edge_moved)->severity == Severity::pass);
   CHECK(rule_of(gate_one(theory_case(1.061, kMissing, kMissing), &b), Rule::edge_moved)->severity == Severity::fail);
@@ -81,7 +85,7 @@ TEST_CASE("edge_moved: ragged zones that overlap do not count as a move", "[gate
   // re-run where the alternation falls differently must not flap.
   CaseResult base = theory_case(0.2533, kMissing, kMissing);
   base.summary.ragged_top = 0.3162;
-  const Baseline b = baseline_from_results(Results{.cases = {base}}, "t");
+  const Baseline b = baseline_of(base);
   CaseResult now = theory_case(0.3162, kMissing, kMissing);  // edge +25%, inside the old zone
   const Finding* f = rule_of(gate_one(now, &b), Rule::edge_moved);
   CHECK(f->severity == Severity::pass);

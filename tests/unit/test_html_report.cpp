@@ -6,12 +6,12 @@
 #include <regex>
 #include <string>
 
-#include "gate/baseline.hpp"
-#include "gate/findings.hpp"
-#include "report/html_case_plots.hpp"
-#include "report/html_escape.hpp"
-#include "report/reporter.hpp"
-#include "report/svg.hpp"
+#include "stepgate/gate/baseline.hpp"
+#include "stepgate/gate/findings.hpp"
+#include "stepgate/report/html_case_plots.hpp"
+#include "stepgate/report/html_escape.hpp"
+#include "stepgate/report/reporter.hpp"
+#include "stepgate/report/svg.hpp"
 
 using namespace stepgate;
 

@@ -8,8 +8,8 @@
 #include <stdexcept>
 #include <vector>
 
-#include "optimizers/optimizer.hpp"
-#include "core/schedule.hpp"
+#include "stepgate/optimizers/optimizer.hpp"
+#include "stepgate/core/schedule.hpp"
 
 using namespace stepgate;
 using Catch::Matchers::Contains;

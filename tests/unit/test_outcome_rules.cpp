@@ -4,7 +4,7 @@
 #include <cmath>
 #include <vector>
 
-#include "analysis/outcome_rules.hpp"
+#include "stepgate/analysis/outcome_rules.hpp"
 
 using namespace stepgate;
 

@@ -11,11 +11,12 @@
 #include <string>
 #include <vector>
 
-#include "problems/linear_models.hpp"
-#include "problems/newton.hpp"
-#include "problems/normal_draws.hpp"
-#include "problems/quadratic.hpp"
-#include "problems/test_functions.hpp"
+#include "stepgate/analysis/problem_checks.hpp"
+#include "stepgate/problems/linear_models.hpp"
+#include "stepgate/problems/newton.hpp"
+#include "stepgate/problems/normal_draws.hpp"
+#include "stepgate/problems/quadratic.hpp"
+#include "stepgate/problems/test_functions.hpp"
 
 using namespace stepgate;
 
@@ -136,43 +137,43 @@ Evaluation eval(const Problem& p, const Mat& W) {
 double cost(const Problem& p, const Vec& w) { return eval(p, w).cost[0]; }
 Vec grad(const Problem& p, const Vec& w) { return eval(p, w).grad.col(0); }
 
+// The derivative and lane checks are the library's (analysis/problem_checks.hpp), which users
+// run on their own problems; here every built-in problem must pass them.
+
 void check_gradient_fd(const Problem& p, const Vec& w) {
-  Vec fd(w.size());
-  for (Index j = 0; j < w.size(); ++j) {
-    const double h = 1e-5 * std::max(1.0, std::abs(w[j]));
-    Vec a = w, b = w;
-    a[j] += h;
-    b[j] -= h;
-    fd[j] = (cost(p, a) - cost(p, b)) / (2.0 * h);
-  }
-  const Vec g = grad(p, w);
-  INFO(p.kind() << ": gradient " << g.transpose() << " vs central differences " << fd.transpose());
-  CHECK((fd - g).norm() <= 1e-6 * std::max(1.0, g.norm()));
+  const ProblemCheck c = check_gradient(p, w);
+  INFO(p.kind() << ": " << to_string(c));
+  CHECK(c.name == "gradient");
+  CHECK(c.tolerance == 1e-6);
+  CHECK(c.note.empty());
+  CHECK(c.pass);
+  CHECK(c.worst_error <= 1e-6);
 }
 
 void check_hvp_fd(const Problem& p, const Vec& w, const Vec& v) {
-  const double h = 1e-5;
-  const Vec fd = (grad(p, w + h * v) - grad(p, w - h * v)) / (2.0 * h);
+  const ProblemCheck c = check_hessian_vector(p, w, v);
+  INFO(p.kind() << ": " << to_string(c));
+  CHECK(c.name == "hessian_vector");
+  CHECK(c.pass);
+  CHECK(c.worst_error <= 1e-6);
+  // The dense Hessian agrees with the product.
   Vec hv;
   p.hessian_vector(w, v, hv);
-  INFO(p.kind() << ": Hv " << hv.transpose() << " vs differences of gradients " << fd.transpose());
-  CHECK((fd - hv).norm() <= 1e-6 * std::max(1.0, hv.norm()));
-  // The dense Hessian agrees with the product.
   CHECK((p.hessian(w) * v - hv).norm() <= 1e-10 * std::max(1.0, hv.norm()));
 }
 
-/// K = 5 lanes in one call equal five single-lane calls.
+/// K = 5 lanes in one call equal five single-lane calls, to 1e-13 relative (cost, gradient, gap).
 void check_batched(const Problem& p, const Mat& W) {
   const Evaluation all = eval(p, W);
   REQUIRE(all.cost.size() == W.cols());
   REQUIRE(all.grad.rows() == p.dim());
   REQUIRE(all.grad.cols() == W.cols());
-  for (Index k = 0; k < W.cols(); ++k) {
-    const Evaluation one = eval(p, W.col(k));
-    CHECK(std::abs(all.cost[k] - one.cost[0]) <= 1e-13 * std::abs(one.cost[0]));
-    CHECK((all.grad.col(k) - one.grad.col(0)).norm() <= 1e-13 * one.grad.norm());
-    if (p.has_exact_gap()) CHECK(std::abs(all.gap[k] - one.gap[0]) <= 1e-13 * std::max(1e-300, std::abs(one.gap[0])));
-  }
+  const ProblemCheck c = check_lanes(p, W, 1e-13);
+  INFO(p.kind() << ": " << to_string(c));
+  CHECK(c.name == "lanes");
+  CHECK(c.worst_point >= 0);
+  CHECK(c.worst_point < W.cols());
+  CHECK(c.pass);
 }
 
 /// At the optimum the gradient vanishes; where the gap is exact it equals J − J*.

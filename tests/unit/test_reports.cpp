@@ -15,11 +15,11 @@
 #include <nlohmann/json.hpp>
 #include <pugixml.hpp>
 
-#include "core/results.hpp"
-#include "gate/baseline.hpp"
-#include "gate/findings.hpp"
-#include "report/record.hpp"
-#include "report/reporter.hpp"
+#include "stepgate/core/results.hpp"
+#include "stepgate/gate/baseline.hpp"
+#include "stepgate/gate/findings.hpp"
+#include "stepgate/report/record.hpp"
+#include "stepgate/report/reporter.hpp"
 
 using namespace stepgate;
 namespace fs = std::filesystem;

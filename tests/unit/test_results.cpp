@@ -17,10 +17,10 @@
 #include <set>
 #include <thread>
 
-#include "core/error.hpp"
-#include "core/json_fields.hpp"
-#include "core/optimizer_spec_json.hpp"
-#include "core/results.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/core/json_fields.hpp"
+#include "stepgate/core/optimizer_spec_json.hpp"
+#include "stepgate/core/results.hpp"
 
 using namespace stepgate;
 using nlohmann::json;

@@ -13,11 +13,11 @@
 
 #include <nlohmann/json.hpp>
 
-#include "core/error.hpp"
-#include "data/generate.hpp"
-#include "data/sha256.hpp"
-#include "problems/test_functions.hpp"
-#include "suite/suite.hpp"
+#include "stepgate/core/error.hpp"
+#include "stepgate/data/generate.hpp"
+#include "stepgate/data/sha256.hpp"
+#include "stepgate/problems/test_functions.hpp"
+#include "stepgate/suite/suite.hpp"
 
 using namespace stepgate;
 namespace fs = std::filesystem;

@@ -1,0 +1,57 @@
+// A whole suite the way `stepgate run` does it, for a program that links the library: load and
+// check the suite, plan (one shard of it), run every case on a task pool, write
+// OUT/results.json, apply the gate (with or without a baseline) and write report.md,
+// report.html and junit.xml beside it. The CLI's `run` is this call plus its printing.
+//
+//   stepgate::register_problem_kind("huber", {"delta"}, true, make_huber);
+//   const stepgate::SuiteRun run = stepgate::run_suite("huber.json", "out/huber");
+//   std::cout << stepgate::summary_table(run.results);
+//   return run.verdict_exit_code();
+#pragma once
+#include <optional>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "stepgate/core/results.hpp"
+#include "stepgate/gate/baseline.hpp"
+#include "stepgate/gate/findings.hpp"
+#include "stepgate/suite/suite.hpp"
+#include "stepgate/sweep/sweep.hpp"
+
+namespace stepgate {
+
+struct RunSuiteOptions {
+  std::string out_dir;                        ///< "" = reports/out/SUITE-NAME (from the working directory)
+  int jobs = 0;                               ///< worker threads; 0 = all cores; results do not depend on it
+  std::string baseline;                       ///< an accepted baseline file; "" = none
+  std::optional<std::pair<int, int>> shard;   ///< (K, N): only shard K of N of the cases
+  ProgressFn progress;                        ///< called after each batch of runs (any thread, serialised)
+};
+
+struct SuiteRun {
+  Suite suite;
+  Results results;
+  std::optional<Baseline> baseline;  ///< read before any run, so a bad path fails at once
+  GateReport gate;                   ///< apply_gate(results, baseline); without one, the baseline-free rules
+  std::string results_path;          ///< OUT/results.json
+  std::vector<std::string> reports;  ///< the report files written
+  int failed_cases = 0;              ///< cases that could not be run (CaseResult::error)
+  int runs = 0;                      ///< runs recorded, all cases
+
+  /// 3 when a case could not be run; otherwise 0 when the verdict passes and 1 when it fails.
+  /// Without a baseline the verdict has only the rules that need none (pinned headroom,
+  /// reference digits, theory). `stepgate run` without --baseline exits 0 whatever the verdict.
+  int verdict_exit_code() const;
+};
+
+/// Runs the suite file at `suite_path`. Throws InputError (exit 2) for a bad suite, baseline,
+/// shard or data (before any run starts), ToolError (exit 3) when an output cannot be written.
+/// A failure inside one case is recorded in that case's `error` and counted in failed_cases.
+/// Problems of registered kinds (sweep/registry.hpp) are recorded under their own kind name.
+SuiteRun run_suite(const std::string& suite_path, const RunSuiteOptions& options = {});
+
+/// The same with an output folder and a number of jobs.
+SuiteRun run_suite(const std::string& suite_path, const std::string& out_dir, int jobs = 0);
+
+}  // namespace stepgate
