@@ -9,6 +9,10 @@
 
 namespace stepgate {
 
+/// confirm_factor of command problems unless the suite sets one (no probe can run beside a
+/// user's program, so the stretch is longer; README, "Gating your own training code").
+inline constexpr double kCommandConfirmFactor = 4.0;
+
 struct CommandSpec {
   /// argv[0] is looked up on PATH; never given to a shell. Placeholders, whole or inside an
   /// argument: {rate} {seed} {budget} {optimizer} {optimizer.FIELD} {scaling} {case} {out}.
