@@ -26,7 +26,8 @@ def errors(document):
     return sorted(validator.iter_errors(document), key=lambda e: list(e.absolute_path))
 
 
-suites = sorted(root.glob("suites/*.json")) + sorted(root.glob("tests/data/suites/*.json"))
+suites = (sorted(root.glob("suites/*.json")) + sorted(root.glob("tests/data/suites/*.json"))
+          + sorted(root.glob("examples/*/suite.json")))
 for path in suites:
     for e in errors(json.loads(path.read_text())):
         failures.append(f"{path}: /{'/'.join(map(str, e.absolute_path))}: {e.message}")
