@@ -84,6 +84,15 @@ WRONG = {
     "units scaling with span": lambda d: d.update(scalings={"u": {"kind": "units", "span": 10}}),
     "units factor 0": lambda d: d.update(scalings={"u": {"kind": "units", "factor": 0}}),
     "bad gate severity": lambda d: d.update(gate={"case_added": "error"}),
+    "command without argv": lambda d: d["problems"].append({"name": "c", "kind": "command", "command": {}}),
+    "command argv as a shell string": lambda d: d["problems"].append(
+        {"name": "c", "kind": "command", "command": {"argv": "python3 train.py --lr {rate}"}}),
+    "command with a dataset": lambda d: d["problems"].append(
+        {"name": "c", "kind": "command", "dataset": "houses", "command": {"argv": ["t"]}}),
+    "command key on a quadratic": lambda d: d["problems"][1].update(command={"argv": ["t"]}),
+    "unknown command key": lambda d: d["problems"].append(
+        {"name": "c", "kind": "command", "command": {"argv": ["t"], "shell": True}}),
+    "produce without argv": lambda d: d["datasets"]["houses"].update(produce={"cwd": "."}),
 }
 for what, change in WRONG.items():
     document = copy.deepcopy(BASE)
