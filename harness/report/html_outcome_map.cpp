@@ -97,6 +97,7 @@ std::string outcome_map_html(const CaseResult& c) {
                      ? fmt::format(", confirmed to iteration {} with a probe (kick x{:.3g})", r.confirmation->until,
                                    r.confirmation->probe_growth)
                      : fmt::format(", confirmed to iteration {} (stretch only)", r.confirmation->until);
+      if (r.log_lines > 0) title += fmt::format(", {} log lines", r.log_lines);
       if (!r.reason.empty()) title += " — " + r.reason;
       out += svg::rect_titled(col_x(j) + 0.5, ty + 0.5, cw - 1, kRowHeight - 1,
                               fmt::format("fill=\"{}\"", outcome_colour(r.outcome)), title);

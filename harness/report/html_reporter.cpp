@@ -160,6 +160,10 @@ std::string case_section(const ReportInput& in, std::size_t index) {
   out += fact("L, μ", html_number(c.theory.L) + ", " + html_number(c.theory.mu) +
                           (c.theory.method.empty() ? "" : " (" + esc(c.theory.method) + ")"));
   out += fact("runs, seeds", fmt::format("{}, {}", s.runs, s.seeds.size()));
+  long log_lines = 0;
+  for (const StoredRun& run : c.runs) log_lines += run.record.log_lines;
+  if (c.problem_kind == "command")
+    out += fact("log lines", fmt::format("{} (output lines of the program that were not protocol lines)", log_lines));
   if (s.reference)
     out += fact("reference", html_number(s.reference->lre_min) + " digits against " + esc(s.reference->source));
   out += "</dl>\n";
