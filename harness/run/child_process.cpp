@@ -75,8 +75,11 @@ ChildProcess::ChildProcess(const ChildOptions& o) {
   argv.push_back(nullptr);
   for (std::string& e : env_strings) envp.push_back(e.data());
   envp.push_back(nullptr);
-  int out[2], err[2], in[2] = {-1, -1};
-  if (::pipe2(out, O_CLOEXEC) != 0 || ::pipe2(err, O_CLOEXEC) != 0 || (o.pipe_stdin && ::pipe2(in, O_CLOEXEC) != 0))
+  int out[2], err[2], in[2] = {-1, -1}, status[2];
+  // `status` tells the parent whether exec worked: it is closed by a successful exec (CLOEXEC)
+  // and carries errno otherwise.
+  if (::pipe2(out, O_CLOEXEC) != 0 || ::pipe2(err, O_CLOEXEC) != 0 || ::pipe2(status, O_CLOEXEC) != 0 ||
+      (o.pipe_stdin && ::pipe2(in, O_CLOEXEC) != 0))
     throw ToolError(std::string("command: cannot create pipes: ") + std::strerror(errno));
   const std::string cwd = o.cwd;
   pid_ = ::fork();
@@ -91,18 +94,30 @@ ChildProcess::ChildProcess(const ChildOptions& o) {
       if (devnull >= 0) ::dup2(devnull, 0);
     }
     std::signal(SIGPIPE, SIG_DFL);
-    if (!cwd.empty() && ::chdir(cwd.c_str()) != 0) {
-      const char msg[] = "stepgate: cannot enter the command's working directory\n";
-      (void)!::write(2, msg, sizeof msg - 1);
-      ::_exit(127);
+    ::close(status[0]);
+    int stage = 0;  // 0: chdir failed, 1: exec failed
+    if (cwd.empty() || ::chdir(cwd.c_str()) == 0) {
+      stage = 1;
+      ::execvpe(argv[0], argv.data(), envp.data());
     }
-    ::execvpe(argv[0], argv.data(), envp.data());
-    const char msg[] = "stepgate: cannot execute the command: ";
-    (void)!::write(2, msg, sizeof msg - 1);
-    const char* why = std::strerror(errno);
-    (void)!::write(2, why, std::strlen(why));
-    (void)!::write(2, "\n", 1);
+    const int report[2] = {stage, errno};
+    (void)!::write(status[1], report, sizeof report);
     ::_exit(127);
+  }
+  ::close(status[1]);
+  int report[2] = {0, 0};
+  ssize_t got;
+  do got = ::read(status[0], report, sizeof report);
+  while (got < 0 && errno == EINTR);
+  ::close(status[0]);
+  if (got == static_cast<ssize_t>(sizeof report)) {  // the program could not be started at all
+    int ignored;
+    ::waitpid(pid_, &ignored, 0);
+    exit_ = ChildExit{false, 127};
+    ::close(out[0]), ::close(out[1]), ::close(err[0]), ::close(err[1]);
+    if (in[0] >= 0) ::close(in[0]), ::close(in[1]);
+    throw ToolError(report[0] == 0 ? "command: cannot enter the working directory " + cwd + ": " + std::strerror(report[1])
+                                   : "command: cannot execute '" + o.argv.front() + "': " + std::strerror(report[1]));
   }
   ::setpgid(pid_, pid_);  // also here, so the group exists before either side goes on
   ::close(out[1]);

@@ -26,9 +26,9 @@ struct ChildExit {
 
 class ChildProcess {
  public:
-  /// Starts the child. Throws ToolError when it cannot be started at all (fork or pipe
-  /// failure); an argv[0] that cannot be executed makes the child exit with status 127 and a
-  /// message on its stderr.
+  /// Starts the child. Throws ToolError when it cannot be started at all: fork or pipe failure,
+  /// a working directory it cannot enter, or an argv[0] that cannot be executed (not found, not
+  /// executable); the message says which, with the system's reason.
   explicit ChildProcess(const ChildOptions& options);
   ~ChildProcess();  ///< kills the group (SIGKILL) and reaps the child if still running
   ChildProcess(const ChildProcess&) = delete;

@@ -13,6 +13,7 @@
 #include <nlohmann/json.hpp>
 
 #include "stepgate/analysis/outcome_rules.hpp"
+#include "stepgate/core/error.hpp"
 #include "stepgate/core/placeholders.hpp"
 #include "stepgate/run/child_process.hpp"
 
@@ -27,9 +28,11 @@ using nlohmann::json;
 // A fresh folder for {out}: under the system's temporary folder, named by process and counter.
 std::string fresh_folder() {
   static std::atomic<long> counter{0};
-  const fs::path p = fs::temp_directory_path() /
+  std::error_code ec;
+  const fs::path p = fs::temp_directory_path(ec) /
                      fmt::format("stepgate-run-{}-{}", static_cast<long>(::getpid()), counter.fetch_add(1));
-  fs::create_directories(p);
+  if (ec || (fs::create_directories(p, ec), ec))
+    throw ToolError(fmt::format("command: cannot create the run folder {}: {}", p.string(), ec.message()));
   return p.string();
 }
 
@@ -80,7 +83,44 @@ struct Server {
 
 }  // namespace
 
+bool ProcessSlots::try_take() {
+  std::lock_guard lock(mutex_);
+  if (free_ == 0) return false;
+  --free_;
+  return true;
+}
+
+void ProcessSlots::take() {
+  std::unique_lock lock(mutex_);
+  freed_.wait(lock, [&] { return free_ > 0; });
+  --free_;
+}
+
+void ProcessSlots::give() {
+  {
+    std::lock_guard lock(mutex_);
+    ++free_;
+  }
+  freed_.notify_one();
+}
+
 struct CommandSession::Impl {
+  ProcessSlots* slots = nullptr;
+  int held = 0;  // slots this session holds (one per live process)
+  // A slot for one more process: waits when this session holds none (so it cannot starve),
+  // otherwise only takes a free one.
+  bool take_slot() {
+    if (!slots) return true;
+    if (held == 0) slots->take();
+    else if (!slots->try_take()) return false;
+    ++held;
+    return true;
+  }
+  void give_slot() {
+    if (!slots) return;
+    --held;
+    slots->give();
+  }
   CommandCase c;
   RunSettings settings;
   int parallel = 1;
@@ -224,16 +264,18 @@ struct CommandSession::Impl {
     std::vector<Active> active;
     std::size_t next = 0;
     while (next < rates.size() || !active.empty()) {
-      while (next < rates.size() && static_cast<int>(active.size()) < parallel) {
+      while (next < rates.size() && static_cast<int>(active.size()) < parallel && take_slot()) {
+        // A program that cannot be started at all is the tool's failure, not a run's: the
+        // ToolError ends the case ("could not be run", exit 3) and the others are stopped.
         Active a{begin(next), nullptr};
         try {
           a.state.out_dir = fresh_folder();
           a.child = spawn(argv_for(rates[next], seed, a.state.out_dir), false);
-          active.push_back(std::move(a));
-        } catch (const std::exception& e) {
-          a.state.fault = std::string("could not start: ") + e.what();
-          close(a.state, records[next], "", "");
+        } catch (...) {
+          give_slot();
+          throw;
         }
+        active.push_back(std::move(a));
         ++next;
       }
       const auto wait = std::chrono::milliseconds(active.size() > 1 ? 5 : 50);
@@ -255,6 +297,8 @@ struct CommandSession::Impl {
           a.child.reset();
         }
       }
+      for (const Active& a : active)
+        if (!a.child) give_slot();
       std::erase_if(active, [](const Active& a) { return !a.child; });
     }
   }
@@ -292,26 +336,33 @@ struct CommandSession::Impl {
         sv.run.reset();
       }
       sv.child.reset();
+      give_slot();
     };
     while (next < rates.size() || busy()) {
       for (int w = 0; w < workers; ++w) {
         Server& sv = servers[static_cast<std::size_t>(w)];
         if (sv.run || next >= rates.size()) continue;
+        if (!sv.child && !take_slot()) continue;  // no process to spare now: later
         RunState s = begin(next);
-        try {
-          if (!sv.child) sv.child = spawn(argv_for(rates[next], seed, ""), true);
+        {  // a program that cannot be started at all ends the case (ToolError), as above
+          if (!sv.child) {
+            try {
+              sv.child = spawn(argv_for(rates[next], seed, ""), true);
+            } catch (...) {
+              give_slot();
+              throw;
+            }
+          }
           s.bytes_at_start = sv.child->bytes_read();
           if (!sv.child->write(request(s, rates[next], seed).dump() + "\n")) {
             const ChildExit ex = sv.child->stop(c.spec.grace);
             s.fault = exit_fault(ex, "the serving process") + " before taking the request";
             close(s, records[next], "", sv.child->stderr_tail());
             sv.child.reset();
+      give_slot();
           } else {
             sv.run = std::move(s);
           }
-        } catch (const std::exception& e) {
-          s.fault = std::string("could not start: ") + e.what();
-          close(s, records[next], "", "");
         }
         ++next;
       }
@@ -375,6 +426,7 @@ struct CommandSession::Impl {
           sv.run.reset();
           sv.child->stop(c.spec.grace);
           sv.child.reset();
+      give_slot();
         }
       }
     }
@@ -389,12 +441,15 @@ struct CommandSession::Impl {
       while (Clock::now() < until && sv.child->read_lines(ignored, std::chrono::milliseconds(20))) ignored.clear();
       sv.child->stop(0.2);
       sv.child.reset();
+      give_slot();
     }
     servers.clear();
   }
 };
 
-CommandSession::CommandSession(CommandCase c, RunSettings settings, int jobs) : impl_(std::make_unique<Impl>()) {
+CommandSession::CommandSession(CommandCase c, RunSettings settings, int jobs, ProcessSlots* slots)
+    : impl_(std::make_unique<Impl>()) {
+  impl_->slots = slots;
   impl_->c = std::move(c);
   impl_->settings = std::move(settings);
   impl_->parallel = std::max(1, impl_->c.spec.parallel > 0 ? impl_->c.spec.parallel : jobs);

@@ -4,7 +4,10 @@
 // README, "Gating your own training code"). Faults become `failed` runs with a reason that
 // carries the last lines of stderr; the tool never hangs on a child and reaps every child.
 #pragma once
+#include <algorithm>
+#include <condition_variable>
 #include <cstdint>
+#include <mutex>
 #include <map>
 #include <memory>
 #include <span>
@@ -25,13 +28,30 @@ struct CommandCase {
   std::map<std::string, std::string> optimizer_fields;  ///< {optimizer.FIELD}: the entry's fields as text
 };
 
+/// How many user processes may run at once across all cases of a sweep (cases run in
+/// parallel, each with its own session). Thread-safe.
+class ProcessSlots {
+ public:
+  explicit ProcessSlots(int capacity) : free_(std::max(1, capacity)) {}
+  bool try_take();
+  void take();  ///< waits for a free slot
+  void give();
+
+ private:
+  std::mutex mutex_;
+  std::condition_variable freed_;
+  int free_;
+};
+
 /// The runs of one case. In serving mode it keeps up to `parallel` serving processes for its
 /// whole life (so a trainer's heavy imports are paid once per worker, not once per run);
 /// they get end of input and are reaped when the session ends. Not thread-safe.
 class CommandSession {
  public:
-  /// `jobs`: processes at once when spec.parallel is 0.
-  CommandSession(CommandCase c, RunSettings settings, int jobs);
+  /// `jobs`: processes at once when spec.parallel is 0. `slots` (may be null): the sweep's
+  /// limit across cases; a session that holds no process waits for a slot, one that holds some
+  /// goes on with those.
+  CommandSession(CommandCase c, RunSettings settings, int jobs, ProcessSlots* slots = nullptr);
   ~CommandSession();
   CommandSession(const CommandSession&) = delete;
   CommandSession& operator=(const CommandSession&) = delete;

@@ -16,7 +16,7 @@ namespace stepgate {
 namespace {
 
 CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProblem& prepared,
-                    const BatchDone& on_batch, int jobs) {
+                    const BatchDone& on_batch, int jobs, ProcessSlots& slots) {
   const ProblemSpec& p = suite.problems[c.problem];
   CaseResult r;
   r.id = c.id;
@@ -41,7 +41,7 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
     CaseSearchOutput out;
     if (p.kind == ProblemKind::command) {
       CommandSession session(CommandCase{p.command, c.id, c.optimizer, c.scaling, optimizer_fields(r.optimizer)},
-                             p.run, jobs);
+                             p.run, jobs, &slots);
       const RunBatchFn runner = [&](std::span<const double> rates, BatchSeed seed) {
         return session.run(rates, seed);
       };
@@ -89,12 +89,18 @@ Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& opti
     progress(state);
   };
 
+  // User processes at once across all cases: --jobs, or a command's own `parallel` if larger.
+  int process_limit = jobs;
+  for (const ProblemSpec& p : suite.problems)
+    if (p.kind == ProblemKind::command) process_limit = std::max(process_limit, p.command.parallel);
+  ProcessSlots slots(process_limit);
+
   tbb::task_arena arena(jobs);
   arena.execute([&] {
     tbb::parallel_for(std::size_t{0}, plan.cases.size(), [&](std::size_t i) {
       const PlannedCase& c = plan.cases[i];
       cases[i] = run_case(suite, c, prepared.at({c.problem, c.scaling}),
-                          [&](int runs) { report(runs, 0); }, jobs);
+                          [&](int runs) { report(runs, 0); }, jobs, slots);
       report(0, 1);
     }, tbb::simple_partitioner());
   });

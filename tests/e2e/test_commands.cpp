@@ -226,4 +226,13 @@ TEST_CASE("commands: bad command entries are exit 2 with the JSON pointer", "[co
   expect_bad(p, "#/problems/0/command", "shell");
   p = command_problem("t", "ok.py", {{"dim", 3}});
   expect_bad(p, "#/problems/0", "dim");
+  // A program that cannot be started at all is the tool's failure: exit 3, naming it.
+  p = command_problem("t", "ok.py");
+  p["command"]["argv"] = {"/no/such/program", "--lr", "{rate}"};
+  write_json(dir / "missing.json", suite_of("missing", json::array({p}), defaults));
+  const CliResult r = e2e::stepgate("run missing.json --out m --quiet", dir.path());
+  INFO(r.out << r.err);
+  CHECK(r.exit_code == 3);
+  const json m = read_json(dir / "m" / "results.json");
+  CHECK(m["cases"][0]["error"].get<std::string>().find("cannot execute '/no/such/program'") != std::string::npos);
 }

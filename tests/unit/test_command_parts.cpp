@@ -8,6 +8,7 @@
 #include <random>
 #include <signal.h>
 
+#include "stepgate/core/error.hpp"
 #include "stepgate/core/placeholders.hpp"
 #include "stepgate/run/child_process.hpp"
 
@@ -88,12 +89,13 @@ TEST_CASE("child process: exit status, stderr tail, a program that does not exis
   REQUIRE(lines.size() == 1);
   CHECK(lines[0] == "one");
   CHECK(child.stderr_tail() == "it broke");
+  // A program that cannot be started at all is a ToolError naming it (exit 3 in the CLI).
   ChildOptions missing;
   missing.argv = {"/no/such/trainer"};
-  ChildProcess none(missing);
-  std::vector<std::string> ignored;
-  while (none.read_lines(ignored, std::chrono::milliseconds(100))) {
-  }
-  CHECK(none.wait().code == 127);
-  CHECK(none.stderr_tail().find("cannot execute") != std::string::npos);
+  CHECK_THROWS_WITH(ChildProcess(missing), Catch::Contains("cannot execute '/no/such/trainer'") &&
+                                               Catch::Contains("No such file"));
+  ChildOptions elsewhere;
+  elsewhere.argv = {"/bin/true"};
+  elsewhere.cwd = "/no/such/folder";
+  CHECK_THROWS_WITH(ChildProcess(elsewhere), Catch::Contains("cannot enter the working directory"));
 }
