@@ -139,8 +139,12 @@ std::string outcome_map_html(const CaseResult& c) {
   for (Outcome o : {Outcome::converged, Outcome::slow, Outcome::oscillating, Outcome::diverged, Outcome::failed})
     out += fmt::format("<span><i class=\"key\" style=\"background:{}\"></i>{} {}</span>", outcome_colour(o),
                        outcome_letter(o), to_string(o));
-  out += "<span>C: the criterion held through a confirmation stretch, with a kicked probe beside it "
-         "that did not grow (hover a cell for how)</span>";
+  bool probed = false;
+  for (const StoredRun& s : c.runs)
+    if (s.record.confirmation && s.record.confirmation->method == "stretch+probe") probed = true;
+  out += probed ? "<span>C: the criterion held through a confirmation stretch, with a kicked probe beside it "
+                  "that did not grow (hover a cell for how)</span>"
+                : "<span>C: the criterion held through a confirmation stretch (no probe: hover a cell for how)</span>";
   out += "<span><i class=\"key key-none\"></i>not run</span><span><i class=\"key key-safe\"></i>safe range</span>"
          "<span><i class=\"key key-pinmark\"></i>pinned rate</span>";
   out += "</figcaption>\n</figure>\n";
