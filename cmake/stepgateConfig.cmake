@@ -1,3 +1,6 @@
+# find_package(stepgate) for projects that link the library: defines stepgate::stepgate.
+# The public dependencies (Eigen, fmt, nlohmann-json) are in the headers; the private ones
+# (OpenSSL, zlib, oneTBB, pugixml) are needed to link the static library.
 include(CMakeFindDependencyMacro)
 find_dependency(Eigen3 3.4 NO_MODULE)
 find_dependency(fmt)

@@ -25,7 +25,8 @@ namespace stepgate {
 /// Builds one problem of a registered kind. `keys` is an object holding exactly the kind's keys
 /// that the suite entry sets (absent keys are absent: the factory chooses their defaults);
 /// `data` is the entry's data set after its scaling, or nullptr for a kind without data. Called
-/// once per (problem, scaling) before any run, possibly from the thread that runs the sweep.
+/// once per (problem, scaling) by prepare_problems, on the thread that calls run_sweep (or
+/// run_suite), before any run; the Problem it returns is then shared by the sweep's threads.
 /// An exception becomes InputError at the entry's JSON pointer (exit 2); throw
 /// InputError(KEY, message) to point at one of the kind's keys ("suite.json#/problems/0/delta").
 using ProblemFactory =

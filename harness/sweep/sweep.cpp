@@ -22,7 +22,7 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
   r.id = c.id;
   r.problem = p.name;
   r.scaling = c.scaling;
-  r.problem_kind = std::string(to_string(p.kind));
+  r.problem_kind = problem_kind_name(p);  // a registered kind by its own name
   r.optimizer = suite.optimizers.at(c.optimizer);
   r.dataset = prepared.dataset;
   r.data_sha256 = prepared.data_sha256;

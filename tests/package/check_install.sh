@@ -81,4 +81,14 @@ bad misspelled-delta "/problems/0/delat: " "did you mean 'delta'?" 'huber["delat
 bad huber-without-data "/problems/0: " "missing required key 'dataset'" 'del huber["dataset"]'
 bad kind-typo "/problems/0/kind: " "did you mean 'huber'?" 'huber["kind"] = "hubber"'
 bad key-of-another-kind "/problems/0/l2: " "does not apply to a huber problem" 'huber["l2"] = 0.1'
+# A suite file that is not there, and one that is not JSON: exit 2 naming the file.
+set +e
+"$example" "$tmp/no-such-suite.json" "$tmp/out-none" 1 > /dev/null 2> "$tmp/none.err"; code=$?
+printf '{"format": "stepgate.suite/1",\n "name": }\n' > "$tmp/syntax.json"
+"$example" "$tmp/syntax.json" "$tmp/out-syntax" 1 > /dev/null 2> "$tmp/syntax.err"; code2=$?
+set -e
+[ $code -eq 2 ] && grep -qF "$tmp/no-such-suite.json" "$tmp/none.err" || { cat "$tmp/none.err"; fail "missing suite: exit $code"; }
+[ $code2 -eq 2 ] && grep -qF "$tmp/syntax.json:2:" "$tmp/syntax.err" || { cat "$tmp/syntax.err"; fail "bad JSON: exit $code2"; }
+echo "bad input missing suite: $(cat "$tmp/none.err")"
+echo "bad input JSON syntax: $(cat "$tmp/syntax.err")"
 echo "check_install: pass"
