@@ -192,6 +192,7 @@ struct CommandSession::Impl {
         r.final_params[static_cast<Index>(i)] = p[i].is_number() ? p[i].get<double>() : kMissing;
       return;
     }
+    if (s.monitor->decided()) return;  // decided: only a params line still matters
     if (!j.contains("iter") || !j["iter"].is_number_integer() || !j.contains("cost") ||
         !(j["cost"].is_number() || j["cost"].is_null())) {
       s.fault = fmt::format("protocol error at output line {}: expected {{\"iter\": integer, \"cost\": number}}, found {:.120}",
@@ -213,14 +214,22 @@ struct CommandSession::Impl {
     s.monitor->observe(point);
   }
 
+  // A converged run of a problem with reference values goes on to its end, so that the
+  // program writes its final {"params": [...]} line; every other decided run is stopped.
+  bool keeps_running(const RunState& s) const {
+    return c.wants_params && s.monitor->decided() && s.monitor->result().outcome == Outcome::converged;
+  }
+
   // Checks the run's limits; true when it must end now (decided or faulty).
   bool must_end(RunState& s, long bytes_now) const {
     if (s.fault.empty() && bytes_now - s.bytes_at_start > c.spec.max_output)
       s.fault = fmt::format("output over the size cap of {} bytes (the process group was killed)", c.spec.max_output);
     const double age = std::chrono::duration<double>(Clock::now() - s.started).count();
-    if (s.fault.empty() && !s.monitor->decided() && age > c.spec.timeout)
-      s.fault = fmt::format("timeout: no decision after {:g} s (the process group was killed)", c.spec.timeout);
-    return !s.fault.empty() || s.monitor->decided();
+    if (s.fault.empty() && (!s.monitor->decided() || keeps_running(s)) && age > c.spec.timeout)
+      s.fault = s.monitor->decided()
+                    ? fmt::format("timeout: converged, but no end after {:g} s (the process group was killed)", c.spec.timeout)
+                    : fmt::format("timeout: no decision after {:g} s (the process group was killed)", c.spec.timeout);
+    return !s.fault.empty() || (s.monitor->decided() && !keeps_running(s));
   }
 
   // Fills the record from the run's state once it is over.
@@ -284,7 +293,7 @@ struct CommandSession::Impl {
         std::vector<std::string> lines;
         const bool open = a.child->read_lines(lines, wait);
         for (const std::string& line : lines) {
-          if (!a.state.fault.empty() || a.state.monitor->decided()) break;
+          if (!a.state.fault.empty() || (a.state.monitor->decided() && !keeps_running(a.state))) break;
           take(a.state, r, line, nullptr);
         }
         if (must_end(a.state, a.child->bytes_read())) {
@@ -392,7 +401,7 @@ struct CommandSession::Impl {
             ended = true;
             break;
           }
-          if (s.stop_sent || !s.fault.empty() || s.monitor->decided()) continue;
+          if (s.stop_sent || !s.fault.empty() || (s.monitor->decided() && !keeps_running(s))) continue;
           j.erase("run");
           take(s, r, line, &j);
         }

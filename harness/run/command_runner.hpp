@@ -26,6 +26,7 @@ struct CommandCase {
   CommandSpec spec;
   std::string case_id, optimizer, scaling;
   std::map<std::string, std::string> optimizer_fields;  ///< {optimizer.FIELD}: the entry's fields as text
+  bool wants_params = false;  ///< reference values exist: converged runs go on to their params line
 };
 
 /// How many user processes may run at once across all cases of a sweep (cases run in

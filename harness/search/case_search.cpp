@@ -5,6 +5,8 @@
 #include <map>
 #include <set>
 
+#include <fmt/format.h>
+
 #include "stepgate/analysis/curvature.hpp"
 #include "stepgate/analysis/reference.hpp"
 #include "stepgate/core/seed.hpp"
@@ -226,6 +228,7 @@ CaseSearchOutput Searcher::search() {
     compare_reference(out);
   } else {
     out.theory.method = "not available (command problem)";
+    compare_reference(out);
   }
   out.runs = std::move(order_);
   return out;
@@ -309,6 +312,22 @@ void Searcher::compare_reference(CaseSearchOutput& out) const {
   ref.names = in_.reference->names;
   // The solution of the best rate's run of the first seed; without a best rate, there is none.
   const RunRecord* r = std::isnan(out.summary.best_rate) ? nullptr : at(seeds_.front(), out.summary.best_rate);
+  if (!problem_) {  // a command: its params line, in the reference file's order, no scaling
+    const Vec& x = r ? r->final_params : Vec();
+    const Vec& c = in_.reference->values;
+    if (r && x.size() != c.size())
+      ref.source += fmt::format(" (the program's last params line has {} values; the reference has {})", x.size(), c.size());
+    if (r && x.size() == c.size() && c.size() > 0) {
+      ref.lre_min = kInf;
+      for (Index i = 0; i < c.size(); ++i) {
+        ref.lre.push_back(lre(x[i], c[i], in_.reference->digits));
+        ref.lre_min = std::min(ref.lre_min, ref.lre.back());
+      }
+      ref.estimate.assign(x.data(), x.data() + x.size());
+    }
+    out.summary.reference = std::move(ref);
+    return;
+  }
   if (r && r->final_params.size() == problem_->dim()) {
     const ReferenceComparison cmp = compare_with_reference(*problem_, in_.map, r->final_params, *in_.reference);
     ref.lre = cmp.lre;

@@ -29,7 +29,7 @@ const std::vector<KindKey>& kind_keys() {
       {"init_scale", linear},
       {"gram_ratio", {K::least_squares}},
       {"classes", {K::softmax}},
-      {"reference", {K::least_squares, K::logistic}},
+      {"reference", {K::least_squares, K::logistic, K::command}},
       {"dim", {K::quadratic}},
       {"L", {K::quadratic}},
       {"condition", {K::quadratic}},
@@ -324,6 +324,10 @@ ProblemSpec read_problem(const Node& node, const std::optional<Node>& defaults,
     if (!sets(defaults) && !sets(node)) p.run.outcome.confirm_factor = kCommandConfirmFactor;
   }
   if (has_data(p.kind)) read_problem_reference(o, suite, p);
+  // A command's reference values are compared with its last {"params": [...]} line, in the
+  // order the file gives them (stepgate cannot know the program's parameter names).
+  if (p.kind == ProblemKind::command)
+    if (auto node = o.find("reference")) p.reference = read_reference(*node);
   return p;
 }
 

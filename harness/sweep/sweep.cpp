@@ -36,11 +36,12 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
     in.rates = p.rates;
     in.seeds = p.seeds;
     in.pinned = c.pinned;
-    in.reference = prepared.reference;
+    in.reference = p.kind == ProblemKind::command ? p.reference : prepared.reference;
     in.map = prepared.map;
     CaseSearchOutput out;
     if (p.kind == ProblemKind::command) {
-      CommandSession session(CommandCase{p.command, c.id, c.optimizer, c.scaling, optimizer_fields(r.optimizer)},
+      CommandSession session(CommandCase{p.command, c.id, c.optimizer, c.scaling, optimizer_fields(r.optimizer),
+                                         p.reference.has_value()},
                              p.run, jobs, &slots);
       const RunBatchFn runner = [&](std::span<const double> rates, BatchSeed seed) {
         return session.run(rates, seed);

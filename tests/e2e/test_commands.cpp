@@ -115,6 +115,8 @@ TEST_CASE("commands: serving mode gives the same runs as per-run mode, and --job
   const json defaults = {{"seeds", 2}, {"budget", 300},
                          {"rates", {{"grid", {{"from", 0.001}, {"to", 10}, {"per_decade", 10}}}, {"precision", 0.01}}}};
   json per_run = command_problem("toy", "ok.py", {{"optimum", 0.0}, {"pinned", 0.5}});
+  per_run["reference"] = {{"source", "exact minimiser of w^2/2"}, {"digits", 12},
+                          {"coefficients", {{"w", 0.0}}}};
   json serving = per_run;
   serving["command"]["argv"] = {"/usr/bin/python3", trainer("ok.py"), "--serve"};
   serving["command"]["serve"] = true;
@@ -149,6 +151,11 @@ TEST_CASE("commands: serving mode gives the same runs as per-run mode, and --job
     }
     CHECK((*other)["summary"]["edge"] == ra["summary"]["edge"]);
   }
+  // The params line of the best run against the exact minimiser w* = 0 (LRE of an absolute
+  // error, capped at the reference's digits).
+  REQUIRE(ra["summary"]["reference"].is_object());
+  CHECK(ra["summary"]["reference"]["lre_min"].get<double>() >= 6.0);
+  CHECK(rs["summary"]["reference"] == ra["summary"]["reference"]);
   // gd on J = w²/2 is stable below 2; with a budget of 300 the edge sits just below it.
   const double edge = ra["summary"]["edge"].get<double>();
   CHECK(edge < 2.0);
