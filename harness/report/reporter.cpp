@@ -65,10 +65,12 @@ void add_once(std::vector<std::string>& list, std::set<std::string>& seen, std::
 }  // namespace
 
 std::string scope_warning(const Results& results) {
-  std::vector<std::string> data, no_data, scalings, optimizers;
-  std::set<std::string> seen_data, seen_no_data, seen_scalings, seen_optimizers;
+  std::vector<std::string> data, no_data, programs, scalings, optimizers;
+  std::set<std::string> seen_data, seen_no_data, seen_programs, seen_scalings, seen_optimizers;
   for (const CaseResult& c : results.cases) {
-    if (!c.dataset.empty()) {
+    if (c.problem_kind == "command") {
+      add_once(programs, seen_programs, one_line(c.problem.empty() ? c.id : c.problem));
+    } else if (!c.dataset.empty()) {
       const std::string hash =
           c.data_sha256.empty() ? "generated, no file hash" : "sha256 " + c.data_sha256.substr(0, 12);
       add_once(data, seen_data, fmt::format("{} ({})", one_line(c.dataset), hash));
@@ -82,6 +84,11 @@ std::string scope_warning(const Results& results) {
   if (!data.empty()) where = "the data sets " + joined(data);
   if (!no_data.empty())
     where += (where.empty() ? "" : " and ") + std::string("the problems without data ") + joined(no_data);
+  if (!programs.empty())
+    where += (where.empty() ? "" : " and ") +
+             std::string("the training programs ") + joined(programs) +
+             " as they ran here, on whatever data they read (stepgate hashes a program's data only when "
+             "a data set's produce command writes it), and with their code as it was";
   if (where.empty()) where = "no data set (the suite has no cases)";
   return fmt::format(
       "These rates are verified only on {}, with the scalings {} and the optimizers {}; they are not "

@@ -189,6 +189,19 @@ TEST_CASE("reports: the reporters and their files", "[reports]") {
   CHECK(all[2]->file_name() == "junit.xml");
 }
 
+TEST_CASE("reports: the scope warning says a training program's data is its own", "[reports]") {
+  Results r;
+  CaseResult c;
+  c.id = "churn-net/none/hb-0.9";
+  c.problem = "churn-net";
+  c.problem_kind = "command";
+  c.scaling = "none";
+  r.cases.push_back(c);
+  const std::string w = scope_warning(r);
+  CHECK(w.find("the training programs churn-net as they ran here") != std::string::npos);
+  CHECK(w.find("problems without data") == std::string::npos);  // it has data, just not stepgate's
+}
+
 TEST_CASE("reports: the scope warning names the data with their hashes, the scalings and optimizers", "[reports]") {
   const Results r = sample_results();
   const std::string w = scope_warning(r);
