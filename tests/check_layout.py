@@ -1,5 +1,5 @@
 #!/usr/bin/env python3
-"""Checks that every stage includes only the stages DESIGN.md allows (arrows point one way)."""
+"""Checks that every stage includes only the stages docs/design.md allows (arrows point one way)."""
 import pathlib, re, sys
 
 ALLOWED = {

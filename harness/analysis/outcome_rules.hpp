@@ -1,4 +1,4 @@
-// Classification of a run into an outcome, exactly as DESIGN.md defines it. One implementation
+// Classification of a run into an outcome, exactly as docs/design.md defines it. One implementation
 // serves both the live runner (observe() per evaluation, with early exit) and finished traces
 // (classify()), so the two can never disagree.
 #pragma once

@@ -1,4 +1,4 @@
-// An external training program as a problem (DESIGN.md, "External commands"): what to start and
+// An external training program as a problem (docs/design.md, "External commands"): what to start and
 // how long to let it run. A plain value a suite describes and run/ executes.
 #pragma once
 #include <map>

@@ -1,4 +1,4 @@
-// Errors that reach the user. Their type decides the exit code (DESIGN.md, Gate):
+// Errors that reach the user. Their type decides the exit code (docs/design.md, Gate):
 // InputError -> 2 (bad input or usage), ToolError -> 3 (run-time failure of the tool).
 #pragma once
 #include <stdexcept>

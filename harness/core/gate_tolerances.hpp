@@ -1,4 +1,4 @@
-// Tolerances of the gate rules (DESIGN.md, "Gate"), set in a suite's `gate` section and per
+// Tolerances of the gate rules (docs/design.md, "Gate"), set in a suite's `gate` section and per
 // problem. Each default is chosen so that a re-run with the same seeds passes and a change a
 // practitioner would care about fails; gate/ documents the rules that use them.
 #pragma once

@@ -1,4 +1,4 @@
-// The five outcomes of a run (definitions: DESIGN.md, "Runs and outcomes").
+// The five outcomes of a run (definitions: docs/design.md, "Runs and outcomes").
 #pragma once
 #include <optional>
 #include <string_view>

@@ -1,4 +1,4 @@
-// Settings of run classification (definitions: DESIGN.md, "Runs and outcomes"); the rules that
+// Settings of run classification (definitions: docs/design.md, "Runs and outcomes"); the rules that
 // use them are analysis/outcome_rules.
 #pragma once
 #include <optional>

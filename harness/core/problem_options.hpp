@@ -7,7 +7,7 @@
 namespace stepgate {
 
 enum class Reduction {
-  mean,  ///< loss averaged over samples (default; what the formulas in DESIGN.md say)
+  mean,  ///< loss averaged over samples (default; what the formulas in docs/design.md say)
   sum,   ///< loss summed over samples: multiplies the gradient, and so the safe rates, by n
 };
 

@@ -1,4 +1,4 @@
-// Which rates a case is run at (DESIGN.md, "Search"). Rates are base rates of the schedule.
+// Which rates a case is run at (docs/design.md, "Search"). Rates are base rates of the schedule.
 #pragma once
 #include <optional>
 #include <vector>

@@ -1,5 +1,5 @@
 // The Results model: everything a sweep of one suite produced, and its JSON form
-// (results.json, format "stepgate.results/1"; DESIGN.md, "results.json"). gate/ and report/
+// (results.json, format "stepgate.results/1"; docs/design.md, "results.json"). gate/ and report/
 // read only this. A value that does not exist is NaN / nullopt here and null in JSON.
 #pragma once
 #include <cstdint>
@@ -28,7 +28,7 @@ struct StoredRun {
   RunRole role = RunRole::grid;
 };
 
-/// Theory beside measurement (DESIGN.md, "Theory beside measurement").
+/// Theory beside measurement (docs/design.md, "Theory beside measurement").
 struct CaseTheory {
   double L = kMissing;                 ///< λ_max used for the prediction
   double mu = kMissing;                ///< λ_min at the same point
@@ -59,7 +59,7 @@ struct ReferenceSummary {
   std::vector<double> estimate;    ///< solution in original units (from the best run of the first seed)
 };
 
-/// The located safe range of a case (DESIGN.md words: floor, edge, blow-up, best, pinned, headroom).
+/// The located safe range of a case (docs/design.md words: floor, edge, blow-up, best, pinned, headroom).
 struct CaseSummary {
   double floor = kMissing;
   double edge = kMissing;
@@ -156,7 +156,7 @@ struct TraceThinning {
 /// log-spaced points. A 1e5-iteration trace with the defaults keeps 100 points.
 std::vector<std::size_t> thinned_indices(const std::vector<TracePoint>& trace, const TraceThinning& t = {});
 
-/// The JSON form (DESIGN.md, "results.json"). NaN, nullopt and also ±inf are written as null
+/// The JSON form (docs/design.md, "results.json"). NaN, nullopt and also ±inf are written as null
 /// (JSON has no infinity; ±inf reads back as NaN). Traces are thinned to [iter, cost] pairs;
 /// "final_cost" and "gap" are those of the last trace point; "iterations" is null unless
 /// converged. Not stored: TracePoint.gap (but for the last point) and grad_norm, final_params.

@@ -1,4 +1,4 @@
-// The gate rules (DESIGN.md, "Gate") applied to results and a baseline: one finding per case
+// The gate rules (docs/design.md, "Gate") applied to results and a baseline: one finding per case
 // and rule, and the verdict.
 #pragma once
 #include <string>

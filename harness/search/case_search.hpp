@@ -1,4 +1,4 @@
-// The search of one case (DESIGN.md, "Search"): for every seed a log grid plus the fixed rates,
+// The search of one case (docs/design.md, "Search"): for every seed a log grid plus the fixed rates,
 // then the edge, floor and blow-up bracketed and narrowed, then the best rate refined; then the
 // case's safe range across seeds, theory beside it, and the solution against reference values.
 #pragma once

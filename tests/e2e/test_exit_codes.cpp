@@ -1,4 +1,4 @@
-// Exit codes of bad input and usage (DESIGN.md: 2 bad input or usage, with a message that
+// Exit codes of bad input and usage (docs/design.md: 2 bad input or usage, with a message that
 // names the file, line or JSON pointer), and of --version.
 #include "e2e_fixtures.hpp"
 

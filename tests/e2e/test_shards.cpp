@@ -1,4 +1,4 @@
-// Shards: --shard 1/2 and 2/2 merged equal the unsharded run (DESIGN.md: results are bitwise
+// Shards: --shard 1/2 and 2/2 merged equal the unsharded run (docs/design.md: results are bitwise
 // identical whatever --jobs and --shard are); a merge with a shard missing is bad input.
 #include <set>
 

@@ -1,5 +1,5 @@
 // Outcome classification on hand-built traces: one test per outcome and per criterion, with the
-// definitions of DESIGN.md ("Runs and outcomes") as the specification.
+// definitions of docs/design.md ("Runs and outcomes") as the specification.
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <vector>

@@ -1,4 +1,4 @@
-// The Results model and results.json: round trip, the contract's field names (DESIGN.md,
+// The Results model and results.json: round trip, the contract's field names (docs/design.md,
 // "results.json"), null for values that do not exist, trace thinning, strict reading with JSON
 // pointers, atomic writing, and the tool/host facts.
 #include <catch2/catch.hpp>
@@ -184,9 +184,9 @@ TEST_CASE("results: to_json -> dump -> parse -> results_from_json -> to_json is 
   CHECK(back.shard == "1/2");
 }
 
-TEST_CASE("results: every field of the DESIGN.md contract is present by name", "[results]") {
+TEST_CASE("results: every field of the docs/design.md contract is present by name", "[results]") {
   const json j = to_json(sample_results(50));
-  // DESIGN.md, "results.json" (fields that other tools read), plus the fields of the brief.
+  // docs/design.md, "results.json" (fields that other tools read), plus the fields of the brief.
   const std::vector<std::string> pointers = {
       "/format", "/suite/name", "/suite/path", "/suite/sha256", "/tool/version", "/tool/compiler",
       "/tool/build", "/host/os", "/host/machine", "/host/hostname", "/host/cores", "/host/jobs",
