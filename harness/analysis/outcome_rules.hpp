@@ -41,6 +41,8 @@ class OutcomeMonitor {
   /// confirmed, or the probe grew) and the run should stop.
   bool observe(const TracePoint& point);
   bool decided() const { return decided_.has_value(); }
+  /// True once decided as converged (confirmed).
+  bool converged() const { return decided_ && decided_->outcome == Outcome::converged; }
   /// True while a confirmation stretch is under way (the criterion held hold+1 evaluations).
   bool confirming() const { return confirming_; }
   /// The probe's growth so far: ‖kick now‖ / ‖kick at the start‖ (NaN or not called: no

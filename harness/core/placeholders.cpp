@@ -38,4 +38,19 @@ std::string expand_placeholders(std::string_view arg,
 
 std::string exact_number(double v) { return fmt::format("{}", v); }
 
+std::optional<std::string> placeholder_value(std::string_view name, const PlaceholderValues& v) {
+  if (name == "rate") return v.rate;
+  if (name == "seed") return v.seed;
+  if (name == "budget") return v.budget;
+  if (name == "optimizer") return v.optimizer;
+  if (name == "scaling") return v.scaling;
+  if (name == "case") return v.case_id;
+  if (name == "out") return v.out;
+  if (name.starts_with("optimizer.") && v.optimizer_fields) {
+    const auto it = v.optimizer_fields->find(std::string(name.substr(10)));
+    if (it != v.optimizer_fields->end()) return it->second;
+  }
+  return std::nullopt;
+}
+
 }  // namespace stepgate

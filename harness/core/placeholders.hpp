@@ -2,6 +2,7 @@
 // suite validation (which names exist) and by run/ (their values).
 #pragma once
 #include <functional>
+#include <map>
 #include <optional>
 #include <string>
 #include <string_view>
@@ -13,6 +14,20 @@ namespace stepgate {
 /// stand for literal braces.
 std::string expand_placeholders(std::string_view arg,
                                 const std::function<std::optional<std::string>(std::string_view)>& lookup);
+
+/// What the placeholders of a command's argv stand for in one run (docs/design.md, "External
+/// commands"): the one list of their names.
+struct PlaceholderValues {
+  std::string rate, seed, budget, optimizer, scaling, case_id, out;
+  const std::map<std::string, std::string>* optimizer_fields = nullptr;  ///< {optimizer.FIELD}
+};
+
+/// The value of placeholder `name`, or nullopt when there is no such placeholder.
+std::optional<std::string> placeholder_value(std::string_view name, const PlaceholderValues& v);
+
+/// Placeholders that differ from run to run, so a serving program (started once for many runs)
+/// cannot take them in its argv.
+inline constexpr std::string_view kPerRunPlaceholders[] = {"rate", "seed", "out"};
 
 /// The shortest decimal text that reads back as the same double (fmt's shortest round trip).
 std::string exact_number(double v);

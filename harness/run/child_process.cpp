@@ -168,6 +168,14 @@ bool ChildProcess::read_lines(std::vector<std::string>& lines, std::chrono::mill
   return true;
 }
 
+void ChildProcess::drain_stderr_for(int wait_ms) {
+  while (err_ >= 0) {
+    pollfd p{err_, POLLIN, 0};
+    if (::poll(&p, 1, wait_ms) <= 0) return;
+    drain_stderr();
+  }
+}
+
 void ChildProcess::drain_stderr() {
   char buf[65536];
   const ssize_t got = ::read(err_, buf, sizeof buf);
@@ -221,11 +229,7 @@ ChildExit ChildProcess::stop(double grace) {
   ::kill(-pid_, SIGKILL);  // the child if it ignored SIGTERM, and whatever it left in its group
   try_reap(true);
   reap_group(pid_);
-  while (err_ >= 0) {
-    pollfd p{err_, POLLIN, 0};
-    if (::poll(&p, 1, 0) <= 0) break;
-    drain_stderr();
-  }
+  drain_stderr_for(0);
   return *exit_;
 }
 
@@ -233,11 +237,7 @@ ChildExit ChildProcess::wait() {
   try_reap(true);
   ::kill(-pid_, SIGKILL);
   reap_group(pid_);
-  while (err_ >= 0) {
-    pollfd p{err_, POLLIN, 0};
-    if (::poll(&p, 1, 100) <= 0) break;
-    drain_stderr();
-  }
+  drain_stderr_for(100);
   return *exit_;
 }
 

@@ -53,6 +53,8 @@ class ChildProcess {
 
  private:
   void drain_stderr();
+  /// Reads what stderr still holds, waiting up to `wait_ms` for each further chunk.
+  void drain_stderr_for(int wait_ms);
   std::optional<ChildExit> try_reap(bool block);
   pid_t pid_ = -1;
   int out_ = -1, err_ = -1, in_ = -1;

@@ -129,20 +129,10 @@ struct CommandSession::Impl {
   std::vector<Server> servers;
 
   std::vector<std::string> argv_for(double rate, BatchSeed seed, const std::string& out_dir) const {
-    auto lookup = [&](std::string_view name) -> std::optional<std::string> {
-      if (name == "rate") return exact_number(rate);
-      if (name == "seed") return std::to_string(seed.number);
-      if (name == "budget") return std::to_string(settings.budget);
-      if (name == "optimizer") return c.optimizer;
-      if (name == "scaling") return c.scaling;
-      if (name == "case") return c.case_id;
-      if (name == "out") return out_dir;
-      if (name.starts_with("optimizer.")) {
-        auto it = c.optimizer_fields.find(std::string(name.substr(10)));
-        if (it != c.optimizer_fields.end()) return it->second;
-      }
-      return std::nullopt;
-    };
+    const PlaceholderValues values{exact_number(rate), std::to_string(seed.number), std::to_string(settings.budget),
+                                   c.optimizer,        c.scaling,                   c.case_id,
+                                   out_dir,            &c.optimizer_fields};
+    auto lookup = [&](std::string_view name) { return placeholder_value(name, values); };
     std::vector<std::string> argv;
     for (const std::string& arg : c.spec.argv) argv.push_back(expand_placeholders(arg, lookup));
     return argv;
@@ -217,7 +207,7 @@ struct CommandSession::Impl {
   // A converged run of a problem with reference values goes on to its end, so that the
   // program writes its final {"params": [...]} line; every other decided run is stopped.
   bool keeps_running(const RunState& s) const {
-    return c.wants_params && s.monitor->decided() && s.monitor->result().outcome == Outcome::converged;
+    return c.wants_params && s.monitor->converged();
   }
 
   // Checks the run's limits; true when it must end now (decided or faulty).

@@ -45,30 +45,8 @@ void read_csv_source(const ObjectNode& o, DatasetSpec& d) {
   const Node path = o.require("csv");
   d.path = resolve_path(path, path.string());
   if (auto n = o.find("produce")) {
-    const ObjectNode p(*n, {"argv", "cwd", "env", "timeout"});
     CommandSpec c;
-    const Node argv = p.require("argv");
-    c.argv = argv.strings();
-    if (c.argv.empty() || c.argv.front().empty())
-      argv.fail("found an empty argv; expected [program, arguments...] (never a shell string)");
-    const std::filesystem::path suite_dir = std::filesystem::path(d.suite_path).parent_path();
-    c.cwd = suite_dir.empty() ? "." : suite_dir.string();
-    if (auto w = p.find("cwd")) {
-      const std::filesystem::path cwd(w->string());
-      c.cwd = (cwd.is_absolute() ? cwd : suite_dir / cwd).lexically_normal().string();
-      if (!std::filesystem::is_directory(c.cwd))
-        w->fail(fmt::format("found \"{}\", which is not a folder ({}); expected the working directory of the "
-                            "produce command, relative to the suite file", w->string(), c.cwd));
-    }
-    if (auto e = p.find("env")) {
-      if (!e->json().is_object()) e->expected("an object of environment variables (name -> text)");
-      for (const auto& item : e->json().items()) {
-        const Node v = e->member(item.key());
-        if (!v.json().is_string()) v.expected("a string");
-        c.env[item.key()] = v.string();
-      }
-    }
-    if (auto t = p.find("timeout")) c.timeout = t->number_if([](double v) { return v > 0; }, "seconds > 0");
+    read_process(ObjectNode(*n, {"argv", "cwd", "env", "timeout"}), c, "produce command");
     d.produce = std::move(c);  // the file need not exist yet: the command writes it
   } else {
     require_file(path, d.path, "data file");

@@ -214,39 +214,13 @@ void check_dataless(const Node& node, const Layers& settings, const Suite& suite
 }
 
 // The `command` object of a command problem (README, "Gating your own training code").
-void read_command(const ObjectNode& o, const Suite& suite, ProblemSpec& p) {
+void read_command(const ObjectNode& o, ProblemSpec& p) {
   const Node node = o.require("command");
   const ObjectNode c(node, {"argv", "cwd", "env", "timeout", "parallel", "serve", "max_output", "grace"});
   CommandSpec& spec = p.command;
-  const Node argv = c.require("argv");
-  spec.argv = argv.strings();
-  if (spec.argv.empty() || spec.argv.front().empty())
-    argv.fail("found an empty argv; expected [program, arguments...] (never a shell string)");
-  const std::filesystem::path suite_dir = std::filesystem::path(suite.path).parent_path();
-  spec.cwd = suite_dir.string();
-  if (auto n = c.find("cwd")) {
-    const std::filesystem::path cwd(n->string());
-    spec.cwd = (cwd.is_absolute() ? cwd : suite_dir / cwd).lexically_normal().string();
-    if (!std::filesystem::is_directory(spec.cwd))
-      n->fail(fmt::format("found \"{}\", which is not a folder (relative to the suite file: {}); expected the "
-                          "trainer's working directory", n->string(), spec.cwd));
-  }
-  if (spec.cwd.empty()) spec.cwd = ".";
-  if (auto n = c.find("env")) {
-    if (!n->json().is_object()) n->expected("an object of environment variables (name -> text)");
-    for (const auto& item : n->json().items()) {
-      const Node v = n->member(item.key());
-      if (!v.json().is_string()) v.expected("a string");
-      if (item.key().empty() || item.key().find('=') != std::string::npos)
-        v.fail(fmt::format("found variable name \"{}\"; expected a name without '='", item.key()));
-      spec.env[item.key()] = v.string();
-    }
-  }
-  if (auto n = c.find("timeout")) spec.timeout = n->number_if([](double v) { return v > 0 && v <= 86400 * 7; }, "seconds > 0 (at most a week)");
+  read_process(c, spec, "trainer");
   if (auto n = c.find("parallel")) spec.parallel = static_cast<int>(n->integer_if([](long v) { return v >= 0 && v <= 256; }, "a whole number in [0, 256] (0 = --jobs)"));
-  if (auto n = c.find("serve")) {
-    spec.serve = n->boolean();
-  }
+  if (auto n = c.find("serve")) spec.serve = n->boolean();
   if (auto n = c.find("max_output")) spec.max_output = n->integer_if([](long v) { return v >= 1024; }, "bytes >= 1024");
   if (auto n = c.find("grace")) spec.grace = n->number_if([](double v) { return v >= 0 && v <= 600; }, "seconds in [0, 600]");
   if (auto n = o.find("optimum")) spec.optimum = n->number();
@@ -259,16 +233,14 @@ void check_placeholders(const ObjectNode& o, const Suite& suite, const ProblemSp
     for (const std::string& label : p.optimizers) {
       const std::map<std::string, std::string> fields = optimizer_fields(suite.optimizers.at(label));
       try {
+        const PlaceholderValues any{"x", "x", "x", "x", "x", "x", "x", &fields};
         expand_placeholders(p.command.argv[i], [&](std::string_view name) -> std::optional<std::string> {
-          for (std::string_view known : {"rate", "seed", "out"})
-            if (name == known && p.command.serve)
+          for (std::string_view per_run : kPerRunPlaceholders)
+            if (name == per_run && p.command.serve)
               throw std::invalid_argument(fmt::format(
                   "found {{{}}} in the argv of a serving program, which is started once for many runs; "
                   "expected it in the requests (\"rate\", \"seed\") instead", name));
-          for (std::string_view known : {"rate", "seed", "budget", "optimizer", "scaling", "case", "out"})
-            if (name == known) return "x";
-          if (name.starts_with("optimizer.") && fields.count(std::string(name.substr(10)))) return "x";
-          return std::nullopt;
+          return placeholder_value(name, any);
         });
       } catch (const std::invalid_argument& e) {
         std::vector<std::string> names;
@@ -303,7 +275,7 @@ ProblemSpec read_problem(const Node& node, const std::optional<Node>& defaults,
   if (p.kind == ProblemKind::quadratic) read_quadratic(o, p);
   if (p.kind == ProblemKind::test_function)
     p.function = o.require("function").choice(suite_test_function_names(), "test function");
-  if (p.kind == ProblemKind::command) read_command(o, suite, p);
+  if (p.kind == ProblemKind::command) read_command(o, p);
 
   Layers settings;
   if (defaults) settings.levels.push_back(*defaults);
@@ -314,14 +286,6 @@ ProblemSpec read_problem(const Node& node, const std::optional<Node>& defaults,
   check_dataless(node, settings, suite, p);
   if (p.kind == ProblemKind::command) {
     check_placeholders(o, suite, p);
-    // No probe can run beside a command (its state is the program's), so by default its
-    // stretch does the probe's work: measured on examples/numpy, gd's edge lies above the
-    // stability limit 2/λ_max by 3.9% at confirm_factor 0.5, 2.4% at 1, 1.4% at 2, 0.8% at 4.
-    auto sets = [](const std::optional<Node>& level) {
-      return level && level->json().contains("outcome") && level->json()["outcome"].is_object() &&
-             level->json()["outcome"].contains("confirm_factor");
-    };
-    if (!sets(defaults) && !sets(node)) p.run.outcome.confirm_factor = kCommandConfirmFactor;
   }
   if (has_data(p.kind)) read_problem_reference(o, suite, p);
   // A command's reference values are compared with its last {"params": [...]} line, in the

@@ -15,6 +15,11 @@ std::string resolve_path(const Node& document_node, const std::string& written);
 /// Fails at `node` unless `path` names an existing regular file.
 void require_file(const Node& node, const std::string& path, std::string_view what);
 
+/// argv, cwd (relative to the suite file; default its folder), env and timeout of a program
+/// the suite starts (`command` of a problem, `produce` of a data set); `role` names it in
+/// messages ("trainer", "produce command").
+void read_process(const ObjectNode& o, CommandSpec& spec, std::string_view role);
+
 /// The `datasets` section (node: the object of datasets).
 std::map<std::string, DatasetSpec> read_datasets(const Node& node, const std::string& suite_path);
 /// The `scalings` section; "none" is always present.
