@@ -2,17 +2,22 @@
 // stepgate report RESULTS [--baseline FILE] [--out DIR]
 // stepgate accept RESULTS [--baseline FILE] [--record FILE]
 // stepgate merge RESULTS... --out DIR
+#include <unistd.h>
+
 #include <filesystem>
 #include <fstream>
 #include <iostream>
 #include <sstream>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "stepgate/cli/commands.hpp"
 #include "stepgate/cli/gate_output.hpp"
 #include "stepgate/cli/options.hpp"
 #include "stepgate/core/error.hpp"
+#include "stepgate/core/input_file.hpp"
+#include "stepgate/core/output_files.hpp"
 #include "stepgate/report/record.hpp"
 #include "stepgate/sweep/merge.hpp"
 
@@ -49,8 +54,10 @@ int report_command(const Args& args) {
   std::optional<Baseline> baseline;
   if (p.vm.count("baseline")) baseline = read_baseline(p.vm["baseline"].as<std::string>());
   const GateReport gate = apply_gate(results, baseline ? &*baseline : nullptr);
-  const std::string dir = p.vm.count("out") ? p.vm["out"].as<std::string>() : fs::path(path).parent_path().string();
-  for (const std::string& w : write_reports(dir.empty() ? "." : dir, results, baseline ? &*baseline : nullptr, gate))
+  std::string dir = p.vm.count("out") ? p.vm["out"].as<std::string>() : fs::path(path).parent_path().string();
+  if (dir.empty()) dir = ".";
+  const OutputFolder folder(dir, p.vm.count("out") ? "--out" : "the folder of RESULTS");
+  for (const std::string& w : write_reports(dir, results, baseline ? &*baseline : nullptr, gate))
     std::cout << "wrote " << w << "\n";
   return kExitPass;
 }
@@ -74,15 +81,23 @@ int accept_command(const Args& args) {
   const std::string name = results.suite.name;
   const std::string baseline_path = p.vm.count("baseline") ? p.vm["baseline"].as<std::string>() : "references/" + name + ".baseline.json";
   const std::string record_path = p.vm.count("record") ? p.vm["record"].as<std::string>() : "reports/" + name + ".md";
+  // Both outputs are checked, and their folders locked, before either is written; then they
+  // are committed together (a failure leaves both as they were).
+  output_target(baseline_path, "--baseline");
+  const std::string record_target = output_target(record_path, "--record");
+  std::vector<OutputFolder> folders;
+  for (const std::string& file : {output_target(baseline_path), record_target}) {
+    const std::string folder = fs::path(file).parent_path().empty() ? "." : fs::path(file).parent_path().string();
+    if (folders.empty() || fs::weakly_canonical(folders.front().path()) != fs::weakly_canonical(folder))
+      folders.emplace_back(folder, file == record_target ? "--record" : "--baseline");
+  }
   const Baseline baseline = baseline_from_results(results, utc_now());
   std::string existing;
-  if (std::ifstream in(record_path); in) {
-    std::stringstream text;
-    text << in.rdbuf();
-    existing = text.str();
-  }
-  write_json_atomically(baseline_path, to_json(baseline));
-  write_text_atomically(record_path, append_record(existing, name, render_record_entry(results, baseline)));
+  if (::access(record_target.c_str(), F_OK) == 0) existing = read_input_file(record_target);
+  OutputSet outputs(folders.front().path());
+  outputs.stage(baseline_path, json_file_text(to_json(baseline)));
+  outputs.stage(record_path, append_record(existing, name, render_record_entry(results, baseline)));
+  outputs.commit();
   std::cout << fmt::format("accepted {} cases of suite '{}'\n  baseline: {}\n  record:   {}\n", baseline.cases.size(), name,
                            baseline_path, record_path);
   return kExitPass;
@@ -100,9 +115,17 @@ int merge_command(const Args& args) {
   std::vector<Results> shards;
   for (const std::string& path : paths) shards.push_back(read_results(path));
   const Results merged = merge_shards(std::move(shards), paths);
-  const std::string out = (fs::path(p.vm["out"].as<std::string>()) / "results.json").string();
-  write_json_atomically(out, to_json(merged));
-  std::cout << fmt::format("merged {} shards ({} cases) into {}\n", paths.size(), merged.cases.size(), out);
+  const std::string dir = p.vm["out"].as<std::string>();
+  const OutputFolder folder(dir, "--out");
+  // As `run` writes them: results.json and the reports, committed together.
+  const GateReport gate = apply_gate(merged, nullptr);
+  const std::string out = (fs::path(dir) / "results.json").string();
+  OutputSet outputs(dir);
+  outputs.stage(out, json_file_text(to_json(merged)));
+  const std::vector<std::string> reports = stage_reports(outputs, dir, ReportInput{merged, nullptr, gate});
+  outputs.commit();
+  std::cout << fmt::format("merged {} shards ({} cases) into {}\nreports: {}\n", paths.size(), merged.cases.size(), out,
+                           fmt::join(reports, ", "));
   return kExitPass;
 }
 

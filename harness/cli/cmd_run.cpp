@@ -1,6 +1,8 @@
-// stepgate run SUITE [--out DIR] [--jobs N] [--shard K/N] [--quiet]
+// stepgate run SUITE [--out DIR] [--jobs N] [--baseline FILE] [--shard K/N|slurm] [--resume] [--quiet]
+#include <signal.h>
 #include <unistd.h>
 
+#include <cstdlib>
 #include <iostream>
 
 #include <fmt/format.h>
@@ -11,17 +13,58 @@
 #include "stepgate/cli/options.hpp"
 #include "stepgate/cli/progress_line.hpp"
 #include "stepgate/core/error.hpp"
+#include "stepgate/core/interrupt.hpp"
 #include "stepgate/report/summary_table.hpp"
+#include "stepgate/sweep/plan.hpp"
 #include "stepgate/sweep/run_suite.hpp"
 
 namespace stepgate::cli {
 
+namespace {
+
+// The first Ctrl-C (or SIGTERM) asks the sweep to stop between batches; a second one ends the
+// process at once (the journal is whole either way: it is appended batch by batch).
+void on_stop_signal(int sig) {
+  if (stop_requested()) {
+    ::signal(sig, SIG_DFL);
+    ::raise(sig);
+    return;
+  }
+  request_stop();
+}
+
+void catch_stop_signals() {
+  struct sigaction sa {};
+  sa.sa_handler = on_stop_signal;
+  sigemptyset(&sa.sa_mask);
+  ::sigaction(SIGINT, &sa, nullptr);
+  ::sigaction(SIGTERM, &sa, nullptr);
+}
+
+std::pair<int, int> shard_from_slurm() {
+  const char* id = std::getenv("SLURM_ARRAY_TASK_ID");
+  const char* count = std::getenv("SLURM_ARRAY_TASK_COUNT");
+  const char* min = std::getenv("SLURM_ARRAY_TASK_MIN");
+  if (id == nullptr || count == nullptr)
+    throw InputError("--shard slurm", "expected SLURM_ARRAY_TASK_ID and SLURM_ARRAY_TASK_COUNT in the environment "
+                                      "(set by sbatch --array); outside a job array give --shard K/N");
+  const std::string text = fmt::format("{}/{}", std::atol(id) - (min ? std::atol(min) : 0) + 1, count);
+  const auto kn = stepgate::parse_shard(text);
+  if (!kn)
+    throw InputError("--shard slurm", fmt::format("the job array gives shard {} (task {} from {} of {}); expected "
+                                                  "K/N with 1 <= K <= N <= {}: use --array=0-(N-1)",
+                                                  text, id, min ? min : "0", count, kMaxShards));
+  return *kn;
+}
+
+}  // namespace
+
 std::pair<int, int> parse_shard(const std::string& text) {
-  int k = 0, n = 0;
-  char slash = 0, rest = 0;
-  if (std::sscanf(text.c_str(), "%d%c%d%c", &k, &slash, &n, &rest) != 3 || slash != '/' || n < 1 || k < 1 || k > n)
-    throw InputError("--shard", fmt::format("expected K/N with 1 <= K <= N, found '{}'", text));
-  return {k, n};
+  if (text == "slurm") return shard_from_slurm();
+  const auto kn = stepgate::parse_shard(text);
+  if (!kn)
+    throw InputError("--shard", fmt::format("expected K/N with 1 <= K <= N <= {} (or 'slurm'), found '{}'", kMaxShards, text));
+  return *kn;
 }
 
 int run_command(const Args& args) {
@@ -31,24 +74,44 @@ int run_command(const Args& args) {
       ("out", po::value<std::string>(), "output folder (default reports/out/SUITE-NAME)")
       ("jobs", po::value<int>()->default_value(0), "worker threads (default: all cores); results do not depend on it")
       ("baseline", po::value<std::string>(), "accepted baseline: apply the gate, exit 0 pass / 1 fail")
-      ("shard", po::value<std::string>(), "run only shard K of N of the cases (K/N)")
-      ("quiet,q", po::bool_switch(), "no progress line and no summary table");
+      ("shard", po::value<std::string>(),
+       "run only shard K of N of the cases (K/N), or 'slurm': K and N from the job array's environment")
+      ("resume", po::bool_switch(), "continue from OUT/journal.jsonl: finished runs are not run again")
+      ("quiet,q", po::bool_switch(), "no progress line, no summary table and no scope note");
   po::positional_options_description pos;
   pos.add("suite", 1);
-  const Parsed p = parse_options(args, opt, pos, "stepgate run SUITE [--out DIR] [--jobs N] [--baseline FILE] [--shard K/N] [--quiet]");
+  const Parsed p = parse_options(
+      args, opt, pos, "stepgate run SUITE [--out DIR] [--jobs N] [--baseline FILE] [--shard K/N|slurm] [--resume] [--quiet]");
   if (p.help) return kExitPass;
   const int jobs = p.vm["jobs"].as<int>();
-  if (jobs < 0) throw InputError("--jobs", fmt::format("expected a number of threads >= 0, found {}", jobs));
+  if (jobs < 0 || jobs > kMaxJobs)
+    throw InputError("--jobs", fmt::format("expected a number of threads from 0 (all cores) to {}, found {}", kMaxJobs, jobs));
   const bool quiet = p.vm["quiet"].as<bool>();
+  const std::string suite_path = p.vm["suite"].as<std::string>();
 
   RunSuiteOptions options;
   options.jobs = jobs;
   if (p.vm.count("out")) options.out_dir = p.vm["out"].as<std::string>();
   if (p.vm.count("baseline")) options.baseline = p.vm["baseline"].as<std::string>();
   if (p.vm.count("shard")) options.shard = parse_shard(p.vm["shard"].as<std::string>());
+  options.resume = p.vm["resume"].as<bool>();
+  options.note = [&](const std::string& text) {
+    if (!quiet) std::cerr << "stepgate: " << text << "\n";
+  };
   ProgressLine line(!quiet && isatty(STDERR_FILENO));
   options.progress = [&](const SweepProgress& s) { line.update(s); };
-  const SuiteRun run = run_suite(p.vm["suite"].as<std::string>(), options);
+  catch_stop_signals();
+  SuiteRun run;
+  try {
+    run = run_suite(suite_path, options);
+  } catch (const SuiteInterrupted& stop) {
+    line.finish();
+    std::cerr << fmt::format("stepgate: stopped: {} finished runs are kept in {}; nothing else was written.\n"
+                             "  continue with: stepgate run {} --out {} --resume{}\n",
+                             stop.runs_kept, stop.journal, suite_path, stop.out_dir,
+                             options.shard ? fmt::format(" --shard {}", p.vm["shard"].as<std::string>()) : "");
+    return kExitInterrupted;
+  }
   line.finish();
   if (!quiet) {
     std::cout << summary_table(run.results);

@@ -16,7 +16,8 @@ int report_command(const Args& args);
 int accept_command(const Args& args);
 int merge_command(const Args& args);
 
-/// Parses "K/N" (1 <= K <= N); InputError otherwise.
+/// Parses "K/N" (1 <= K <= N <= kMaxShards) or "slurm" (K and N from the job array's
+/// environment); InputError otherwise.
 std::pair<int, int> parse_shard(const std::string& text);
 
 }  // namespace stepgate::cli

@@ -18,7 +18,7 @@ void ProgressLine::update(const SweepProgress& p) {
   // The plan's run count is an upper bound (searches stop early), so the estimate is one too.
   const double fraction = p.max_runs > 0 ? static_cast<double>(p.runs_done) / p.max_runs : 0.0;
   const std::string eta = fraction > 0.02 ? fmt::format("at most ~{:.0f}s left", elapsed * (1.0 / fraction - 1.0)) : "";
-  std::fprintf(stderr, "\r\033[Kcases %d/%d  runs %d (plan <= %d)  %.0fs  %s", p.cases_done, p.cases,
+  std::fprintf(stderr, "\r\033[Kcases %d/%d  runs %lld (plan <= %lld)  %.0fs  %s", p.cases_done, p.cases,
                p.runs_done, p.max_runs, elapsed, eta.c_str());
   std::fflush(stderr);
 }

@@ -31,5 +31,7 @@ inline constexpr int kExitPass = 0;
 inline constexpr int kExitFail = 1;
 inline constexpr int kExitBadInput = 2;
 inline constexpr int kExitToolFailure = 3;
+/// Stopped by Ctrl-C or SIGTERM (128 + SIGINT, as shells report it); the journal is kept.
+inline constexpr int kExitInterrupted = 130;
 
 }  // namespace stepgate

@@ -62,6 +62,16 @@ std::vector<std::size_t> thinned_indices(const std::vector<TracePoint>& trace,
   return keep;
 }
 
+void thin_traces(Results& results, const TraceThinning& t) {
+  for (CaseResult& c : results.cases)
+    for (StoredRun& run : c.runs) {
+      std::vector<TracePoint>& trace = run.record.trace;
+      const std::vector<std::size_t> keep = thinned_indices(trace, t);
+      for (std::size_t i = 0; i < keep.size(); ++i) trace[i] = trace[keep[i]];
+      trace.resize(keep.size());
+    }
+}
+
 namespace {
 
 json to_json(const RunRecord& r, RunRole role, const TraceThinning& t) {
@@ -185,7 +195,7 @@ json to_json(const Results& r, const TraceThinning& t) {
   json cases = json::array();
   for (const CaseResult& c : r.cases) cases.push_back(to_json(c, t));
   // The format written is always this build's: r.format only records what was read.
-  return {{"format", kResultsFormat},
+  json out = {{"format", kResultsFormat},
           {"suite", {{"name", r.suite.name}, {"path", r.suite.path}, {"sha256", r.suite.sha256}}},
           {"tool", {{"version", r.tool.version}, {"compiler", r.tool.compiler}, {"build", r.tool.build}}},
           {"host",
@@ -196,10 +206,12 @@ json to_json(const Results& r, const TraceThinning& t) {
             {"jobs", r.host.jobs}}},
           {"started", r.started},
           {"finished", r.finished},
-          {"shard", r.shard},
+          {"shard", r.shard.empty() ? json(nullptr) : json(r.shard)},
           {"gate", to_json(r.gate)},
           {"datasets", std::move(datasets)},
           {"cases", std::move(cases)}};
+  if (!r.shard.empty()) out["plan_cases"] = r.plan_cases;
+  return out;
 }
 
 }  // namespace stepgate

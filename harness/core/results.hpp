@@ -137,8 +137,12 @@ struct Results {
   HostInfo host;
   std::string started, finished;  ///< ISO 8601 UTC
   std::vector<CaseResult> cases;
-  /// Shard "K/N" when the results are a shard; "" for a whole suite.
+  /// Shard "K/N" when the results are a shard; "" for a whole suite (results.json: null).
   std::string shard;
+  /// A shard's results: every case id of the whole plan, in plan order, so that merge can put
+  /// the shards' cases back in that order and tell a missing one (results.json "plan_cases",
+  /// only in shards).
+  std::vector<std::string> plan_cases;
   GateTolerances gate;  ///< the suite-level gate section (for rules without a case)
   std::vector<DatasetInfo> datasets;  ///< every data set the cases used
 };
@@ -155,6 +159,10 @@ struct TraceThinning {
 /// `tail` points, and always the last point (even with tail <= 0). per_decade <= 0: no
 /// log-spaced points. A 1e5-iteration trace with the defaults keeps 100 points.
 std::vector<std::size_t> thinned_indices(const std::vector<TracePoint>& trace, const TraceThinning& t = {});
+/// Keeps only the thinned points of every run's trace, in memory: the traces results.json
+/// stores, so that reports rendered now equal those rendered later from the file, and a
+/// resumed sweep (whose journal keeps thinned traces) equals an uninterrupted one. Idempotent.
+void thin_traces(Results& results, const TraceThinning& t = {});
 
 /// The JSON form (docs/design.md, "results.json"). NaN, nullopt and also ±inf are written as null
 /// (JSON has no infinity; ±inf reads back as NaN). Traces are thinned to [iter, cost] pairs;
@@ -169,7 +177,11 @@ nlohmann::json to_json(const Results& r, const TraceThinning& t = {});
 Results results_from_json(const nlohmann::json& j, const std::string& path);
 /// Reads and parses a results file (InputError for unreadable or malformed files).
 Results read_results(const std::string& path);
-/// Writes atomically: a temporary file in the same directory, then rename (ToolError on I/O).
+/// The text stepgate writes for a JSON document (indent 1, invalid UTF-8 replaced, final newline).
+std::string json_file_text(const nlohmann::json& j);
+/// Writes atomically: staged beside the target, flushed, then renamed; a symlink is written
+/// through; anything else that is not a regular file is refused (core/output_files.hpp).
+/// ToolError on I/O, InputError for a path that cannot be an output.
 void write_json_atomically(const std::string& path, const nlohmann::json& j);
 /// The same for text (reports, records).
 void write_text_atomically(const std::string& path, const std::string& text);

@@ -177,7 +177,11 @@ Results results_from_json(const json& j, const std::string& path) {
   r.host.jobs = host["jobs"].integer<int>();
   r.started = f["started"].string();
   r.finished = f["finished"].string();
-  r.shard = f["shard"].string();
+  if (f.has("shard") && !f["shard"].is_null()) r.shard = f["shard"].string();
+  if (f.has("plan_cases")) {
+    const JsonField ids = f["plan_cases"];
+    for (std::size_t i = 0; i < ids.array_size(); ++i) r.plan_cases.push_back(ids[i].string());
+  }
   if (f.has("gate")) r.gate = gate_tolerances_from_json(f["gate"]);
   if (f.has("datasets")) {
     const JsonField datasets = f["datasets"];

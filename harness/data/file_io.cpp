@@ -8,13 +8,11 @@
 #include <memory>
 
 #include "stepgate/core/error.hpp"
+#include "stepgate/core/input_file.hpp"
 
 namespace stepgate {
 namespace {
 
-struct FileClose {
-  void operator()(std::FILE* f) const { std::fclose(f); }
-};
 struct GzClose {
   void operator()(gzFile_s* f) const { gzclose(f); }
 };
@@ -26,19 +24,10 @@ bool ends_with(const std::string& s, const char* suffix) {
 
 }  // namespace
 
-std::string read_raw_file(const std::string& path) {
-  std::unique_ptr<std::FILE, FileClose> file(std::fopen(path.c_str(), "rb"));
-  if (!file) throw InputError(path, std::string("cannot open the file: ") + std::strerror(errno));
-  std::string content;
-  std::string block(1 << 16, '\0');
-  std::size_t got;
-  while ((got = std::fread(block.data(), 1, block.size(), file.get())) > 0)
-    content.append(block.data(), got);
-  if (std::ferror(file.get())) throw InputError(path, "cannot read the file (I/O error)");
-  return content;
-}
+std::string read_raw_file(const std::string& path) { return read_input_file(path); }
 
 std::string read_gzip_file(const std::string& path) {
+  check_input_file(path);
   std::unique_ptr<gzFile_s, GzClose> gz(gzopen(path.c_str(), "rb"));
   if (!gz) throw InputError(path, std::string("cannot open the file: ") + std::strerror(errno));
   std::string content;

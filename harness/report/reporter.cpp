@@ -9,14 +9,20 @@
 
 namespace stepgate {
 
-std::vector<std::string> write_reports(const std::string& dir, const ReportInput& in) {
-  std::vector<std::string> written;
+std::vector<std::string> stage_reports(OutputSet& set, const std::string& dir, const ReportInput& in) {
+  std::vector<std::string> staged;
   for (const auto& reporter : all_reporters()) {
     const std::string path = (std::filesystem::path(dir) / reporter->file_name()).string();
-    write_text_atomically(path, reporter->render(in));
-    written.push_back(path);
+    set.stage(path, reporter->render(in));
+    staged.push_back(path);
   }
-  return written;
+  return staged;
+}
+
+std::vector<std::string> write_reports(const std::string& dir, const ReportInput& in) {
+  OutputSet set(dir);
+  stage_reports(set, dir, in);
+  return set.commit();
 }
 
 std::string findings_text(const GateReport& gate, const Results& results) {

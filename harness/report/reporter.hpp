@@ -5,6 +5,7 @@
 #include <string>
 #include <vector>
 
+#include "stepgate/core/output_files.hpp"
 #include "stepgate/core/results.hpp"
 #include "stepgate/gate/baseline.hpp"
 #include "stepgate/gate/findings.hpp"
@@ -36,8 +37,11 @@ std::vector<std::unique_ptr<Reporter>> all_reporters();
 /// The plain warning every report carries: rates are verified only on the data named.
 std::string scope_warning(const Results& results);
 
-/// Renders every reporter and writes its file into `dir` (report.md, report.html, junit.xml),
-/// creating the folder; returns the paths written. ToolError when a file cannot be written.
+/// Renders every reporter and stages its file in `dir` (report.md, report.html, junit.xml) in
+/// `set`, to be committed with the other outputs; returns the paths staged.
+std::vector<std::string> stage_reports(OutputSet& set, const std::string& dir, const ReportInput& in);
+/// The same, committed on their own as one unit; returns the paths written. ToolError when a
+/// file cannot be written (then none of them changed).
 std::vector<std::string> write_reports(const std::string& dir, const ReportInput& in);
 
 /// The warn and fail findings, one line each ("fail  CASE  RULE: message"), then the verdict

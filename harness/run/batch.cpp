@@ -8,6 +8,7 @@
 #include <stdexcept>
 
 #include "stepgate/analysis/curvature.hpp"
+#include "stepgate/core/interrupt.hpp"
 #include "stepgate/core/lanes.hpp"
 #include "stepgate/core/seed.hpp"
 #include "stepgate/run/minibatch.hpp"
@@ -101,6 +102,7 @@ std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& sp
     keep.reserve(2 * rates.size());
 
     for (long t = 0;; ++t) {
+      stop_point();  // Ctrl-C: leave the batch unfinished (Interrupted passes the handler below)
       const bool at_eval = t % every == 0 || t == settings.budget;
       if (at_eval || !minibatch) problem.evaluate(P, ev, scratch);
       bool changed = false;

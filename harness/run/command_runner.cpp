@@ -14,6 +14,8 @@
 
 #include "stepgate/analysis/outcome_rules.hpp"
 #include "stepgate/core/error.hpp"
+#include "stepgate/core/interrupt.hpp"
+#include "stepgate/core/json_text.hpp"
 #include "stepgate/core/placeholders.hpp"
 #include "stepgate/run/child_process.hpp"
 
@@ -39,6 +41,7 @@ std::string fresh_folder() {
 // Python's json module writes NaN, Infinity and -Infinity for non-finite floats; JSON has no
 // such tokens, so outside strings they are read as null (a non-finite cost).
 json parse_line(const std::string& line) {
+  if (!within_json_limits(line)) return json(json::value_t::discarded);  // too deep or an overflowing number
   json j = json::parse(line, nullptr, false);
   if (!j.is_discarded()) return j;
   std::string fixed;
@@ -263,6 +266,7 @@ struct CommandSession::Impl {
     std::vector<Active> active;
     std::size_t next = 0;
     while (next < rates.size() || !active.empty()) {
+      stop_point();  // Ctrl-C: the children are stopped as `active` unwinds
       while (next < rates.size() && static_cast<int>(active.size()) < parallel && take_slot()) {
         // A program that cannot be started at all is the tool's failure, not a run's: the
         // ToolError ends the case ("could not be run", exit 3) and the others are stopped.
@@ -338,6 +342,7 @@ struct CommandSession::Impl {
       give_slot();
     };
     while (next < rates.size() || busy()) {
+      stop_point();
       for (int w = 0; w < workers; ++w) {
         Server& sv = servers[static_cast<std::size_t>(w)];
         if (sv.run || next >= rates.size()) continue;
@@ -443,6 +448,13 @@ struct CommandSession::Impl {
       give_slot();
     }
     servers.clear();
+  }
+
+  // An interrupted or failed batch unwinds here: its processes are stopped (the children's
+  // destructors kill their groups) and the slots they held go back to the other cases.
+  ~Impl() {
+    servers.clear();
+    while (held > 0) give_slot();
   }
 };
 

@@ -100,9 +100,17 @@ std::vector<Outcome> Searcher::run(SeedRuns& s, const std::vector<double>& rates
   for (double r : rates)
     if (!at(s, r) && std::find(todo.begin(), todo.end(), r) == todo.end()) todo.push_back(r);
   if (!todo.empty()) {
-    std::vector<RunRecord> records =
-        runner_ ? runner_(todo, s.seed)
-                : run_batch(*problem_, in_.optimizer, in_.run, todo, s.seed, probe_direction_ ? &*probe_direction_ : nullptr);
+    std::optional<std::vector<RunRecord>> kept;
+    if (in_.store) kept = in_.store->recall(s.seed.index, todo);
+    std::vector<RunRecord> records;
+    if (kept && kept->size() == todo.size()) {
+      records = std::move(*kept);
+    } else {
+      records = runner_ ? runner_(todo, s.seed)
+                        : run_batch(*problem_, in_.optimizer, in_.run, todo, s.seed,
+                                    probe_direction_ ? &*probe_direction_ : nullptr);
+      if (in_.store) in_.store->keep(s.seed.index, todo, records);
+    }
     for (RunRecord& r : records) {
       s.by_rate.emplace(r.rate, order_.size());
       order_.push_back(StoredRun{std::move(r), role});

@@ -19,6 +19,19 @@
 
 namespace stepgate {
 
+/// Runs kept from before (a journal being resumed, sweep/journal.hpp) and the place to keep new
+/// ones. The search asks before each batch and reports after it, from the case's own thread.
+/// A batch is identified by its seed and its rates in order; the search is deterministic, so
+/// a resumed case asks for the same batches in the same order.
+class RunStore {
+ public:
+  virtual ~RunStore() = default;
+  /// The records of this batch when all were kept before; nullopt: the batch must be run.
+  virtual std::optional<std::vector<RunRecord>> recall(long seed_index, std::span<const double> rates) = 0;
+  /// Keeps a finished batch; when it returns, the runs are on disk and count as done.
+  virtual void keep(long seed_index, std::span<const double> rates, const std::vector<RunRecord>& records) = 0;
+};
+
 struct CaseSearchInput {
   std::string case_id;                 ///< "problem/scaling/optimizer": part of every run's seed
   OptimizerSpec optimizer;
@@ -28,6 +41,7 @@ struct CaseSearchInput {
   double pinned = kMissing;            ///< pinned rate (run as a fixed rate), NaN = none
   std::optional<ReferenceValues> reference;  ///< aligned to the problem's LinearLayout
   FeatureMap map;                      ///< scaling of the features (for the reference)
+  RunStore* store = nullptr;           ///< runs kept and recalled (journal); nullptr = none
 };
 
 struct CaseSearchOutput {

@@ -9,18 +9,10 @@
 #include <fmt/format.h>
 
 #include "stepgate/core/error.hpp"
+#include "stepgate/core/json_text.hpp"
 
 namespace stepgate::suite_detail {
 namespace {
-
-std::string line_column(const std::string& text, std::size_t offset) {
-  offset = std::min(offset, text.size());
-  long line = 1;
-  std::size_t line_start = 0;
-  for (std::size_t i = 0; i < offset; ++i)
-    if (text[i] == '\n') ++line, line_start = i + 1;
-  return fmt::format("{}:{}", line, offset - line_start + 1);
-}
 
 // nlohmann's what() starts with "[json.exception.parse_error.101] parse error at line L,
 // column C: "; the location is ours, the rest is kept.
@@ -86,10 +78,11 @@ Json parse_json_text(const std::string& text, const std::string& file) {
     }
     return true;
   };
+  check_json_limits(text, file);
   try {
     return Json::parse(text, track);
   } catch (const Json::parse_error& e) {
-    throw InputError(file + ":" + line_column(text, e.byte == 0 ? 0 : e.byte - 1),
+    throw InputError(file + ":" + text_position(text, e.byte == 0 ? 0 : e.byte - 1),
                      syntax_message(e.what()));
   }
 }

@@ -1,27 +1,42 @@
 #include "stepgate/sweep/merge.hpp"
 
 #include <algorithm>
-#include <cstdio>
+#include <map>
+#include <set>
 
 #include <fmt/format.h>
 
 #include "stepgate/core/error.hpp"
+#include "stepgate/sweep/plan.hpp"
 
 namespace stepgate {
 
 Results merge_shards(std::vector<Results> shards, const std::vector<std::string>& paths) {
   if (shards.empty()) throw InputError("command line", "merge needs at least one results file");
-  int n = 0;
-  std::vector<int> index_of_shard;
+  // Every "shard" field is validated before it is used as a count or an index.
+  std::vector<std::pair<int, int>> kn;
   for (std::size_t i = 0; i < shards.size(); ++i) {
-    int k = 0, count = 0;
-    if (std::sscanf(shards[i].shard.c_str(), "%d/%d", &k, &count) != 2)
-      throw InputError(paths[i], "not a shard (its results have no \"shard\": \"K/N\"); only shards are merged");
-    if (n == 0) n = count, index_of_shard.assign(static_cast<std::size_t>(n), -1);
-    if (count != n) throw InputError(paths[i], fmt::format("shard {} is of {} shards, the others of {}", shards[i].shard, count, n));
-    if (shards[i].suite.sha256 != shards[0].suite.sha256)
-      throw InputError(paths[i], fmt::format("a shard of another suite file (sha256 {} vs {})", shards[i].suite.sha256,
+    if (shards[i].shard.empty())
+      throw InputError(paths[i] + "#/shard", "not a shard (its results have no \"shard\": \"K/N\"); only shards are merged");
+    const auto parsed = parse_shard(shards[i].shard);
+    if (!parsed)
+      throw InputError(paths[i] + "#/shard", fmt::format("expected \"K/N\" with 1 <= K <= N <= {}, found \"{}\"",
+                                                         kMaxShards, shards[i].shard));
+    kn.push_back(*parsed);
+  }
+  const int n = kn[0].second;
+  if (shards.size() > static_cast<std::size_t>(n))
+    throw InputError("command line", fmt::format("{} files given for {} shards", shards.size(), n));
+  std::vector<int> index_of_shard(static_cast<std::size_t>(n), -1);
+  for (std::size_t i = 0; i < shards.size(); ++i) {
+    const auto [k, count] = kn[i];
+    if (count != n) throw InputError(paths[i] + "#/shard", fmt::format("shard {} is of {} shards, the others of {}", shards[i].shard, count, n));
+    if (shards[i].suite.sha256 != shards[0].suite.sha256 || shards[i].suite.name != shards[0].suite.name)
+      throw InputError(paths[i], fmt::format("a shard of another suite file ('{}', sha256 {} against '{}', {})",
+                                             shards[i].suite.name, shards[i].suite.sha256, shards[0].suite.name,
                                              shards[0].suite.sha256));
+    if (shards[i].plan_cases != shards[0].plan_cases)
+      throw InputError(paths[i] + "#/plan_cases", "lists another plan than the first shard's; expected shards of one run");
     if (index_of_shard[static_cast<std::size_t>(k - 1)] >= 0)
       throw InputError(paths[i], fmt::format("shard {} given twice", shards[i].shard));
     index_of_shard[static_cast<std::size_t>(k - 1)] = static_cast<int>(i);
@@ -30,21 +45,44 @@ Results merge_shards(std::vector<Results> shards, const std::vector<std::string>
     if (index_of_shard[static_cast<std::size_t>(k - 1)] < 0)
       throw InputError("command line", fmt::format("shard {}/{} is missing", k, n));
 
+  // Cases back in plan order.
+  const std::vector<std::string>& plan = shards[0].plan_cases;
+  std::map<std::string, std::size_t> position;
+  for (std::size_t i = 0; i < plan.size(); ++i)
+    if (!position.emplace(plan[i], i).second)
+      throw InputError(paths[0] + "#/plan_cases", fmt::format("lists the case '{}' twice", plan[i]));
+  std::vector<std::optional<CaseResult>> ordered(plan.size());
+  for (std::size_t i = 0; i < shards.size(); ++i)
+    for (std::size_t j = 0; j < shards[i].cases.size(); ++j) {
+      CaseResult& c = shards[i].cases[j];
+      const auto at = position.find(c.id);
+      const std::string where = fmt::format("{}#/cases/{}/id", paths[i], j);
+      if (at == position.end()) throw InputError(where, fmt::format("the case '{}' is not in the suite's plan", c.id));
+      if (ordered[at->second]) throw InputError(where, fmt::format("the case '{}' is given twice", c.id));
+      ordered[at->second] = std::move(c);
+    }
+
   Results out = shards[0];
   out.shard.clear();
+  out.plan_cases.clear();
   out.cases.clear();
+  out.datasets.clear();
   for (const Results& s : shards) {
     out.started = std::min(out.started, s.started);
     out.finished = std::max(out.finished, s.finished);
   }
-  for (std::size_t j = 0;; ++j) {
-    bool any = false;
-    for (int k = 1; k <= n; ++k) {
-      Results& s = shards[static_cast<std::size_t>(index_of_shard[static_cast<std::size_t>(k - 1)])];
-      if (j < s.cases.size()) out.cases.push_back(std::move(s.cases[j])), any = true;
-    }
-    if (!any) break;
+  for (std::size_t i = 0; i < ordered.size(); ++i) {
+    if (!ordered[i]) throw InputError("command line", fmt::format("no shard holds the case '{}'", plan[i]));
+    out.cases.push_back(std::move(*ordered[i]));
   }
+  // Data sets in the order an unsharded run lists them: by first use in plan order.
+  std::map<std::string, const DatasetInfo*> datasets;
+  for (const Results& s : shards)
+    for (const DatasetInfo& d : s.datasets) datasets.emplace(d.name, &d);
+  std::set<std::string> listed;
+  for (const CaseResult& c : out.cases)
+    if (auto it = datasets.find(c.dataset); it != datasets.end() && listed.insert(c.dataset).second)
+      out.datasets.push_back(*it->second);
   return out;
 }
 

@@ -7,9 +7,12 @@
 
 namespace stepgate {
 
-/// Every shard 1..N of the same suite (same SHA-256), each once. The i-th case of shard K was
-/// plan case i·N + K − 1. Throws InputError (naming `paths[i]`) for a missing, repeated or
-/// foreign shard.
+/// Every shard 1..N of the same suite (same SHA-256), each once. The cases are put back in the
+/// order of the whole plan (each shard records it: Results::plan_cases) and the data sets of
+/// all shards are joined in the order of first use, so that the merged results equal an
+/// unsharded run's. Throws InputError (naming `paths[i]`) for a "shard" that is not K/N with
+/// 1 <= K <= N <= kMaxShards, a missing, repeated or foreign shard, a case that is not in the
+/// plan or given twice, and a plan case no shard ran.
 Results merge_shards(std::vector<Results> shards, const std::vector<std::string>& paths);
 
 }  // namespace stepgate

@@ -1,7 +1,10 @@
 // The cases a suite expands to (problem × scaling × optimizer), in a fixed order, with an
 // upper bound of the work each one can take.
 #pragma once
+#include <optional>
 #include <string>
+#include <string_view>
+#include <utility>
 #include <vector>
 
 #include "stepgate/suite/suite.hpp"
@@ -14,20 +17,33 @@ struct PlannedCase {
   std::string scaling;             ///< key into Suite::scalings
   std::string optimizer;           ///< key into Suite::optimizers
   double pinned = kMissing;        ///< the pinned rate for this optimizer, NaN = none
-  int max_runs = 0;                ///< upper bound of runs (all seeds)
+  long long max_runs = 0;          ///< upper bound of runs (all seeds)
   double max_iterations = 0;       ///< upper bound of iterations (max_runs × budget)
+  double step_cost = 1;            ///< estimated work of one iteration (rows × features, or dim)
 };
 
 struct Plan {
   std::vector<PlannedCase> cases;
-  int max_runs() const;
+  long long max_runs() const;
   double max_iterations() const;
 };
 
 /// Expands the suite. Order: problems as listed, then their scalings, then optimizers.
 Plan make_plan(const Suite& suite);
 
-/// Keeps the cases of shard k of n (1-based k): the i-th case (0-based) goes to shard i mod n + 1.
+/// Most shards a suite is split into (--shard K/N, and what merge accepts).
+inline constexpr int kMaxShards = 10000;
+
+/// "K/N" with 1 <= K <= N <= kMaxShards, digits only; nullopt for anything else.
+std::optional<std::pair<int, int>> parse_shard(std::string_view text);
+
+/// The shard (1..n) of each planned case, in plan order. Deterministic and independent of the
+/// order the suite lists things in: cases are taken by estimated cost (max_iterations × the
+/// size of a step, largest first; ties by case id) and each goes to the least loaded shard
+/// (ties: the lowest number), the longest-processing-time rule. Adding a case moves few others.
+std::vector<int> shard_assignment(const Plan& plan, int n);
+
+/// Keeps the cases of shard k of n (1-based k), as shard_assignment says, in plan order.
 Plan shard_of(const Plan& plan, int k, int n);
 
 }  // namespace stepgate

@@ -8,6 +8,7 @@
 //   std::cout << stepgate::summary_table(run.results);
 //   return run.verdict_exit_code();
 #pragma once
+#include <functional>
 #include <optional>
 #include <string>
 #include <utility>
@@ -27,6 +28,20 @@ struct RunSuiteOptions {
   std::string baseline;                       ///< an accepted baseline file; "" = none
   std::optional<std::pair<int, int>> shard;   ///< (K, N): only shard K of N of the cases
   ProgressFn progress;                        ///< called after each batch of runs (any thread, serialised)
+  /// Continue from OUT/journal.jsonl: its finished runs are not run again (sweep/journal.hpp).
+  /// Without it a journal left in OUT is replaced.
+  bool resume = false;
+  /// Called with one-line notes before the sweep starts (what resume found); may be empty.
+  std::function<void(const std::string&)> note;
+};
+
+/// Thrown by run_suite when a stop was requested (Ctrl-C, SIGTERM; core/interrupt.hpp): the
+/// journal keeps every finished run and nothing else in the output folder changed. Not a
+/// std::exception, like Interrupted.
+struct SuiteInterrupted {
+  std::string out_dir;       ///< the output folder (resume with --out this --resume)
+  std::string journal;       ///< OUT/journal.jsonl
+  long runs_kept = 0;        ///< finished runs in the journal
 };
 
 struct SuiteRun {
@@ -46,7 +61,9 @@ struct SuiteRun {
 };
 
 /// Runs the suite file at `suite_path`. Throws InputError (exit 2) for a bad suite, baseline,
-/// shard or data (before any run starts), ToolError (exit 3) when an output cannot be written.
+/// shard, data or output folder (all before any run starts; the folder is locked for the whole
+/// run), ToolError (exit 3) when an output cannot be written, SuiteInterrupted on a stop.
+/// results.json and the reports are committed together (core/output_files.hpp).
 /// A failure inside one case is recorded in that case's `error` and counted in failed_cases.
 /// Problems of registered kinds (sweep/registry.hpp) are recorded under their own kind name.
 SuiteRun run_suite(const std::string& suite_path, const RunSuiteOptions& options = {});

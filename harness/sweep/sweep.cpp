@@ -7,8 +7,11 @@
 #include <tbb/parallel_for.h>
 #include <tbb/task_arena.h>
 
+#include <fmt/format.h>
+
 #include "stepgate/run/command_runner.hpp"
 #include "stepgate/search/case_search.hpp"
+#include "stepgate/sweep/journal.hpp"
 #include "stepgate/sweep/prepare.hpp"
 
 namespace stepgate {
@@ -16,7 +19,7 @@ namespace stepgate {
 namespace {
 
 CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProblem& prepared,
-                    const BatchDone& on_batch, int jobs, ProcessSlots& slots) {
+                    const BatchDone& on_batch, int jobs, ProcessSlots& slots, Journal* journal) {
   const ProblemSpec& p = suite.problems[c.problem];
   CaseResult r;
   r.id = c.id;
@@ -38,6 +41,8 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
     in.pinned = c.pinned;
     in.reference = p.kind == ProblemKind::command ? p.reference : prepared.reference;
     in.map = prepared.map;
+    std::unique_ptr<RunStore> store;
+    if (journal) store = journal->store_for(c.id, in.reference.has_value()), in.store = store.get();
     CaseSearchOutput out;
     if (p.kind == ProblemKind::command) {
       CommandSession session(CommandCase{p.command, c.id, c.optimizer, c.scaling, optimizer_fields(r.optimizer),
@@ -75,6 +80,13 @@ Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& opti
   const PreparedSweep prepared_sweep = prepare_problems(suite, plan);
   const std::map<PreparedKey, PreparedProblem>& prepared = prepared_sweep.problems;
   results.datasets = prepared_sweep.datasets;
+  if (options.journal) {
+    JournalIdentity id{suite.name, suite.sha256, fmt::format("{} ({}; {})", results.tool.version, results.tool.compiler,
+                                                             results.tool.build),
+                       options.shard, {}};
+    for (const DatasetInfo& d : results.datasets) id.datasets.emplace_back(d.name, d.sha256);
+    options.journal->start(id);
+  }
   const int jobs = options.jobs > 0 ? options.jobs
                                     : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   results.host.jobs = jobs;
@@ -101,7 +113,7 @@ Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& opti
     tbb::parallel_for(std::size_t{0}, plan.cases.size(), [&](std::size_t i) {
       const PlannedCase& c = plan.cases[i];
       cases[i] = run_case(suite, c, prepared.at({c.problem, c.scaling}),
-                          [&](int runs) { report(runs, 0); }, jobs, slots);
+                          [&](int runs) { report(runs, 0); }, jobs, slots, options.journal);
       report(0, 1);
     }, tbb::simple_partitioner());
   });

@@ -10,22 +10,32 @@
 
 namespace stepgate {
 
+class Journal;
+
+/// Most worker threads accepted (--jobs): far beyond any machine this runs on, and below the
+/// task pool's own limits.
+inline constexpr int kMaxJobs = 1024;
+
 struct SweepOptions {
   int jobs = 0;  ///< worker threads; 0 = all cores (std::thread::hardware_concurrency)
   std::string shard;  ///< "K/N" recorded in the results when the plan is a shard
+  /// Where finished runs are kept and recalled (sweep/journal.hpp); nullptr = no journal.
+  /// run_sweep starts it once the data are read (their hashes are part of its identity).
+  Journal* journal = nullptr;
 };
 
 /// Progress after each batch of runs: runs done so far, and cases finished so far.
 struct SweepProgress {
-  int runs_done = 0;
-  int max_runs = 0;      ///< the plan's upper bound
+  long long runs_done = 0;
+  long long max_runs = 0;  ///< the plan's upper bound
   int cases_done = 0;
   int cases = 0;
 };
 using ProgressFn = std::function<void(const SweepProgress&)>;
 
 /// Runs the plan. Bad input found while loading data (InputError) is thrown before any run
-/// starts; a failure inside one case is recorded in that case's `error`.
+/// starts; a failure inside one case is recorded in that case's `error`. A stop request
+/// (core/interrupt.hpp) ends it with Interrupted, the journal holding every finished batch.
 Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& options = {},
                   const ProgressFn& progress = {});
 

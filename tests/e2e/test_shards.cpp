@@ -41,7 +41,8 @@ TEST_CASE("shards: two shards merged equal the unsharded run", "[e2e]") {
                                   tmp.path(), 0);
   CHECK(m.out.find("merged 2 shards (5 cases)") != std::string::npos);
   const json joined = read_json(merged / "results.json");
-  CHECK(joined.at("shard") == "");
+  CHECK(joined.at("shard").is_null());  // a missing value is null, never ""
+  CHECK(joined.at("datasets") == full.at("datasets"));  // the data sets of every shard
   CHECK(joined.at("suite") == full.at("suite"));
   REQUIRE(joined.at("cases").size() == full.at("cases").size());
   const json joined_core = without_run_facts(joined), full_core = without_run_facts(full);

@@ -395,12 +395,12 @@ TEST_CASE("results: files are written atomically and read back", "[results]") {
   CHECK(text.back() == '\n');
 }
 
-TEST_CASE("results: writing where no file can be made is a ToolError", "[results]") {
+TEST_CASE("results: writing where no file can be made is an error naming the file", "[results]") {
   const fs::path dir = scratch_dir("unwritable");
   std::ofstream(dir / "plain-file") << "x";
-  // The parent "directory" is a regular file.
+  // The parent "directory" is a regular file: the path given cannot be an output (bad input).
   CHECK_THROWS_AS(write_json_atomically((dir / "plain-file" / "r.json").string(), json::object()),
-                  ToolError);
+                  InputError);
   // /proc admits no new files, even for root.
   CHECK_THROWS_AS(write_json_atomically("/proc/stepgate-test.json", json::object()), ToolError);
   if (::geteuid() != 0) {  // permission bits do not stop root

@@ -1,0 +1,66 @@
+#include "stepgate/core/input_file.hpp"
+
+#include <fcntl.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <cerrno>
+#include <cstring>
+
+#include <fmt/format.h>
+
+#include "stepgate/core/error.hpp"
+
+namespace stepgate {
+
+namespace {
+
+std::string kind_of(mode_t mode) {
+  if (S_ISDIR(mode)) return "a directory";
+  if (S_ISCHR(mode)) return "a character device";
+  if (S_ISBLK(mode)) return "a block device";
+  if (S_ISSOCK(mode)) return "a socket";
+  return "not a regular file";
+}
+
+// The file's type, or an InputError naming what is wrong with it.
+mode_t checked_mode(const std::string& path) {
+  if (path.empty()) throw InputError("", "expected a file name, found an empty one");
+  struct stat st {};
+  if (::stat(path.c_str(), &st) != 0) throw InputError(path, fmt::format("cannot read the file: {}", std::strerror(errno)));
+  if (!S_ISREG(st.st_mode) && !S_ISFIFO(st.st_mode))
+    throw InputError(path, fmt::format("is {}; expected a regular file", kind_of(st.st_mode)));
+  return st.st_mode;
+}
+
+}  // namespace
+
+void check_input_file(const std::string& path) { checked_mode(path); }
+
+std::string read_input_file(const std::string& path) {
+  const mode_t mode = checked_mode(path);
+  const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
+  if (fd < 0) throw InputError(path, fmt::format("cannot read the file: {}", std::strerror(errno)));
+  std::string content;
+  if (struct stat st {}; S_ISREG(mode) && ::fstat(fd, &st) == 0) content.reserve(static_cast<std::size_t>(st.st_size));
+  char block[1 << 16];
+  for (;;) {
+    const ssize_t got = ::read(fd, block, sizeof block);
+    if (got < 0) {
+      if (errno == EINTR) continue;
+      const int error = errno;
+      ::close(fd);
+      throw InputError(path, fmt::format("cannot read the file: {}", std::strerror(error)));
+    }
+    if (got == 0) break;
+    content.append(block, static_cast<std::size_t>(got));
+    if (!S_ISREG(mode) && content.size() > kMaxPipeBytes) {
+      ::close(fd);
+      throw InputError(path, fmt::format("read more than {} bytes from this pipe; expected a file", kMaxPipeBytes));
+    }
+  }
+  ::close(fd);
+  return content;
+}
+
+}  // namespace stepgate

@@ -1,0 +1,74 @@
+#include "stepgate/core/json_text.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdlib>
+#include <optional>
+
+#include <fmt/format.h>
+
+#include "stepgate/core/error.hpp"
+
+namespace stepgate {
+
+namespace {
+
+struct Violation {
+  std::size_t offset;
+  std::string why;
+};
+
+bool number_char(char c) { return (c >= '0' && c <= '9') || c == '-' || c == '+' || c == '.' || c == 'e' || c == 'E'; }
+
+// One pass over the text, skipping strings (with their escapes).
+std::optional<Violation> first_violation(std::string_view text) {
+  int depth = 0;
+  for (std::size_t i = 0; i < text.size(); ++i) {
+    const char c = text[i];
+    if (c == '"') {
+      for (++i; i < text.size() && text[i] != '"'; ++i)
+        if (text[i] == '\\') ++i;
+      continue;
+    }
+    if (c == '[' || c == '{') {
+      if (++depth > kMaxJsonDepth)
+        return Violation{i, fmt::format("found arrays or objects nested more than {} levels deep; expected a "
+                                        "shallower document", kMaxJsonDepth)};
+    } else if (c == ']' || c == '}') {
+      depth = std::max(0, depth - 1);
+    } else if (c == '-' || (c >= '0' && c <= '9')) {
+      std::size_t end = i;
+      while (end < text.size() && number_char(text[end])) ++end;
+      const std::string token(text.substr(i, end - i));
+      if (token.find_first_of("eE") != std::string::npos || token.size() > 300) {
+        const double v = std::strtod(token.c_str(), nullptr);
+        if (std::isinf(v))
+          return Violation{i, fmt::format("found the number {} which is too large for a double (at most about "
+                                          "1.8e308); expected a finite number",
+                                          token.size() > 40 ? token.substr(0, 40) + "..." : token)};
+      }
+      i = end - 1;
+    }
+  }
+  return std::nullopt;
+}
+
+}  // namespace
+
+std::string text_position(std::string_view text, std::size_t offset) {
+  offset = std::min(offset, text.size());
+  long line = 1;
+  std::size_t line_start = 0;
+  for (std::size_t i = 0; i < offset; ++i)
+    if (text[i] == '\n') ++line, line_start = i + 1;
+  return fmt::format("{}:{}", line, offset - line_start + 1);
+}
+
+void check_json_limits(std::string_view text, const std::string& file) {
+  if (const std::optional<Violation> v = first_violation(text))
+    throw InputError(file + ":" + text_position(text, v->offset), v->why);
+}
+
+bool within_json_limits(std::string_view text) { return !first_violation(text); }
+
+}  // namespace stepgate

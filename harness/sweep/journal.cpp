@@ -1,0 +1,324 @@
+#include "stepgate/sweep/journal.hpp"
+
+#include <fcntl.h>
+#include <signal.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <cerrno>
+#include <cmath>
+#include <cstdlib>
+#include <cstring>
+#include <limits>
+
+#include <fmt/format.h>
+
+#include "stepgate/core/error.hpp"
+#include "stepgate/core/input_file.hpp"
+#include "stepgate/core/interrupt.hpp"
+#include "stepgate/core/json_text.hpp"
+
+namespace stepgate {
+
+using nlohmann::json;
+
+namespace {
+
+// Every double exactly: JSON numbers round-trip (nlohmann writes the shortest exact form);
+// JSON has no infinity, so the non-finite values are words.
+json number(double x) {
+  if (std::isnan(x)) return nullptr;
+  if (std::isinf(x)) return x > 0 ? "inf" : "-inf";
+  return x;
+}
+
+double number_from(const json& j) {
+  if (j.is_null()) return std::numeric_limits<double>::quiet_NaN();
+  if (j.is_string()) {
+    const std::string s = j.get<std::string>();
+    if (s == "inf") return std::numeric_limits<double>::infinity();
+    if (s == "-inf") return -std::numeric_limits<double>::infinity();
+    throw std::runtime_error(fmt::format("expected a number, null, \"inf\" or \"-inf\", found \"{}\"", s));
+  }
+  return j.get<double>();
+}
+
+json record_json(const RunRecord& r, bool keep_params) {
+  json trace = json::array();
+  for (std::size_t i : thinned_indices(r.trace)) {
+    const TracePoint& p = r.trace[i];
+    trace.push_back({p.iter, number(p.cost), number(p.gap), number(p.grad_norm)});
+  }
+  json j = {{"rate", number(r.rate)},
+            {"seed", r.seed},
+            {"seed_index", r.seed_index},
+            {"outcome", to_string(r.outcome)},
+            {"reason", r.reason},
+            {"iterations", r.iterations ? json(*r.iterations) : json(nullptr)},
+            {"steps", r.steps},
+            {"overshoot", number(r.overshoot)},
+            {"trace", std::move(trace)},
+            {"wall_seconds", number(r.wall_seconds)},
+            {"log_lines", r.log_lines}};
+  if (r.confirmation)
+    j["confirmation"] = {{"method", r.confirmation->method}, {"until", r.confirmation->until},
+                         {"probe_growth", number(r.confirmation->probe_growth)}};
+  if (keep_params) {
+    json params = json::array();
+    for (Index i = 0; i < r.final_params.size(); ++i) params.push_back(number(r.final_params[i]));
+    j["final_params"] = std::move(params);
+  }
+  return j;
+}
+
+RunRecord record_from(const json& j) {
+  RunRecord r;
+  r.rate = number_from(j.at("rate"));
+  r.seed = j.at("seed").get<std::uint64_t>();
+  r.seed_index = j.at("seed_index").get<long>();
+  const auto outcome = outcome_from_string(j.at("outcome").get<std::string>());
+  if (!outcome) throw std::runtime_error("expected an outcome word in \"outcome\"");
+  r.outcome = *outcome;
+  r.reason = j.at("reason").get<std::string>();
+  if (!j.at("iterations").is_null()) r.iterations = j.at("iterations").get<long>();
+  r.steps = j.at("steps").get<long>();
+  r.overshoot = number_from(j.at("overshoot"));
+  for (const json& p : j.at("trace")) {
+    if (!p.is_array() || p.size() != 4) throw std::runtime_error("expected trace points [iter, cost, gap, grad_norm]");
+    r.trace.push_back({p[0].get<long>(), number_from(p[1]), number_from(p[2]), number_from(p[3])});
+  }
+  r.wall_seconds = number_from(j.at("wall_seconds"));
+  r.log_lines = j.at("log_lines").get<long>();
+  if (j.contains("confirmation")) {
+    const json& c = j["confirmation"];
+    r.confirmation = Confirmation{c.at("method").get<std::string>(), c.at("until").get<long>(),
+                                  number_from(c.at("probe_growth"))};
+  }
+  if (j.contains("final_params")) {
+    const json& p = j["final_params"];
+    r.final_params.resize(static_cast<Index>(p.size()));
+    for (std::size_t i = 0; i < p.size(); ++i) r.final_params[static_cast<Index>(i)] = number_from(p[i]);
+  }
+  return r;
+}
+
+json identity_json(const JournalIdentity& id) {
+  json datasets = json::array();
+  for (const auto& [name, sha] : id.datasets) datasets.push_back({name, sha});
+  return {{"format", kJournalFormat},
+          {"suite", {{"name", id.suite_name}, {"sha256", id.suite_sha256}}},
+          {"tool", id.tool},
+          {"shard", id.shard.empty() ? json(nullptr) : json(id.shard)},
+          {"datasets", std::move(datasets)}};
+}
+
+// Fault injection for the kill tests (tests/e2e/test_resume.cpp), read once per journal:
+// STEPGATE_TEST_KILL_AFTER_RUNS=N kills the process with SIGKILL right after the N-th run line
+// of this process reaches the disk; "N:torn" kills it halfway through writing that line.
+std::pair<long, bool> kill_point() {
+  const char* v = std::getenv("STEPGATE_TEST_KILL_AFTER_RUNS");
+  if (v == nullptr || *v == '\0') return {-1, false};
+  char* end = nullptr;
+  const long n = std::strtol(v, &end, 10);
+  return {n > 0 ? n : -1, end != nullptr && std::strcmp(end, ":torn") == 0};
+}
+
+class CaseJournal final : public RunStore {
+ public:
+  CaseJournal(Journal& j, std::string case_id, bool keep_params)
+      : journal_(j), case_(std::move(case_id)), keep_params_(keep_params) {}
+
+  std::optional<std::vector<RunRecord>> recall(long seed_index, std::span<const double> rates) override {
+    stop_point();  // between batches: where Ctrl-C ends a sweep
+    return journal_.recall(batch_key(case_, seed_index, rates));
+  }
+
+  void keep(long seed_index, std::span<const double> rates, const std::vector<RunRecord>& records) override {
+    json rate_list = json::array();
+    for (double r : rates) rate_list.push_back(number(r));
+    std::string text;
+    for (std::size_t lane = 0; lane < records.size(); ++lane)
+      text += json{{"case", case_}, {"seed_index", seed_index}, {"rates", rate_list}, {"lane", lane},
+                   {"run", record_json(records[lane], keep_params_)}}
+                  .dump(-1, ' ', false, json::error_handler_t::replace) +
+              "\n";
+    journal_.append(text, static_cast<int>(records.size()));
+    stop_point();
+  }
+
+ private:
+  Journal& journal_;
+  std::string case_;
+  bool keep_params_;
+};
+
+std::string differs(const json& found, const json& wanted) {
+  if (found.value("format", "") != kJournalFormat)
+    return fmt::format("it is not a stepgate journal (expected \"format\": \"{}\")", kJournalFormat);
+  if (found["suite"].value("name", "") != wanted["suite"]["name"])
+    return fmt::format("it belongs to the suite '{}', not '{}'", found["suite"].value("name", "?"),
+                       wanted["suite"]["name"].get<std::string>());
+  if (found["suite"].value("sha256", "") != wanted["suite"]["sha256"])
+    return "the suite file changed since it was written (another sha256)";
+  if (found.value("tool", "") != wanted["tool"])
+    return fmt::format("it was written by another stepgate build ({}; this is {})", found.value("tool", "?"),
+                       wanted["tool"].get<std::string>());
+  if (found.value("shard", json(nullptr)) != wanted["shard"])
+    return fmt::format("it is of another shard ({} against {})", found.value("shard", json(nullptr)).dump(),
+                       wanted["shard"].dump());
+  if (found.value("datasets", json::array()) != wanted["datasets"])
+    return "the data changed since it was written (another sha256 of a data set)";
+  return "";
+}
+
+}  // namespace
+
+std::string batch_key(const std::string& case_id, long seed_index, std::span<const double> rates) {
+  std::string key = fmt::format("{}\x1f{}", case_id, seed_index);
+  for (double r : rates) key += fmt::format("\x1f{:a}", r);
+  return key;
+}
+
+Journal::Journal(std::string path, bool resume) : path_(std::move(path)), resume_(resume) {
+  std::tie(kill_after_, kill_torn_) = kill_point();
+  if (!resume_ || ::access(path_.c_str(), F_OK) != 0) return;
+  existed_ = true;
+  const std::string text = read_input_file(path_);
+  struct Partial {
+    std::vector<std::optional<RunRecord>> lanes;
+    std::size_t filled = 0;
+  };
+  std::map<std::string, Partial> partial;
+  std::size_t at = 0;
+  long line = 0;
+  while (at < text.size()) {
+    const std::size_t end = text.find('\n', at);
+    ++line;
+    const bool last = end == std::string::npos || end + 1 >= text.size();
+    const std::string where = fmt::format("{}:{}", path_, line);
+    if (end == std::string::npos) break;  // a torn last line (no newline): dropped
+    const std::string_view body(text.data() + at, end - at);
+    json j = within_json_limits(body) ? json::parse(body, nullptr, false) : json(json::value_t::discarded);
+    if (j.is_discarded() || !j.is_object()) {
+      if (last) break;  // torn while being written: dropped
+      throw InputError(where, "found a line that is not a JSON object; expected a journal entry (the journal is damaged: "
+                              "run again without --resume)");
+    }
+    if (line == 1) {
+      header_ = std::move(j);
+    } else {
+      try {
+        const std::string case_id = j.at("case").get<std::string>();
+        const long seed_index = j.at("seed_index").get<long>();
+        std::vector<double> rates;
+        for (const json& r : j.at("rates")) rates.push_back(number_from(r));
+        const std::size_t lane = j.at("lane").get<std::size_t>();
+        if (rates.empty() || lane >= rates.size()) throw std::runtime_error("\"lane\" is outside the batch's rates");
+        Partial& p = partial[batch_key(case_id, seed_index, rates)];
+        RunRecord record = record_from(j.at("run"));
+        const bool whole = !p.lanes.empty() && p.filled == p.lanes.size();  // a later copy changes nothing
+        if (!whole) {
+          if (p.lanes.empty() || p.lanes[lane]) p.lanes.assign(rates.size(), std::nullopt), p.filled = 0;  // run again after a cut
+          p.lanes[lane] = std::move(record);
+          ++p.filled;
+        }
+      } catch (const std::exception& e) {
+        if (last) break;
+        throw InputError(where, fmt::format("found a damaged journal entry ({}); expected the runs stepgate wrote "
+                                            "(run again without --resume)", e.what()));
+      }
+    }
+    at = end + 1;
+    good_bytes_ = at;
+  }
+  if (header_.is_null())
+    throw InputError(path_ + ":1", "found no journal header; expected the first line stepgate writes (run again "
+                                   "without --resume)");
+  for (auto& [key, p] : partial) {
+    if (p.filled != p.lanes.size()) continue;  // a batch cut short: run it again
+    std::vector<RunRecord> records;
+    for (auto& r : p.lanes) records.push_back(std::move(*r));
+    available_ += static_cast<long>(records.size());
+    batches_.emplace(key, std::move(records));
+  }
+}
+
+Journal::~Journal() {
+  if (fd_ >= 0) ::close(fd_);
+}
+
+void Journal::start(const JournalIdentity& id) {
+  const json wanted = identity_json(id);
+  if (existed_) {
+    if (const std::string why = differs(header_, wanted); !why.empty())
+      throw InputError(path_, fmt::format("cannot resume from this journal: {}; run again without --resume to "
+                                          "start afresh", why));
+    fd_ = ::open(path_.c_str(), O_WRONLY | O_CLOEXEC);
+    if (fd_ < 0 || ::ftruncate(fd_, static_cast<off_t>(good_bytes_)) != 0 || ::lseek(fd_, 0, SEEK_END) < 0)
+      throw ToolError(fmt::format("cannot append to {}: {}", path_, std::strerror(errno)));
+    return;
+  }
+  // A fresh journal: written under a staged name, then renamed over an earlier one, so that
+  // a kill here leaves the earlier journal whole.
+  const std::string staged = fmt::format("{}.staged-{}", path_, ::getpid());
+  fd_ = ::open(staged.c_str(), O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC, 0644);
+  if (fd_ < 0) throw ToolError(fmt::format("cannot write {}: {}", staged, std::strerror(errno)));
+  const std::string head = wanted.dump(-1, ' ', false, json::error_handler_t::replace) + "\n";
+  if (::write(fd_, head.data(), head.size()) != static_cast<ssize_t>(head.size()) || ::fdatasync(fd_) != 0 ||
+      ::rename(staged.c_str(), path_.c_str()) != 0) {
+    const int error = errno;
+    ::unlink(staged.c_str());
+    throw ToolError(fmt::format("cannot write {}: {}", path_, std::strerror(error)));
+  }
+}
+
+std::unique_ptr<RunStore> Journal::store_for(const std::string& case_id, bool keep_params) {
+  return std::make_unique<CaseJournal>(*this, case_id, keep_params);
+}
+
+std::optional<std::vector<RunRecord>> Journal::recall(const std::string& key) {
+  auto it = batches_.find(key);  // read-only after construction: no lock needed
+  if (it == batches_.end()) return std::nullopt;
+  std::lock_guard lock(mutex_);
+  recalled_ += static_cast<long>(it->second.size());
+  return it->second;
+}
+
+void Journal::append(const std::string& text, int lines) {
+  std::lock_guard lock(mutex_);
+  if (fd_ < 0) throw ToolError("the journal was not started");
+  std::size_t length = text.size();
+  bool kill = false;
+  if (kill_after_ > 0 && written_ + lines >= kill_after_) {
+    // Cut the text after the (kill_after_)-th line of this process, or halfway through it.
+    std::size_t cut = 0;
+    for (long n = written_; n < kill_after_; ++n) {
+      const std::size_t end = text.find('\n', cut);
+      cut = n + 1 == kill_after_ && kill_torn_ ? cut + (end - cut) / 2 : end + 1;
+    }
+    length = cut;
+    kill = true;
+  }
+  std::size_t done = 0;
+  while (done < length) {
+    const ssize_t n = ::write(fd_, text.data() + done, length - done);
+    if (n < 0 && errno == EINTR) continue;
+    if (n < 0) throw ToolError(fmt::format("cannot append to {}: {}", path_, std::strerror(errno)));
+    done += static_cast<std::size_t>(n);
+  }
+  if (::fdatasync(fd_) != 0) throw ToolError(fmt::format("cannot flush {}: {}", path_, std::strerror(errno)));
+  if (kill) ::raise(SIGKILL);
+  written_ += lines;
+}
+
+long Journal::runs_recalled() const {
+  std::lock_guard lock(mutex_);
+  return recalled_;
+}
+
+long Journal::runs_written() const {
+  std::lock_guard lock(mutex_);
+  return written_;
+}
+
+}  // namespace stepgate
