@@ -52,6 +52,13 @@ bool OutcomeMonitor::observe(const TracePoint& p) {
     prev_value_ = min_value_ = value;
   }
   ++count_;
+  if (!finite && count_ == 1) {
+    // Not the rate's doing: the same at every rate, so no boundary may be read from it.
+    decided_ = Classification{Outcome::failed, std::nullopt, kMissing,
+                              fmt::format("cost not finite at the start (iteration {}): the problem, not the rate", p.iter),
+                              std::nullopt};
+    return true;
+  }
   if (!finite) {
     decided_ = Classification{Outcome::diverged, std::nullopt, kInf,
                               fmt::format("non-finite cost or gradient at iteration {}", p.iter), std::nullopt};

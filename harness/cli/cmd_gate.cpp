@@ -35,6 +35,7 @@ int check_command(const Args& args) {
   if (p.help) return kExitPass;
   const Results results = read_results(p.vm["results"].as<std::string>());
   const Baseline baseline = read_baseline(p.vm["baseline"].as<std::string>());
+  require_same_suite(results, baseline, p.vm["baseline"].as<std::string>());
   const GateReport gate = apply_gate(results, &baseline);
   print_findings(gate, results);
   return gate.pass ? kExitPass : kExitFail;
@@ -52,7 +53,10 @@ int report_command(const Args& args) {
   const std::string path = p.vm["results"].as<std::string>();
   const Results results = read_results(path);
   std::optional<Baseline> baseline;
-  if (p.vm.count("baseline")) baseline = read_baseline(p.vm["baseline"].as<std::string>());
+  if (p.vm.count("baseline")) {
+    baseline = read_baseline(p.vm["baseline"].as<std::string>());
+    require_same_suite(results, *baseline, p.vm["baseline"].as<std::string>());
+  }
   const GateReport gate = apply_gate(results, baseline ? &*baseline : nullptr);
   std::string dir = p.vm.count("out") ? p.vm["out"].as<std::string>() : fs::path(path).parent_path().string();
   if (dir.empty()) dir = ".";
@@ -79,17 +83,31 @@ int accept_command(const Args& args) {
     if (!c.error.empty())
       throw InputError(path, fmt::format("case {} could not be run ({}); a baseline needs every case", c.id, c.error));
   const std::string name = results.suite.name;
+  if (!p.vm.count("baseline") || !p.vm.count("record"))  // the default paths are made from the name
+    if (name.empty() || name == "." || name == ".." || name.find('/') != std::string::npos || name.find('\0') != std::string::npos)
+      throw InputError(path + "#/suite/name", fmt::format("found the suite name '{}', which cannot name a file; expected "
+                                                          "a name without '/' (or give --baseline and --record)", name));
   const std::string baseline_path = p.vm.count("baseline") ? p.vm["baseline"].as<std::string>() : "references/" + name + ".baseline.json";
   const std::string record_path = p.vm.count("record") ? p.vm["record"].as<std::string>() : "reports/" + name + ".md";
   // Both outputs are checked, and their folders locked, before either is written; then they
   // are committed together (a failure leaves both as they were).
-  output_target(baseline_path, "--baseline");
+  const std::string baseline_target = output_target(baseline_path, "--baseline");
   const std::string record_target = output_target(record_path, "--record");
+  const auto same = [](const std::string& a, const std::string& b) {
+    return fs::weakly_canonical(fs::absolute(a).lexically_normal()) == fs::weakly_canonical(fs::absolute(b).lexically_normal());
+  };
+  if (same(baseline_target, record_target))
+    throw InputError("--record " + record_path, "is the same file as the baseline; expected two different files");
+  for (const auto& [target, option] : {std::pair{baseline_target, "--baseline"}, std::pair{record_target, "--record"}})
+    if (same(target, path))
+      throw InputError(std::string(option) + " " + target, fmt::format("is the results file being accepted ({}); "
+                                                                       "expected another file", path));
   std::vector<OutputFolder> folders;
-  for (const std::string& file : {output_target(baseline_path), record_target}) {
+  for (const std::string& file : {baseline_target, record_target}) {
     const std::string folder = fs::path(file).parent_path().empty() ? "." : fs::path(file).parent_path().string();
-    if (folders.empty() || fs::weakly_canonical(folders.front().path()) != fs::weakly_canonical(folder))
-      folders.emplace_back(folder, file == record_target ? "--record" : "--baseline");
+    bool held = false;
+    for (const OutputFolder& f : folders) held = held || same(f.path(), folder);
+    if (!held) folders.emplace_back(folder, file == record_target ? "--record" : "--baseline");
   }
   const Baseline baseline = baseline_from_results(results, utc_now());
   std::string existing;
@@ -116,6 +134,9 @@ int merge_command(const Args& args) {
   for (const std::string& path : paths) shards.push_back(read_results(path));
   const Results merged = merge_shards(std::move(shards), paths);
   const std::string dir = p.vm["out"].as<std::string>();
+  for (const std::string& input : paths)
+    if (fs::weakly_canonical(fs::path(dir) / "results.json") == fs::weakly_canonical(input))
+      throw InputError("--out " + dir, fmt::format("would overwrite the input shard {}; expected another folder", input));
   const OutputFolder folder(dir, "--out");
   // As `run` writes them: results.json and the reports, committed together.
   const GateReport gate = apply_gate(merged, nullptr);

@@ -91,7 +91,10 @@ int run_command(const Args& args) {
 
   RunSuiteOptions options;
   options.jobs = jobs;
-  if (p.vm.count("out")) options.out_dir = p.vm["out"].as<std::string>();
+  if (p.vm.count("out")) {
+    options.out_dir = p.vm["out"].as<std::string>();
+    if (options.out_dir.empty()) throw InputError("--out", "expected a folder name, found an empty one");
+  }
   if (p.vm.count("baseline")) options.baseline = p.vm["baseline"].as<std::string>();
   if (p.vm.count("shard")) options.shard = parse_shard(p.vm["shard"].as<std::string>());
   options.resume = p.vm["resume"].as<bool>();

@@ -20,6 +20,7 @@ std::string kind_of(mode_t mode) {
   if (S_ISCHR(mode)) return "a character device";
   if (S_ISBLK(mode)) return "a block device";
   if (S_ISSOCK(mode)) return "a socket";
+  if (S_ISFIFO(mode)) return "a fifo (a pipe: its writer may never come)";
   return "not a regular file";
 }
 
@@ -28,7 +29,7 @@ mode_t checked_mode(const std::string& path) {
   if (path.empty()) throw InputError("", "expected a file name, found an empty one");
   struct stat st {};
   if (::stat(path.c_str(), &st) != 0) throw InputError(path, fmt::format("cannot read the file: {}", std::strerror(errno)));
-  if (!S_ISREG(st.st_mode) && !S_ISFIFO(st.st_mode))
+  if (!S_ISREG(st.st_mode))
     throw InputError(path, fmt::format("is {}; expected a regular file", kind_of(st.st_mode)));
   return st.st_mode;
 }

@@ -32,6 +32,7 @@ std::string kind_of(mode_t mode) {
   if (S_ISBLK(mode)) return "a block device";
   if (S_ISFIFO(mode)) return "a fifo";
   if (S_ISSOCK(mode)) return "a socket";
+  if (S_ISREG(mode)) return "a regular file";
   return "not a regular file";
 }
 

@@ -1,3 +1,6 @@
+#include <set>
+
+#include <fmt/format.h>
 // results.json -> Results: strict about the fields it knows (InputError with the JSON pointer),
 // silent about fields it does not (newer writers may add them).
 #include "stepgate/core/results.hpp"
@@ -207,7 +210,12 @@ Results results_from_json(const json& j, const std::string& path) {
     }
   }
   const JsonField cases = f["cases"];
-  for (std::size_t i = 0; i < cases.array_size(); ++i) r.cases.push_back(read_case(cases[i]));
+  std::set<std::string> ids;
+  for (std::size_t i = 0; i < cases.array_size(); ++i) {
+    r.cases.push_back(read_case(cases[i]));
+    if (!ids.insert(r.cases.back().id).second)
+      cases[i]["id"].fail(fmt::format("each case id once (the case '{}' is given twice)", r.cases.back().id));
+  }
   return r;
 }
 

@@ -1,5 +1,7 @@
 #include "stepgate/gate/baseline.hpp"
 
+#include <fmt/format.h>
+
 #include "stepgate/core/error.hpp"
 #include "stepgate/core/json_fields.hpp"
 
@@ -94,6 +96,8 @@ Baseline baseline_from_json(const json& j, const std::string& path) {
     const JsonField c = cases[i];
     BaselineCase x;
     x.id = c["id"].string();
+    for (const BaselineCase& earlier : b.cases)
+      if (earlier.id == x.id) c["id"].fail(fmt::format("each case id once (the case '{}' is given twice)", x.id));
     x.data_sha256 = c["data_sha256"].string();
     x.floor = c["floor"].number_or_missing();
     x.edge = c["edge"].number_or_missing();
@@ -115,6 +119,13 @@ Baseline baseline_from_json(const json& j, const std::string& path) {
     b.cases.push_back(std::move(x));
   }
   return b;
+}
+
+void require_same_suite(const Results& results, const Baseline& baseline, const std::string& baseline_path) {
+  if (baseline.suite.name != results.suite.name)
+    throw InputError(baseline_path + "#/suite/name",
+                     fmt::format("is the baseline of the suite '{}', not of '{}'; expected the baseline accepted for the "
+                                 "suite of these results", baseline.suite.name, results.suite.name));
 }
 
 Baseline read_baseline(const std::string& path) { return baseline_from_json(read_json_file(path), path); }

@@ -43,5 +43,8 @@ nlohmann::json to_json(const Baseline& b);
 /// Throws InputError naming `path` and the JSON pointer of a bad field.
 Baseline baseline_from_json(const nlohmann::json& j, const std::string& path);
 Baseline read_baseline(const std::string& path);
+/// InputError(baseline_path#/suite/name, ...) when the baseline was accepted for another suite
+/// (another suite name): comparing them would report every case as added and missing.
+void require_same_suite(const Results& results, const Baseline& baseline, const std::string& baseline_path);
 
 }  // namespace stepgate

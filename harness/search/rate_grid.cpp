@@ -9,10 +9,10 @@ std::vector<double> log_grid(const RateGrid& grid) {
   if (!(grid.from > 0.0) || !(grid.to >= grid.from) || grid.per_decade < 1)
     throw std::invalid_argument("a rate grid needs 0 < from <= to and per_decade >= 1");
   std::vector<double> out;
-  const double decades = std::log10(grid.to / grid.from);
-  const int n = static_cast<int>(std::floor(decades * grid.per_decade + 1e-9));
-  for (int i = 0; i <= n; ++i)
-    out.push_back(grid.from * std::pow(10.0, static_cast<double>(i) / grid.per_decade));
+  // In log space: to/from may overflow a double (1e-160 .. 1e160) while both ends are fine.
+  const double low = std::log10(grid.from), decades = std::log10(grid.to) - low;
+  const long n = static_cast<long>(std::floor(decades * grid.per_decade + 1e-9));
+  for (long i = 0; i <= n; ++i) out.push_back(i == 0 ? grid.from : std::pow(10.0, low + static_cast<double>(i) / grid.per_decade));
   return out;
 }
 

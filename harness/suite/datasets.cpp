@@ -70,6 +70,11 @@ void read_csv_source(const ObjectNode& o, DatasetSpec& d) {
     d.csv.delimiter = one_char(*n, false);
   }
   if (auto n = o.find("quote")) d.csv.quote = one_char(*n, true);
+  if (!d.csv.whitespace_delimited && d.csv.quote != '\0' && d.csv.quote == d.csv.delimiter) {
+    const auto n = o.find("quote") ? o.find("quote") : o.find("delimiter");
+    n->fail(fmt::format("found the quote character '{}' equal to the delimiter; expected two different characters",
+                        d.csv.quote));
+  }
   if (auto n = o.find("header")) d.csv.header = n->boolean();
   if (auto n = o.find("columns")) {
     if (d.csv.header)
@@ -114,6 +119,14 @@ void read_generated_source(const ObjectNode& o, DatasetSpec& d) {
     s.rows = n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
   if (auto n = g.find("features"))
     s.features = n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
+  // The data are held in memory in double precision (and copied once per scaling): refuse
+  // what cannot be allocated here rather than end in std::bad_alloc after the planning.
+  if (const double bytes = 8.0 * static_cast<double>(s.rows) * static_cast<double>(s.features + 1);
+      bytes > kMaxDataBytes) {
+    const auto n = g.find("rows") && s.rows > s.features ? g.find("rows") : g.find("features");
+    n->fail(fmt::format("found {} rows × {} features, about {:.3g} GiB in double precision; expected data of at most "
+                        "{:.0f} GiB", s.rows, s.features, bytes / (1 << 30), kMaxDataBytes / (1 << 30)));
+  }
   if (auto n = g.find("noise")) {
     s.noise = n->number_if([](double v) { return v >= 0; }, "a number >= 0");
     if (s.kind == GeneratedSpec::logistic)

@@ -1,5 +1,6 @@
 // One entry of the `problems` section: kind, kind options, reference and settings, and the
 // checks that tie it to the rest of the suite (datasets, scalings, optimizers).
+#include <cmath>
 #include <algorithm>
 #include <filesystem>
 
@@ -149,10 +150,17 @@ void read_quadratic(const ObjectNode& o, ProblemSpec& p) {
   QuadraticOptions& q = p.quadratic;
   if (auto n = o.find("dim"))
     q.dim =
-        n->integer_if([](long v) { return v >= 1 && v <= 100000; }, "a whole number in 1..100000");
+        n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
+  if (auto n = o.find("dim"); n && 8.0 * static_cast<double>(q.dim) * static_cast<double>(q.dim) > kMaxDataBytes)
+    n->fail(fmt::format("found dim {}: its dense matrix needs about {:.3g} GiB; expected a dim of at most {} ({:.0f} GiB)",
+                        q.dim, 8.0 * static_cast<double>(q.dim) * static_cast<double>(q.dim) / (1 << 30),
+                        static_cast<long>(std::sqrt(kMaxDataBytes / 8)), kMaxDataBytes / (1 << 30)));
   if (auto n = o.find("L")) q.L = n->number_if([](double v) { return v > 0; }, "a number > 0");
   if (auto n = o.find("condition"))
     q.condition = n->number_if([](double v) { return v >= 1; }, "a number >= 1");
+  if (auto n = o.find("condition"); n && q.dim == 1 && q.condition != 1)
+    n->fail(fmt::format("found condition {} for dim 1; expected 1 (one eigenvalue is its own smallest and largest)",
+                        q.condition));
   if (auto n = o.find("spectrum")) {
     const std::string& s = n->choice({"linear", "log_uniform", "two_clusters"}, "spectrum");
     q.spectrum = s == "linear"        ? Spectrum::linear

@@ -240,6 +240,9 @@ void read_settings(const Layers& settings, const Layers& gate, Suite& suite, Pro
   if (auto n = settings.find("eval_every"))
     p.run.eval_every =
         n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0 (0 = automatic)");
+  if (auto n = settings.find("eval_every"); n && p.run.eval_every > p.run.budget)
+    n->fail(fmt::format("found eval_every {} above the budget {}; expected at most the budget (no run would be "
+                        "evaluated before its end)", p.run.eval_every, p.run.budget));
   // No probe can run beside a command (its state is the program's), so by default its stretch
   // does the probe's work: measured on examples/numpy, gd's edge lies above the stability limit
   // 2/λ_max by 3.9% at confirm_factor 0.5, 2.4% at 1, 1.4% at 2, 0.8% at 4.

@@ -125,6 +125,10 @@ Suite parse_suite(const std::string& text, const std::string& path) {
   const Node name = top.require("name");
   suite.name = name.string();
   check_name(name, suite.name, "suite name");
+  // The default output folder is reports/out/NAME: one path component (at most 255 bytes).
+  if (suite.name.size() > kMaxSuiteName)
+    name.fail(fmt::format("found a suite name too long ({} characters); expected at most {} (it names the output folder)",
+                          suite.name.size(), kMaxSuiteName));
   if (auto n = top.find("description")) suite.description = n->string();
   if (auto n = top.find("datasets")) suite.datasets = read_datasets(*n, path);
   suite.scalings = read_scalings(top.find("scalings"));

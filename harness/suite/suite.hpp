@@ -28,6 +28,12 @@ inline constexpr std::string_view kSuiteFormat = "stepgate.suite/1";
 /// The "format" tag of a reference file (published values of a linear model's parameters).
 inline constexpr std::string_view kReferenceFormat = "stepgate.reference/1";
 
+/// Largest data held in memory for one data set or one quadratic's matrix (8 GiB of doubles;
+/// the machines have 24 GiB, and scalings copy the data once each).
+inline constexpr double kMaxDataBytes = 8.0 * (1 << 30);
+/// Longest suite name (it becomes the output folder's name, one path component).
+inline constexpr std::size_t kMaxSuiteName = 200;
+
 struct DatasetSpec {
   enum class Source { csv, idx, generated };
   std::string name;

@@ -24,7 +24,13 @@ SuiteRun run_suite(const std::string& suite_path, const RunSuiteOptions& options
                                            options.jobs));
   SuiteRun run;
   run.suite = load_suite(suite_path);
-  if (!options.baseline.empty()) run.baseline = read_baseline(options.baseline);
+  if (!options.baseline.empty()) {
+    run.baseline = read_baseline(options.baseline);
+    if (run.baseline->suite.name != run.suite.name)  // found now, not after the sweep
+      throw InputError(options.baseline + "#/suite/name",
+                       fmt::format("is the baseline of the suite '{}', not of '{}'; expected the baseline accepted "
+                                   "for this suite", run.baseline->suite.name, run.suite.name));
+  }
   Plan plan = make_plan(run.suite);
   SweepOptions sweep;
   sweep.jobs = options.jobs;
@@ -45,6 +51,8 @@ SuiteRun run_suite(const std::string& suite_path, const RunSuiteOptions& options
   const std::string out_dir = default_out ? "reports/out/" + run.suite.name : options.out_dir;
   const OutputFolder folder(out_dir, default_out ? "the output folder (from the suite name; choose one with --out)"
                                                  : "--out");
+  output_target((std::filesystem::path(out_dir) / "results.json").string());  // a folder or fifo there: now
+  for (const auto& reporter : all_reporters()) output_target((std::filesystem::path(out_dir) / reporter->file_name()).string());
   const std::string journal_path = (std::filesystem::path(out_dir) / kJournalFile).string();
   Journal journal(journal_path, options.resume);
   if (options.note && options.resume) {

@@ -255,5 +255,5 @@ TEST_CASE("IDX: malformed files are InputErrors with byte offsets", "[data]") {
   std::string cut = read_raw_file(labels_with(idx_bytes(0x00000801, {2000}, std::string(2000, 'x'))));
   write_file(temp_path("cut.gz"), cut.substr(0, cut.size() / 2));
   CHECK_THAT(message_for(temp_path("cut.gz")), Catch::Contains("truncated"));
-  CHECK_THAT(message_for(temp_path("missing.gz")), Catch::Contains("cannot open"));
+  CHECK_THAT(message_for(temp_path("missing.gz")), Catch::Contains("cannot read"));
 }
