@@ -14,7 +14,7 @@ namespace {
 constexpr const char* kUsage = R"(usage: stepgate <command> [options]
 
 commands:
-  run SUITE [--out DIR] [--jobs N] [--baseline FILE] [--shard K/N] [--quiet]
+  run SUITE [--out DIR] [--jobs N] [--baseline FILE] [--shard K/N|slurm] [--resume] [--quiet]
                         run the suite's cases, write DIR/results.json, print the safe ranges;
                         with --baseline also the findings, the reports and the gate's exit code
   check RESULTS --baseline FILE
@@ -31,7 +31,8 @@ commands:
   stepgate <command> --help   options of one command
   stepgate --version
 
-exit codes: 0 pass, 1 verdict fail, 2 bad input or usage, 3 failure of the tool itself)";
+exit codes: 0 pass, 1 verdict fail, 2 bad input or usage, 3 failure of the tool itself,
+            130 stopped by Ctrl-C (resume with run --resume))";
 
 }  // namespace
 
