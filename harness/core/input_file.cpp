@@ -15,26 +15,27 @@ namespace stepgate {
 
 namespace {
 
-std::string kind_of(mode_t mode) {
-  if (S_ISDIR(mode)) return "a directory";
-  if (S_ISCHR(mode)) return "a character device";
-  if (S_ISBLK(mode)) return "a block device";
-  if (S_ISSOCK(mode)) return "a socket";
-  if (S_ISFIFO(mode)) return "a fifo (a pipe: its writer may never come)";
-  return "not a regular file";
-}
-
 // The file's type, or an InputError naming what is wrong with it.
 mode_t checked_mode(const std::string& path) {
   if (path.empty()) throw InputError("", "expected a file name, found an empty one");
   struct stat st {};
   if (::stat(path.c_str(), &st) != 0) throw InputError(path, fmt::format("cannot read the file: {}", std::strerror(errno)));
   if (!S_ISREG(st.st_mode))
-    throw InputError(path, fmt::format("is {}; expected a regular file", kind_of(st.st_mode)));
+    throw InputError(path, fmt::format("is {}; expected a regular file", file_kind(st.st_mode)));
   return st.st_mode;
 }
 
 }  // namespace
+
+std::string file_kind(unsigned mode) {
+  if (S_ISDIR(mode)) return "a directory";
+  if (S_ISCHR(mode)) return "a character device";
+  if (S_ISBLK(mode)) return "a block device";
+  if (S_ISFIFO(mode)) return "a fifo";
+  if (S_ISSOCK(mode)) return "a socket";
+  if (S_ISREG(mode)) return "a regular file";
+  return "not a regular file";
+}
 
 void check_input_file(const std::string& path) { checked_mode(path); }
 

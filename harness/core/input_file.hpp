@@ -14,6 +14,9 @@ inline constexpr std::size_t kMaxPipeBytes = std::size_t{1} << 30;
 /// unreadable, not a regular file (a fifo is allowed), or a pipe longer than kMaxPipeBytes.
 std::string read_input_file(const std::string& path);
 
+/// What a file of this type (st_mode) is, as messages say it: "a directory", "a fifo", ...
+std::string file_kind(unsigned mode);
+
 /// The same checks without reading: InputError(path, ...) unless `path` names a readable
 /// regular file or a fifo. Used before a reader that opens the file itself (gzip).
 void check_input_file(const std::string& path);

@@ -9,13 +9,12 @@
 #include <cerrno>
 #include <cstring>
 #include <filesystem>
-#include <fstream>
-#include <sstream>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
 #include "stepgate/core/error.hpp"
+#include "stepgate/core/input_file.hpp"
 
 namespace stepgate {
 
@@ -25,16 +24,6 @@ namespace {
 
 constexpr const char* kManifest = ".stepgate-commit";
 constexpr int kMaxLinks = 40;  // as the kernel's own limit on nested symlinks
-
-std::string kind_of(mode_t mode) {
-  if (S_ISDIR(mode)) return "a directory";
-  if (S_ISCHR(mode)) return "a character device";
-  if (S_ISBLK(mode)) return "a block device";
-  if (S_ISFIFO(mode)) return "a fifo";
-  if (S_ISSOCK(mode)) return "a socket";
-  if (S_ISREG(mode)) return "a regular file";
-  return "not a regular file";
-}
 
 std::string place(const std::string& where, const std::string& path) {
   return where.empty() ? path : where + " " + path;
@@ -95,7 +84,7 @@ std::string output_target(const std::string& path, const std::string& where) {
       const fs::path parent = p.parent_path();
       struct stat pst {};
       if (!parent.empty() && ::stat(parent.c_str(), &pst) == 0 && !S_ISDIR(pst.st_mode))
-        throw InputError(place(where, path), fmt::format("its folder {} is {}, not a folder", parent.string(), kind_of(pst.st_mode)));
+        throw InputError(place(where, path), fmt::format("its folder {} is {}, not a folder", parent.string(), file_kind(pst.st_mode)));
       return p.string();
     }
     if (S_ISLNK(st.st_mode)) {
@@ -108,7 +97,7 @@ std::string output_target(const std::string& path, const std::string& where) {
     if (S_ISREG(st.st_mode)) return p.string();
     throw InputError(place(where, path), fmt::format("{}{}; an output must be a regular file or not exist yet",
                                                      p.string() == path ? "is " : "links to " + p.string() + ", ",
-                                                     kind_of(st.st_mode)));
+                                                     file_kind(st.st_mode)));
   }
   throw InputError(place(where, path), "too many levels of symbolic links");
 }
@@ -171,10 +160,8 @@ std::vector<std::string> OutputSet::commit() {
 
 void recover_output_folder(const std::string& dir) {
   const fs::path manifest = fs::path(dir) / kManifest;
-  if (std::ifstream in(manifest); in) {
-    std::stringstream text;
-    text << in.rdbuf();
-    const nlohmann::json j = nlohmann::json::parse(text.str(), nullptr, false);
+  if (::access(manifest.c_str(), F_OK) == 0) {
+    const nlohmann::json j = nlohmann::json::parse(read_input_file(manifest.string()), nullptr, false);
     if (j.is_object() && j.contains("renames") && j["renames"].is_array())
       for (const nlohmann::json& r : j["renames"])
         if (r.is_array() && r.size() == 2 && r[0].is_string() && r[1].is_string()) {
@@ -198,7 +185,7 @@ OutputFolder::OutputFolder(const std::string& dir, const std::string& where) : d
   std::error_code ec;
   const std::string at = place(where, dir_);
   if (struct stat st {}; ::stat(dir_.c_str(), &st) == 0 && !S_ISDIR(st.st_mode))
-    throw InputError(at, fmt::format("is {}; expected a folder for the outputs", kind_of(st.st_mode)));
+    throw InputError(at, fmt::format("is {}; expected a folder for the outputs", file_kind(st.st_mode)));
   fs::create_directories(dir_, ec);
   if (ec) throw InputError(at, fmt::format("cannot create the output folder: {}", ec.message()));
   fd_ = ::open(dir_.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
