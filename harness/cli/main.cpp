@@ -8,6 +8,7 @@
 
 #include "stepgate/cli/commands.hpp"
 #include "stepgate/core/error.hpp"
+#include "stepgate/core/quote_text.hpp"
 
 namespace {
 
@@ -63,13 +64,13 @@ int main(int argc, char** argv) {
     if (command == "merge") return cli::merge_command(args);
     throw InputError("command line", fmt::format("unknown command '{}'\n{}", command, kUsage));
   } catch (const InputError& e) {
-    std::cerr << "stepgate: error: " << e.what() << "\n";
+    std::cerr << "stepgate: error: " << terminal_text(e.text()) << "\n";
     return kExitBadInput;
   } catch (const ToolError& e) {
-    std::cerr << "stepgate: failure: " << e.what() << "\n";
+    std::cerr << "stepgate: failure: " << terminal_text(e.what()) << "\n";
     return kExitToolFailure;
   } catch (const std::exception& e) {
-    std::cerr << "stepgate: failure: " << e.what() << "\n";
+    std::cerr << "stepgate: failure: " << terminal_text(e.what()) << "\n";
     return kExitToolFailure;
   }
 }

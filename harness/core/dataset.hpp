@@ -17,6 +17,20 @@ struct Dataset {
   std::string target;                 ///< target column name
   FeatureMap map;                     ///< scaling applied to X (identity when none)
   std::string sha256;                 ///< hash of the source file's bytes ("" for generated data)
+  // Where each row's target was read, for messages about a label (row_location). CSV: the
+  // file and the 1-based line where each row starts; IDX: the labels file, row i being the
+  // byte at target_first_byte + i; generated data: neither.
+  std::string target_file;
+  std::vector<long> target_lines;
+  long target_first_byte = -1;
+
+  /// "file:line" (CSV), "file:byte N" (IDX) or "row i+1 of data set 'name'" (generated).
+  std::string row_location(Index i) const {
+    if (!target_lines.empty() && i < static_cast<Index>(target_lines.size()))
+      return target_file + ":" + std::to_string(target_lines[static_cast<std::size_t>(i)]);
+    if (target_first_byte >= 0) return target_file + ":byte " + std::to_string(target_first_byte + i);
+    return "row " + std::to_string(i + 1) + " of data set '" + name + "'";
+  }
 
   Index rows() const { return X.rows(); }
   Index cols() const { return X.cols(); }

@@ -15,6 +15,8 @@ class InputError : public std::runtime_error {
         where_(std::move(where)), message_(message) {}
   const std::string& where() const { return where_; }
   const std::string& message() const { return message_; }
+  /// what() as a std::string: unlike what(), not cut short by a NUL inside a quoted value.
+  std::string text() const { return where_.empty() ? message_ : where_ + ": " + message_; }
 
  private:
   std::string where_;

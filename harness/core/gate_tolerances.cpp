@@ -1,5 +1,7 @@
 #include "stepgate/core/gate_tolerances.hpp"
 
+#include <limits>
+
 namespace stepgate {
 
 std::string_view to_string(Severity s) {
@@ -9,6 +11,42 @@ std::string_view to_string(Severity s) {
     case Severity::fail: return "fail";
   }
   return "fail";
+}
+
+const std::array<ToleranceField, 8>& tolerance_fields() {
+  constexpr double kNoLimit = std::numeric_limits<double>::max();
+  using G = GateTolerances;
+  static const std::array<ToleranceField, 8> fields = {{
+      {"edge_moved", &G::edge_moved, 0.0, kNoLimit, "a number >= 0"},
+      {"floor_moved", &G::floor_moved, 0.0, kNoLimit, "a number >= 0"},
+      {"best_moved_factor", &G::best_moved_factor, 1.0, kNoLimit, "a number >= 1"},
+      {"min_headroom", &G::min_headroom, 1.0, kNoLimit, "a number >= 1"},
+      {"iterations_grew", &G::iterations_grew, 0.0, kNoLimit, "a number >= 0"},
+      {"min_reference_digits", &G::min_reference_digits, 0.0, 17.0, "a number in [0, 17]"},
+      {"theory_factor", &G::theory_factor, 1.0, kNoLimit, "a number >= 1"},
+      {"theory_slack", &G::theory_slack, 0.0, 1.0, "a number in [0, 1]"},
+  }};
+  return fields;
+}
+
+const std::array<SeverityField, 3>& severity_fields() {
+  using G = GateTolerances;
+  static const std::array<SeverityField, 3> fields = {{
+      {"case_added", &G::case_added},
+      {"case_missing", &G::case_missing},
+      {"data_changed", &G::data_changed},
+  }};
+  return fields;
+}
+
+const std::vector<std::string>& gate_keys() {
+  static const std::vector<std::string> keys = [] {
+    std::vector<std::string> out;
+    for (const ToleranceField& f : tolerance_fields()) out.emplace_back(f.key);
+    for (const SeverityField& f : severity_fields()) out.emplace_back(f.key);
+    return out;
+  }();
+  return keys;
 }
 
 }  // namespace stepgate

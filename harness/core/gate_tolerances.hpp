@@ -2,7 +2,10 @@
 // problem. Each default is chosen so that a re-run with the same seeds passes and a change a
 // practitioner would care about fails; gate/ documents the rules that use them.
 #pragma once
+#include <array>
+#include <string>
 #include <string_view>
+#include <vector>
 
 namespace stepgate {
 
@@ -38,5 +41,28 @@ struct GateTolerances {
   Severity case_missing = Severity::fail;  ///< a case in the baseline but not in the results
   Severity data_changed = Severity::warn;  ///< data or suite hash differs (always shown)
 };
+
+/// One numeric tolerance as every reader and writer sees it (suite `gate` sections, results,
+/// baselines): its key, its member, and the closed range [min, max] it must lie in.
+struct ToleranceField {
+  std::string_view key;
+  double GateTolerances::*member;
+  double min, max;
+  std::string_view expected;  ///< the range in words, for "expected ..., found ..."
+  bool admits(double v) const { return v >= min && v <= max; }  // false for NaN
+};
+
+/// One severity key ("pass", "warn" or "fail").
+struct SeverityField {
+  std::string_view key;
+  Severity GateTolerances::*member;
+};
+
+/// The numeric tolerances and the severities, in the order results.json writes them: the one
+/// declaration of their keys and ranges.
+const std::array<ToleranceField, 8>& tolerance_fields();
+const std::array<SeverityField, 3>& severity_fields();
+/// Every key of a `gate` object, numeric then severities.
+const std::vector<std::string>& gate_keys();
 
 }  // namespace stepgate

@@ -22,6 +22,11 @@ bool number_char(char c) { return (c >= '0' && c <= '9') || c == '-' || c == '+'
 
 // One pass over the text, skipping strings (with their escapes).
 std::optional<Violation> first_violation(std::string_view text) {
+  // The parser takes a NUL byte for the end of the input and would ignore what follows it;
+  // JSON text never holds one (inside a string it is written \u0000).
+  if (const std::size_t nul = text.find('\0'); nul != std::string_view::npos)
+    return Violation{nul, "found a NUL byte (0x00); expected JSON text, which never contains one (inside a "
+                          "string it is written \\u0000)"};
   int depth = 0;
   for (std::size_t i = 0; i < text.size(); ++i) {
     const char c = text[i];

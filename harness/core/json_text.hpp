@@ -1,7 +1,8 @@
 // Checks on JSON text before it is parsed, shared by every JSON reader (suite, reference,
 // results, baseline, journal, a program's output lines): nlohmann parses deep nesting, but
-// deep documents then exhaust the stack when values are copied or walked, and a number beyond
-// a double's range throws without a position. Both become InputError("file:line:column").
+// deep documents then exhaust the stack when values are copied or walked, a number beyond a
+// double's range throws without a position, and a NUL byte ends the parse early.
+// Each becomes InputError("file:line:column").
 #pragma once
 #include <cstddef>
 #include <string>
@@ -15,8 +16,9 @@ inline constexpr int kMaxJsonDepth = 200;
 /// "line:column" (1-based; the column counts bytes) of the byte at `offset` (0-based).
 std::string text_position(std::string_view text, std::size_t offset);
 
-/// Throws InputError(file + ":line:column", why) at the first container nested deeper than
-/// kMaxJsonDepth, or the first number whose magnitude does not fit a double (1e400). Text that
+/// Throws InputError(file + ":line:column", why) at the first NUL byte (which the parser takes
+/// for the end of the text), the first container nested deeper than kMaxJsonDepth, or the
+/// first number whose magnitude does not fit a double (1e400). Text that
 /// is not JSON is left for the parser to report.
 void check_json_limits(std::string_view text, const std::string& file);
 

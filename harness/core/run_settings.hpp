@@ -4,8 +4,12 @@
 
 namespace stepgate {
 
+/// Largest budget a suite may set: 10^9 iterations is days of work for one run of the
+/// smallest problem; more is a typing error, not a plan (the suite reader says "too large").
+inline constexpr long kMaxBudget = 1'000'000'000;
+
 struct RunSettings {
-  long budget = 10000;  ///< iterations per run (>= 1). 1e4: enough for gd at its best rate on a
+  long budget = 10000;  ///< iterations per run (1..kMaxBudget). 1e4: enough for gd at its best rate on a
                         ///< problem with condition number up to ~1e3 to reach a 1e-6 gap
   long eval_every = 0;  ///< iterations between evaluations; 0 = every iteration for full batch,
                         ///< once per epoch for mini-batch

@@ -6,7 +6,7 @@
 
 #include "stepgate/core/error.hpp"
 #include "stepgate/data/file_io.hpp"
-#include "stepgate/data/quote_text.hpp"
+#include "stepgate/core/quote_text.hpp"
 #include "stepgate/data/sha256.hpp"
 
 namespace stepgate {

@@ -6,7 +6,7 @@
 
 #include "stepgate/core/error.hpp"
 #include "stepgate/data/csv.hpp"
-#include "stepgate/data/quote_text.hpp"
+#include "stepgate/core/quote_text.hpp"
 
 namespace stepgate {
 namespace {
@@ -99,6 +99,8 @@ Dataset table_to_dataset(const CsvTable& table, const std::string& target,
   data.target = target;
   data.map = FeatureMap::identity(d);
   data.sha256 = table.sha256;
+  data.target_file = table.path;
+  data.target_lines = table.row_line;
   return data;
 }
 

@@ -107,6 +107,8 @@ Dataset load_idx_dataset(const std::string& images_path, const std::string& labe
     for (Index c = 0; c < width; ++c)
       data.features.push_back("px_" + std::to_string(r) + "_" + std::to_string(c));
   data.target = "label";
+  data.target_file = labels_path;
+  data.target_first_byte = 8;  // after the magic number and the one dimension
   data.map = FeatureMap::identity(d);
   data.sha256 = sha256_hex(read_raw_file(images_path) + read_raw_file(labels_path));
   return data;

@@ -6,7 +6,7 @@
 #include <random>
 
 #include "stepgate/core/error.hpp"
-#include "stepgate/data/quote_text.hpp"
+#include "stepgate/core/quote_text.hpp"
 #include "stepgate/data/random_draws.hpp"
 
 namespace stepgate {

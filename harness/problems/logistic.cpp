@@ -7,6 +7,7 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/core/error.hpp"
 #include "stepgate/problems/linear_common.hpp"
 #include "stepgate/problems/linear_models.hpp"
 #include "stepgate/problems/newton.hpp"
@@ -32,8 +33,9 @@ class Logistic final : public detail::LinearModel {
   Logistic(const Dataset& data, const LinearModelOptions& opt) : LinearModel(data, opt, 1) {
     for (Index i = 0; i < y_.size(); ++i)
       if (y_[i] != 0.0 && y_[i] != 1.0)
-        throw std::invalid_argument(fmt::format("logistic: data set '{}': label {} in row {} is not 0 or 1",
-                                                data.name, y_[i], i));
+        throw InputError(data.row_location(i),
+                         fmt::format("found the label {} in column '{}' of data set '{}'; expected 0 or 1, "
+                                     "as a logistic problem needs", y_[i], data.target, data.name));
   }
 
   std::string_view kind() const override { return "logistic"; }

@@ -7,6 +7,7 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/core/error.hpp"
 #include "stepgate/problems/linear_common.hpp"
 #include "stepgate/problems/linear_models.hpp"
 #include "stepgate/problems/newton.hpp"
@@ -19,9 +20,10 @@ Index class_count(const Dataset& data, Index classes) {
   for (Index i = 0; i < data.y.size(); ++i) {
     const double c = data.y[i];
     if (!(c >= 0.0) || c != std::floor(c) || (classes > 0 && c >= double(classes)))
-      throw std::invalid_argument(fmt::format("softmax: data set '{}': label {} in row {} is not a class id "
-                                              "(a whole number >= 0{})", data.name, c, i,
-                                              classes > 0 ? fmt::format(" and < {}", classes) : ""));
+      throw InputError(data.row_location(i),
+                       fmt::format("found the label {} in column '{}' of data set '{}'; expected a class id "
+                                   "(a whole number >= 0{}), as a softmax problem needs", c, data.target,
+                                   data.name, classes > 0 ? fmt::format(" and < {}", classes) : ""));
     top = std::max(top, Index(c));
   }
   return classes > 0 ? classes : top + 1;

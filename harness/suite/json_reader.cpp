@@ -8,6 +8,8 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/core/quote_text.hpp"
+
 #include "stepgate/core/error.hpp"
 #include "stepgate/core/json_text.hpp"
 
@@ -174,15 +176,15 @@ long Node::integer() const {
   if (value_->is_number_unsigned()) {
     const auto u = value_->get<std::uint64_t>();
     if (u > static_cast<std::uint64_t>(std::numeric_limits<long>::max()))
-      expected("a smaller whole number");
+      expected("a whole number below 9.2e18 (this one is too large)");
     return static_cast<long>(u);
   }
   if (value_->is_number_integer()) return value_->get<long>();
   const double v =
       value_->is_number() ? value_->get<double>() : std::numeric_limits<double>::quiet_NaN();
   // 1e4 is a whole number written the short way; 2.5 is not.
-  if (!(std::isfinite(v) && v == std::floor(v) && std::fabs(v) < 9.0e15))
-    expected("a whole number");
+  if (!(std::isfinite(v) && v == std::floor(v))) expected("a whole number");
+  if (std::fabs(v) >= 9.0e15) expected("a whole number below 9e15 (this one is too large)");
   return static_cast<long>(v);
 }
 
@@ -291,8 +293,8 @@ bool is_valid_name(std::string_view name) {
 void check_name(const Node& node, const std::string& name, std::string_view what) {
   if (!is_valid_name(name))
     node.fail(
-        fmt::format("found {} '{}'; expected letters, digits, '.', '_' or '-' only (at least one)",
-                    what, name));
+        fmt::format("found {} {}; expected letters, digits, '.', '_' or '-' only (at least one)",
+                    what, quote_text(name, 200)));
 }
 
 }  // namespace stepgate::suite_detail

@@ -18,10 +18,6 @@ const std::vector<std::string> kRateKeys = {"grid",          "fixed",        "pr
 const std::vector<std::string> kOutcomeKeys = {
     "criterion", "tol", "target", "plateau_window", "blowup_factor", "overshoot_limit", "hold",
     "confirm_factor", "confirm_min", "probe"};
-const std::vector<std::string> kGateKeys = {
-    "edge_moved",           "floor_moved",   "best_moved_factor", "min_headroom", "iterations_grew",
-    "min_reference_digits", "theory_factor", "theory_slack", "case_added",        "case_missing", "data_changed"};
-
 void check_levels(const Layers& layers, const std::vector<std::string>& keys) {
   for (const Node& level : layers.levels) ObjectNode(level, keys);
 }
@@ -191,29 +187,12 @@ Severity severity(const Node& node) {
 }  // namespace
 
 GateTolerances read_gate(const Layers& gate) {
-  check_levels(gate, kGateKeys);
+  check_levels(gate, gate_keys());
   GateTolerances g;
-  const auto non_negative = [](double v) { return v >= 0; };
-  const auto at_least_one = [](double v) { return v >= 1; };
-  if (auto n = gate.find("edge_moved")) g.edge_moved = n->number_if(non_negative, "a number >= 0");
-  if (auto n = gate.find("floor_moved"))
-    g.floor_moved = n->number_if(non_negative, "a number >= 0");
-  if (auto n = gate.find("best_moved_factor"))
-    g.best_moved_factor = n->number_if(at_least_one, "a number >= 1");
-  if (auto n = gate.find("min_headroom"))
-    g.min_headroom = n->number_if(at_least_one, "a number >= 1");
-  if (auto n = gate.find("iterations_grew"))
-    g.iterations_grew = n->number_if(non_negative, "a number >= 0");
-  if (auto n = gate.find("min_reference_digits"))
-    g.min_reference_digits =
-        n->number_if([](double v) { return v >= 0 && v <= 17; }, "a number in [0, 17]");
-  if (auto n = gate.find("theory_factor"))
-    g.theory_factor = n->number_if(at_least_one, "a number >= 1");
-  if (auto n = gate.find("theory_slack"))
-    g.theory_slack = n->number_if([](double v) { return v >= 0 && v <= 1; }, "a number in [0, 1]");
-  if (auto n = gate.find("case_added")) g.case_added = severity(*n);
-  if (auto n = gate.find("case_missing")) g.case_missing = severity(*n);
-  if (auto n = gate.find("data_changed")) g.data_changed = severity(*n);
+  for (const ToleranceField& t : tolerance_fields())
+    if (auto n = gate.find(t.key)) g.*t.member = n->number_if([&](double v) { return t.admits(v); }, t.expected);
+  for (const SeverityField& s : severity_fields())
+    if (auto n = gate.find(s.key)) g.*s.member = severity(*n);
   return g;
 }
 
@@ -236,7 +215,8 @@ void read_settings(const Layers& settings, const Layers& gate, Suite& suite, Pro
   else
     p.seeds = {1, 2, 3};
   if (auto n = settings.find("budget"))
-    p.run.budget = n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
+    p.run.budget = n->integer_if([](long v) { return v >= 1 && v <= kMaxBudget; },
+                                 "a whole number in 1..1000000000 (a larger budget is too large to run)");
   if (auto n = settings.find("eval_every"))
     p.run.eval_every =
         n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0 (0 = automatic)");

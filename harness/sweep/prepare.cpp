@@ -158,7 +158,16 @@ PreparedSweep prepare_problems(const Suite& suite, const Plan& plan) {
         sweep.datasets.push_back(describe(spec, d));
       }
       Dataset data = raw.at(p.dataset);
-      apply_scaling(data, suite.scalings.at(c.scaling));
+      try {
+        apply_scaling(data, suite.scalings.at(c.scaling));
+      } catch (const InputError& e) {
+        // The scaling's own message names the column; the place is the suite's scaling entry,
+        // with the data file and the problem that asked for it.
+        const DatasetSpec& spec = suite.datasets.at(p.dataset);
+        throw InputError(suite.path + "#/scalings/" + c.scaling,
+                         fmt::format("{} ({}; data from {}; used by {})", e.message(), e.where(),
+                                     spec.path.empty() ? "the suite's generator" : spec.path, where));
+      }
       prepared.problem = build(p, &data, where);
       prepared.map = data.map;
       prepared.dataset = p.dataset;

@@ -46,23 +46,9 @@ TMP_NAME = re.compile(r"\.tmp|\.staged-|^\.stepgate-commit$")
 # ---------------------------------------------------------------------------------------------
 # Starting files, copied from the source tree and mutated.
 
-# Defects this catalogue found that are not fixed yet (issue 9, carried to the next session).
+# Defects this catalogue found that are not fixed yet (none at present; add a name here to carry one).
 # Each still runs and prints OPEN with what is wrong; none may crash or hang.
-KNOWN_OPEN = {
-    "nul-in-problem-name-keeps-the-message",
-    "logistic-label-error-names-the-csv-line",
-    "softmax-label-error-names-the-csv-line",
-    "idx-label-beyond-classes",
-    "constant-column-names-file-and-pointer",
-    "budget-1e18-as-integer-too-large",
-    "budget-1e18-as-float-too-large",
-    "suite-nul-then-junk-after-the-document",
-    "suite-nul-inside-the-document",
-    "results-nul-then-junk",
-    "baseline-nul-then-junk",
-    "results-gate-tolerance-null",
-    "results-gate-tolerance-negative",
-}
+KNOWN_OPEN: set[str] = set()
 
 
 def src_json(rel):
