@@ -7,8 +7,8 @@
 #include <vector>
 
 #include "stepgate/cli/commands.hpp"
+#include "stepgate/core/visible_output.hpp"
 #include "stepgate/core/error.hpp"
-#include "stepgate/core/quote_text.hpp"
 
 namespace {
 
@@ -39,6 +39,7 @@ exit codes: 0 pass, 1 verdict fail, 2 bad input or usage, 3 failure of the tool 
 
 int main(int argc, char** argv) {
   using namespace stepgate;
+  const VisibleOutput visible;  // no raw control byte from a file reaches the terminal
   const std::vector<std::string> all(argv + 1, argv + argc);
   if (all.empty()) {
     std::cerr << kUsage << "\n";
@@ -64,13 +65,13 @@ int main(int argc, char** argv) {
     if (command == "merge") return cli::merge_command(args);
     throw InputError("command line", fmt::format("unknown command '{}'\n{}", command, kUsage));
   } catch (const InputError& e) {
-    std::cerr << "stepgate: error: " << terminal_text(e.text()) << "\n";
+    std::cerr << "stepgate: error: " << e.text() << "\n";
     return kExitBadInput;
   } catch (const ToolError& e) {
-    std::cerr << "stepgate: failure: " << terminal_text(e.what()) << "\n";
+    std::cerr << "stepgate: failure: " << e.what() << "\n";
     return kExitToolFailure;
   } catch (const std::exception& e) {
-    std::cerr << "stepgate: failure: " << terminal_text(e.what()) << "\n";
+    std::cerr << "stepgate: failure: " << e.what() << "\n";
     return kExitToolFailure;
   }
 }

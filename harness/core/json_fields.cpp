@@ -68,4 +68,11 @@ std::string JsonField::string() const {
   return j.get<std::string>();
 }
 
+std::string JsonField::sha256() const {
+  std::string s = string();
+  const bool hex = s.size() == 64 && s.find_first_not_of("0123456789abcdef") == std::string::npos;
+  if (!s.empty() && !hex) fail("a SHA-256 digest (64 lower-case hex digits) or \"\"");
+  return s;
+}
+
 }  // namespace stepgate

@@ -37,6 +37,9 @@ class JsonField {
   /// A number, or NaN for null.
   double number_or_missing() const;
   std::string string() const;
+  /// A SHA-256 digest as results and baselines write it: 64 lower-case hex digits, or "" for
+  /// none. Anything else is a damaged file (and would reach the reports as free text).
+  std::string sha256() const;
   /// An integer (either JSON integer form) that fits in I; floats such as 3.0 are refused.
   template <class I>
   I integer() const;

@@ -24,25 +24,22 @@ inline std::string quote_text(std::string_view text, std::size_t limit = 40) {
   return out;
 }
 
-/// A message for the terminal: control bytes other than line feed and tab (NUL, ESC, CR,
-/// DEL, ...) shown as \xNN, so that text from a file can neither cut the message short nor
-/// drive the terminal. UTF-8 text passes unchanged.
-inline std::string terminal_text(std::string_view text) {
-  std::string out;
-  out.reserve(text.size());
-  for (const char ch : text) {
-    const unsigned char c = static_cast<unsigned char>(ch);
-    if (c >= 0x20 && c != 0x7f) {
-      out += ch;
-    } else if (c == '\n' || c == '\t') {
-      out += ch;
-    } else {
-      char escaped[5];
-      std::snprintf(escaped, sizeof escaped, "\\x%02x", c);
-      out += escaped;
-    }
+/// True for a control byte (below 0x20, or DEL) other than those listed in `keep`.
+inline bool is_control_byte(char ch, std::string_view keep = {}) {
+  const unsigned char c = static_cast<unsigned char>(ch);
+  return (c < 0x20 || c == 0x7f) && keep.find(ch) == std::string_view::npos;
+}
+
+/// Appends ch, or "\xNN" for a control byte not in `keep`: visible text that can neither cut a
+/// message short (NUL) nor drive a terminal (ESC, CR) nor break an output format.
+inline void append_visible(std::string& out, char ch, std::string_view keep = {}) {
+  if (!is_control_byte(ch, keep)) {
+    out += ch;
+    return;
   }
-  return out;
+  char escaped[5];
+  std::snprintf(escaped, sizeof escaped, "\\x%02x", static_cast<unsigned char>(ch));
+  out += escaped;
 }
 
 }  // namespace stepgate

@@ -147,7 +147,7 @@ CaseResult read_case(const JsonField& f) {
   const JsonField opt = f["optimizer"];
   c.optimizer = optimizer_spec_from_json(opt.value(), opt.path(), opt.pointer());
   c.dataset = f["dataset"].string();
-  c.data_sha256 = f["data_sha256"].string();
+  c.data_sha256 = f["data_sha256"].sha256();
   c.optimum_cost = f["optimum_cost"].number_or_missing();
   c.error = f["error"].string();
   if (f.has("gate")) c.gate = gate_tolerances_from_json(f["gate"]);
@@ -169,7 +169,7 @@ Results results_from_json(const json& j, const std::string& path) {
   Results r;
   r.format = kResultsFormat;
   const JsonField suite = f["suite"];
-  r.suite = {suite["name"].string(), suite["path"].string(), suite["sha256"].string()};
+  r.suite = {suite["name"].string(), suite["path"].string(), suite["sha256"].sha256()};
   const JsonField tool = f["tool"];
   r.tool = {tool["version"].string(), tool["compiler"].string(), tool["build"].string()};
   const JsonField host = f["host"];
@@ -193,7 +193,7 @@ Results results_from_json(const json& j, const std::string& path) {
       DatasetInfo info;
       info.name = d["name"].string();
       info.source = d["source"].string();
-      info.sha256 = d["sha256"].string();
+      info.sha256 = d["sha256"].sha256();
       info.rows = d["rows"].integer<long>();
       info.columns = d["columns"].integer<long>();
       if (d.has("produce") && !d["produce"].is_null()) {

@@ -82,7 +82,7 @@ Baseline baseline_from_json(const json& j, const std::string& path) {
   const JsonField format = f["format"];
   if (format.string() != kBaselineFormat) format.fail(std::string("\"") + kBaselineFormat + "\"");
   const JsonField suite = f["suite"];
-  b.suite = {suite["name"].string(), suite["path"].string(), suite["sha256"].string()};
+  b.suite = {suite["name"].string(), suite["path"].string(), suite["sha256"].sha256()};
   const JsonField tool = f["tool"];
   b.tool = {tool["version"].string(), tool["compiler"].string(), tool["build"].string()};
   const JsonField platform = f["platform"];
@@ -98,7 +98,7 @@ Baseline baseline_from_json(const json& j, const std::string& path) {
     x.id = c["id"].string();
     for (const BaselineCase& earlier : b.cases)
       if (earlier.id == x.id) c["id"].fail(fmt::format("each case id once (the case '{}' is given twice)", x.id));
-    x.data_sha256 = c["data_sha256"].string();
+    x.data_sha256 = c["data_sha256"].sha256();
     x.floor = c["floor"].number_or_missing();
     x.edge = c["edge"].number_or_missing();
     const JsonField bracket = c["edge_bracket"];

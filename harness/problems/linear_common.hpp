@@ -58,4 +58,9 @@ class LinearModel : public Problem {
   mutable double gram_lambda_max_ = 0.0;
 };
 
+/// " in column 'y'" for a message about a label, or "" when the target column has no name.
+inline std::string target_column(const Dataset& data) {
+  return data.target.empty() ? std::string() : " in column '" + data.target + "'";
+}
+
 }  // namespace stepgate::detail

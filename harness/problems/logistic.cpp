@@ -34,8 +34,8 @@ class Logistic final : public detail::LinearModel {
     for (Index i = 0; i < y_.size(); ++i)
       if (y_[i] != 0.0 && y_[i] != 1.0)
         throw InputError(data.row_location(i),
-                         fmt::format("found the label {} in column '{}' of data set '{}'; expected 0 or 1, "
-                                     "as a logistic problem needs", y_[i], data.target, data.name));
+                         fmt::format("found the label {}{} of data set '{}'; expected 0 or 1, "
+                                     "as a logistic problem needs", y_[i], detail::target_column(data), data.name));
   }
 
   std::string_view kind() const override { return "logistic"; }

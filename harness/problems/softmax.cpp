@@ -21,8 +21,8 @@ Index class_count(const Dataset& data, Index classes) {
     const double c = data.y[i];
     if (!(c >= 0.0) || c != std::floor(c) || (classes > 0 && c >= double(classes)))
       throw InputError(data.row_location(i),
-                       fmt::format("found the label {} in column '{}' of data set '{}'; expected a class id "
-                                   "(a whole number >= 0{}), as a softmax problem needs", c, data.target,
+                       fmt::format("found the label {}{} of data set '{}'; expected a class id "
+                                   "(a whole number >= 0{}), as a softmax problem needs", c, detail::target_column(data),
                                    data.name, classes > 0 ? fmt::format(" and < {}", classes) : ""));
     top = std::max(top, Index(c));
   }

@@ -1,5 +1,7 @@
 #include "stepgate/report/html_escape.hpp"
 
+#include "stepgate/core/quote_text.hpp"
+
 namespace stepgate {
 
 std::string html_escape(std::string_view s) {
@@ -12,7 +14,7 @@ std::string html_escape(std::string_view s) {
       case '>': out += "&gt;"; break;
       case '"': out += "&quot;"; break;
       case '\'': out += "&#39;"; break;
-      default: out += c;
+      default: append_visible(out, c, "\t\n");  // a control byte as visible \xNN
     }
   }
   return out;

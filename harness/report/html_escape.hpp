@@ -7,8 +7,8 @@
 namespace stepgate {
 
 /// Replaces & < > " ' by their character references (&amp; &lt; &gt; &quot; &#39;), so the
-/// result is safe both as element text and inside a quoted attribute value. Other bytes (UTF-8
-/// included) pass unchanged.
+/// result is safe both as element text and inside a quoted attribute value. Control bytes other
+/// than tab and newline become the visible text \xNN; other bytes (UTF-8 included) pass unchanged.
 std::string html_escape(std::string_view s);
 
 }  // namespace stepgate

@@ -20,6 +20,7 @@
 #include <fmt/format.h>
 #include <pugixml.hpp>
 
+#include "stepgate/core/quote_text.hpp"
 #include "stepgate/report/reporter.hpp"
 
 namespace stepgate {
@@ -29,11 +30,9 @@ namespace {
 // XML 1.0 cannot carry control characters other than tab, newline and carriage return, not
 // even as character references; pugixml escapes markup but passes these through.
 std::string xml_safe(const std::string& s) {
-  std::string out = s;
-  for (char& ch : out) {
-    const auto u = static_cast<unsigned char>(ch);
-    if (u < 0x20 && ch != '\t' && ch != '\n' && ch != '\r') ch = '?';
-  }
+  std::string out;
+  out.reserve(s.size());
+  for (const char ch : s) append_visible(out, ch, "\t\n\r");  // others as visible \xNN
   return out;
 }
 

@@ -8,6 +8,8 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/core/quote_text.hpp"
+
 #include "stepgate/report/reporter.hpp"
 
 namespace stepgate {
@@ -31,7 +33,8 @@ std::string edge_with_bracket(double edge, double lo, double hi) {
 }
 
 // Suite strings on one line (a newline would end a table row or a list item), with & and <
-// as character references so that a name cannot open raw HTML (or an entity) in the comment.
+// as character references so that a name cannot open raw HTML (or an entity) in the comment,
+// and other control bytes as visible \\xNN.
 std::string text(const std::string& s) {
   std::string out;
   out.reserve(s.size());
@@ -40,7 +43,7 @@ std::string text(const std::string& s) {
     if (s[i] == '\n' || s[i] == '\r') out += ' ';
     else if (s[i] == '&') out += "&amp;";
     else if (s[i] == '<') out += "&lt;";
-    else out += s[i];
+    else append_visible(out, s[i]);  // any other control byte as visible \xNN
   }
   return out;
 }
@@ -56,7 +59,10 @@ std::string cell(const std::string& s) {
 // Inside a code span (hashes): no references there, only one line.
 std::string code(const std::string& s) {
   std::string out;
-  for (char ch : s) out += ch == '\n' || ch == '\r' || ch == '`' ? ' ' : ch;
+  for (char ch : s) {
+    if (ch == '\n' || ch == '\r' || ch == '`') out += ' ';
+    else append_visible(out, ch);
+  }
   return "`" + out + "`";
 }
 

@@ -16,8 +16,7 @@ void read_process(const ObjectNode& o, CommandSpec& spec, std::string_view role)
   const std::filesystem::path suite_dir = std::filesystem::path(o.node().file()).parent_path();
   spec.cwd = suite_dir.empty() ? "." : suite_dir.string();
   if (auto n = o.find("cwd")) {
-    const std::filesystem::path cwd(n->string());
-    spec.cwd = (cwd.is_absolute() ? cwd : suite_dir / cwd).lexically_normal().string();
+    spec.cwd = resolve_path(o.node(), n->string());
     if (!std::filesystem::is_directory(spec.cwd))
       n->fail(fmt::format("found \"{}\", which is not a folder (relative to the suite file: {}); expected the "
                           "working directory of the {}",

@@ -89,11 +89,19 @@ const std::vector<std::string>& suite_test_function_names() {
 namespace suite_detail {
 
 std::string resolve_path(const Node& document_node, const std::string& written) {
-  const std::filesystem::path p(written);
+  namespace fs = std::filesystem;
+  const fs::path p(written);
   if (p.empty() || p.is_absolute()) return written;
-  return (std::filesystem::path(document_node.file()).parent_path() / p)
-      .lexically_normal()
-      .string();
+  const fs::path joined = fs::path(document_node.file()).parent_path() / p;
+  // As the kernel resolves it: "lnk/../data" through a symlinked folder lnk is not "data", so
+  // the symlinks of the existing part are followed before ".." is applied (a purely lexical
+  // normal form could name, and open, another file). Shown relative to the working folder
+  // where it lies below it (as the user typed the suite's path), else absolute.
+  std::error_code ec;
+  const fs::path resolved = fs::weakly_canonical(joined, ec);
+  if (ec) return joined.lexically_normal().string();
+  const fs::path shown = fs::proximate(resolved, ec);
+  return ec || shown.empty() || *shown.begin() == ".." ? resolved.string() : shown.string();
 }
 
 void require_file(const Node& node, const std::string& path, std::string_view what) {

@@ -10,7 +10,9 @@
 
 namespace stepgate::suite_detail {
 
-/// A path as written in a document, resolved against the document's folder.
+/// A path as written in a document, resolved against the document's folder, its symlinks
+/// followed (weakly_canonical); relative to the working folder when below it, else absolute.
+/// Absolute paths are returned as written.
 std::string resolve_path(const Node& document_node, const std::string& written);
 /// Fails at `node` unless `path` names an existing regular file.
 void require_file(const Node& node, const std::string& path, std::string_view what);

@@ -994,6 +994,19 @@ def catalogue():
               files=plant_files(csv=huge_target()), allow=["out/*"], check=not_finite_at_start,
               timeout=60))
 
+    # ---- paths in messages are the files opened: symlinks followed before ".." -----------------
+    s = plant_suite()
+    s["datasets"]["plant"]["csv"] = "../plant.csv"
+
+    def linked_suite_folder(ctx):
+        os.symlink("far/sub", ctx.p("lnk"))
+
+    # lnk -> far/sub, so lnk/../plant.csv is far/plant.csv (missing), not the plant.csv beside
+    # lnk that a purely lexical "lnk/../plant.csv" -> "plant.csv" would open instead.
+    add(Entry("data-path-through-a-symlinked-folder-and-dotdot", ["validate", "lnk/suite.json"], 2,
+              err=["lnk/suite.json#/datasets/plant/csv", "far/plant.csv"],
+              files={"far/sub/suite.json": s, "plant.csv": plant_csv()}, setup=linked_suite_folder))
+
     # ---- 14. messages ----------------------------------------------------------------------------------
     q = quad_suite()
     q["problems"][0]["name"] = "bowl\u0000hidden"
@@ -1106,7 +1119,7 @@ def catalogue():
                 ["suite.json#/defaults/outcome/tolerance", "unknown key"])
     suite_entry("suite-budget-is-a-string", "defaults/budget", "100",
                 ["suite.json#/defaults/budget", "whole number"])
-    suite_entry("suite-budget-negative", "defaults/budget", -5, ["suite.json#/defaults/budget", ">= 1"])
+    suite_entry("suite-budget-negative", "defaults/budget", -5, ["suite.json#/defaults/budget", "1..1000000000"])
     suite_entry("suite-budget-fraction", "defaults/budget", 2.5, ["suite.json#/defaults/budget", "whole number"])
     suite_entry("suite-seeds-zero", "defaults/seeds", 0, ["suite.json#/defaults/seeds", "seed count"])
     suite_entry("suite-seeds-empty-array", "defaults/seeds", [], ["suite.json#/defaults/seeds", "at least one seed"])

@@ -318,8 +318,11 @@ TEST_CASE("logistic: derivatives, lanes, reductions, labels, separable data", "[
   check_reductions(data, make_logistic, lanes_around(Vec::Zero(4), 1.0, 6));
 
   Dataset bad = data;
-  bad.y[2] = 2.0;
-  CHECK_THROWS_WITH(make_logistic(bad), Catch::Contains("row 2"));
+  bad.y[2] = 2.0;  // the third row: messages count rows from 1, as files count lines
+  CHECK_THROWS_WITH(make_logistic(bad), Catch::Contains("row 3 of data set") && Catch::Contains("label 2"));
+  bad.target_file = "d.csv";
+  bad.target_lines = {2, 3, 5, 6};  // a blank line in the file before the third row
+  CHECK_THROWS_WITH(make_logistic(bad), Catch::StartsWith("d.csv:5: found the label 2"));
 
   // Separable data without l2: the infimum 0 is not attained.
   Dataset sep;
@@ -384,7 +387,10 @@ TEST_CASE("softmax: derivatives, lanes, reductions, minimum-norm optimum", "[pro
                    lanes_around(Vec::Zero(12), 1.0, 8));
   Dataset bad = data;
   bad.y[5] = 1.5;
-  CHECK_THROWS_WITH(make_softmax(bad), Catch::Contains("row 5"));
+  CHECK_THROWS_WITH(make_softmax(bad), Catch::Contains("row 6 of data set") && Catch::Contains("label 1.5"));
+  bad.target_file = "labels.idx";
+  bad.target_first_byte = 8;  // IDX labels: row i is the byte at 8 + i
+  CHECK_THROWS_WITH(make_softmax(bad), Catch::StartsWith("labels.idx:byte 13: found the label 1.5"));
   CHECK(make_softmax(data, {}, 5)->dim() == 20);  // declared classes beyond the labels seen
 }
 

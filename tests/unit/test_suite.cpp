@@ -376,7 +376,7 @@ TEST_CASE("suite: malformed suites fail at the right pointer with a helpful mess
        },
        "/problems/0/seeds/1", "expected a whole number >= 0, found -2"},
       {"budget 0", [](Json& j) { j["problems"][0]["budget"] = 0; }, "/problems/0/budget",
-       "expected a whole number >= 1, found 0"},
+       "expected a whole number in 1..1000000000 (a larger budget is too large to run), found 0"},
       {"eval_every negative", [](Json& j) { j["problems"][0]["eval_every"] = -1; },
        "/problems/0/eval_every", ">= 0"},
       {"bad criterion",

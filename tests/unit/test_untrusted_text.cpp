@@ -6,10 +6,12 @@
 
 #include <cmath>
 #include <limits>
+#include <sstream>
 #include <string>
 
 #include <nlohmann/json.hpp>
 
+#include "stepgate/core/visible_output.hpp"
 #include "stepgate/core/error.hpp"
 #include "stepgate/core/gate_tolerances.hpp"
 #include "stepgate/core/gate_tolerances_json.hpp"
@@ -59,10 +61,13 @@ TEST_CASE("quoted values and messages show control bytes escaped, never raw", "[
   using namespace std::string_literals;
   CHECK(quote_text("bowl\0hidden"s) == "'bowl\\x00hidden'");
   CHECK(quote_text(std::string(50, 'a'), 10) == "'aaaaaaaaaa'...");
-  // The terminal form keeps line feeds, tabs and UTF-8, and escapes ESC, CR, NUL and DEL.
-  CHECK(terminal_text("a\tb\nc") == "a\tb\nc");
-  CHECK(terminal_text("caf\xc3\xa9") == "caf\xc3\xa9");
-  CHECK(terminal_text("\x1b[31mred\r\x7f"s + '\0') == "\\x1b[31mred\\x0d\\x7f\\x00");
+  // The CLI's stream filter keeps line feeds, tabs and UTF-8, and shows ESC, CR, NUL and DEL.
+  std::ostringstream sink;
+  VisibleBuf filter(sink.rdbuf());
+  std::ostream shown(&filter);
+  shown << "a\tb\nc caf\xc3\xa9 " << ("\x1b[31mred\r\x7f"s + '\0') << 'x' << '\x01';
+  shown.flush();
+  CHECK(sink.str() == "a\tb\nc caf\xc3\xa9 \\x1b[31mred\\x0d\\x7f\\x00x\\x01");
   // InputError::text keeps what follows a NUL, where what() (a C string) stops.
   const InputError e("f.json#/name", "found 'a\0b'"s);
   CHECK(e.text() == "f.json#/name: found 'a\0b'"s);
