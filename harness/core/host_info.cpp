@@ -9,6 +9,9 @@
 
 #include "stepgate/core/results.hpp"
 
+#ifndef STEPGATE_KERNELS
+#define STEPGATE_KERNELS "unknown"  // CMake defines it from STEPGATE_ARCH
+#endif
 #ifndef STEPGATE_VERSION
 #define STEPGATE_VERSION "unknown"  // CMake defines it from project(VERSION)
 #endif
@@ -48,6 +51,7 @@ HostInfo this_host() {
     h.hostname = u.nodename;
   }
   h.cores = std::thread::hardware_concurrency();  // 0 when unknown
+  h.kernels = fmt::format("{}; Eigen: {}", STEPGATE_KERNELS, Eigen::SimdInstructionSetsInUse());
   return h;
 }
 

@@ -128,6 +128,10 @@ struct HostInfo {
   std::string os, machine, hostname;
   unsigned cores = 0;
   int jobs = 0;  ///< --jobs in force (does not change any result)
+  /// Instruction set the numerical kernels were built for and the vector units Eigen uses
+  /// ("x86-64-v4; Eigen: AVX512, FMA, AVX2, ..."): results of different kernel sets differ
+  /// in the last bits, within the gate's tolerances. "" when not recorded (older files).
+  std::string kernels;
 };
 
 struct Results {

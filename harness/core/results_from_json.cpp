@@ -178,6 +178,7 @@ Results results_from_json(const json& j, const std::string& path) {
   r.host.hostname = host["hostname"].string();
   r.host.cores = host["cores"].integer<unsigned>();
   r.host.jobs = host["jobs"].integer<int>();
+  if (host.has("kernels")) r.host.kernels = host["kernels"].string();  // absent before 0.1.0's kernel sets
   r.started = f["started"].string();
   r.finished = f["finished"].string();
   if (f.has("shard") && !f["shard"].is_null()) r.shard = f["shard"].string();

@@ -15,6 +15,10 @@ struct RunSettings {
                         ///< once per epoch for mini-batch
   OutcomeSettings outcome;
   bool keep_final_params = true;  ///< store each run's final parameters in its record
+  /// Do not compute the optimum J* (a Newton solve that can outweigh the runs on large data):
+  /// runs then have no gap, and the automatic criterion falls back to the plateau. For
+  /// criteria that need no J* (cost, grad, plateau). Default false: J* when the problem has one.
+  bool skip_optimum = false;
 };
 
 }  // namespace stepgate

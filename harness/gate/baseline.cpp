@@ -70,7 +70,8 @@ json to_json(const Baseline& b) {
   return {{"format", kBaselineFormat},
           {"suite", {{"name", b.suite.name}, {"path", b.suite.path}, {"sha256", b.suite.sha256}}},
           {"tool", {{"version", b.tool.version}, {"compiler", b.tool.compiler}, {"build", b.tool.build}}},
-          {"platform", {{"os", b.platform.os}, {"machine", b.platform.machine}, {"cores", b.platform.cores}}},
+          {"platform", {{"os", b.platform.os}, {"machine", b.platform.machine}, {"cores", b.platform.cores},
+                        {"kernels", b.platform.kernels}}},
           {"accepted", b.accepted},
           {"results_started", b.results_started},
           {"cases", std::move(cases)}};
@@ -89,6 +90,7 @@ Baseline baseline_from_json(const json& j, const std::string& path) {
   b.platform.os = platform["os"].string();
   b.platform.machine = platform["machine"].string();
   b.platform.cores = platform["cores"].integer<unsigned>();
+  if (platform.has("kernels")) b.platform.kernels = platform["kernels"].string();
   b.accepted = f["accepted"].string();
   b.results_started = f["results_started"].string();
   const JsonField cases = f["cases"];

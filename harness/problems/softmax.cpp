@@ -46,7 +46,7 @@ class Softmax final : public detail::LinearModel {
     Eigen::Map<const Mat> Wv(W.data(), rows_per_output_, C * K);
     s.a.resize(Xaug_.rows(), C * K);
     s.a.noalias() = Xaug_ * Wv;
-    for (Index k = 0; k < K; ++k) out.cost[k] = data_weight() * residuals(s.a, k, Xaug_.rows(), nullptr);
+    for (Index k = 0; k < K; ++k) out.cost[k] = data_weight() * residuals(s.a, k, Xaug_.rows(), nullptr, s);
     Eigen::Map<Mat> Gv(out.grad.data(), rows_per_output_, C * K);
     Gv.noalias() = data_weight() * (Xaug_.transpose() * s.a);
     add_ridge(W, &out.cost, out.grad);
@@ -59,7 +59,7 @@ class Softmax final : public detail::LinearModel {
     Eigen::Map<const Mat> Wv(W.data(), rows_per_output_, C * K);
     s.a.resize(s.c.rows(), C * K);
     s.a.noalias() = s.c * Wv;
-    for (Index k = 0; k < K; ++k) residuals(s.a, k, s.c.rows(), &rows);
+    for (Index k = 0; k < K; ++k) residuals(s.a, k, s.c.rows(), &rows, s);
     grad.resize(dim(), K);
     Eigen::Map<Mat> Gv(grad.data(), rows_per_output_, C * K);
     Gv.noalias() = batch_weight(Index(rows.size())) * (s.c.transpose() * s.a);
@@ -114,25 +114,39 @@ class Softmax final : public detail::LinearModel {
  private:
   /// Turns the logits of lane k in Z (columns k·C..k·C+C−1) into residuals softmax(z) − e_y and
   /// returns the summed loss Σ logsumexp(z) − z_y. `rows` maps row i of Z to its sample.
-  double residuals(Mat& Z, Index k, Index n, const std::span<const Index>* rows) const {
+  /// Blocks of rows, so that a block's C columns stay in L1/L2 through the passes; within a
+  /// block each pass is a vectorised array expression down one column (Eigen's packet exp and
+  /// log). One exponentiation per logit: p_c = exp(z_c − top) / total, and
+  /// logsumexp = top + log(total). p_y − 1 is written as −Σ_{c≠y} p_c (of the rounded p_c),
+  /// which keeps its digits when p_y ≈ 1.
+  double residuals(Mat& Z, Index k, Index n, const std::span<const Index>* rows, Scratch& s) const {
     const Index C = outputs_;
+    constexpr Index kBlock = 1024;
+    s.b.resize(std::min(kBlock, n), 2);
     double loss = 0.0;
-    auto block = Z.middleCols(k * C, C);
-    for (Index i = 0; i < n; ++i) {
-      const Index label = label_[rows ? (*rows)[std::size_t(i)] : i];
-      auto z = block.row(i);
-      const double top = z.maxCoeff();
-      double total = 0.0;
-      for (Index c = 0; c < C; ++c) total += std::exp(z[c] - top);
-      const double lse = top + std::log(total);
-      loss += lse - z[label];
-      // p − e_y; p_y − 1 as −Σ_{c≠y} p_c, which keeps its digits when p_y ≈ 1.
-      double others = 0.0;
+    for (Index i0 = 0; i0 < n; i0 += kBlock) {
+      const Index m = std::min(kBlock, n - i0);
+      auto block = Z.block(i0, k * C, m, C);
+      auto top = s.b.col(0).head(m).array();
+      auto total = s.b.col(1).head(m).array();
+      auto label = [&](Index i) { return label_[std::size_t(rows ? (*rows)[std::size_t(i0 + i)] : i0 + i)]; };
+      top = block.col(0).array();
+      for (Index c = 1; c < C; ++c) top = top.max(block.col(c).array());
+      for (Index i = 0; i < m; ++i) loss += top[i] - block(i, label(i));
+      total.setZero();
       for (Index c = 0; c < C; ++c) {
-        z[c] = std::exp(z[c] - lse);
-        if (c != label) others += z[c];
+        block.col(c).array() = (block.col(c).array() - top).exp();
+        total += block.col(c).array();
       }
-      z[label] = -others;
+      loss += total.log().sum();
+      total = total.inverse();
+      for (Index c = 0; c < C; ++c) block.col(c).array() *= total;
+      for (Index i = 0; i < m; ++i) {
+        const Index y = label(i);
+        double sum = 0.0;
+        for (Index c = 0; c < C; ++c) sum += c == y ? 0.0 : block(i, c);
+        block(i, y) = -sum;
+      }
     }
     return loss;
   }

@@ -52,7 +52,8 @@ std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& sp
 
   const long every = resolved_eval_every(problem, spec, settings);
   const bool exact_gap = problem.has_exact_gap();
-  const std::optional<Optimum> optimum = exact_gap ? std::nullopt : problem.optimum();
+  const std::optional<Optimum> optimum =
+      exact_gap || settings.skip_optimum ? std::nullopt : problem.optimum();
   const bool has_optimum = exact_gap || optimum.has_value();
   const double j_star = optimum ? optimum->cost : kMissing;
 

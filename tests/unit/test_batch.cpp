@@ -106,7 +106,11 @@ TEST_CASE("a lane equals the same run done alone (least squares, logistic, softm
   no_gram.gram_ratio = 0.0;
   require_lanes_equal_single_runs(*make_least_squares(reg, no_gram), gd, {0.01, 0.1, 0.5, 5.0}, s);
   const Dataset cls = small_regression(200, 4, 2, true);
-  require_lanes_equal_single_runs(*make_logistic(cls), gd, {0.1, 1.0, 4.0, 50.0}, s);
+  // With FMA kernels (STEPGATE_ARCH v3/v4) Eigen's matrix-matrix product (K lanes) and
+  // matrix-vector product (one run) sum in different orders, so a lane and its run alone agree to
+  // rounding as the run amplifies it (measured 3e-10 at rate 4, near this problem's edge), not
+  // bit for bit; the portable build agrees within 1e-12.
+  require_lanes_equal_single_runs(*make_logistic(cls), gd, {0.1, 1.0, 4.0, 50.0}, s, 1e-9);
   Dataset three = cls;
   for (Index i = 0; i < three.rows(); ++i) three.y[i] = static_cast<double>(i % 3);
   LinearModelOptions ridge;

@@ -87,7 +87,9 @@ TEST_CASE("edge_moved: ragged zones that overlap do not count as a move", "[gate
   base.summary.ragged_top = 0.3162;
   const Baseline b = baseline_of(base);
   CaseResult now = theory_case(0.3162, kMissing, kMissing);  // edge +25%, inside the old zone
-  const Finding* f = rule_of(gate_one(now, &b), Rule::edge_moved);
+  const GateReport report = gate_one(now, &b);  // the finding lives in the report: keep it
+  const Finding* f = rule_of(report, Rule::edge_moved);
+  REQUIRE(f);
   CHECK(f->severity == Severity::pass);
   CHECK(f->message.find("ragged zones") != std::string::npos);
   // Beyond the zone, the move counts from the zone's end: 0.3162 -> 0.36 is +13.9%.

@@ -1,0 +1,525 @@
+// stepgate-bench: the sweep engine's speed against the loops practitioners write, on the same
+// data in the same invocation, and against the machine's own limit (docs/design.md, "Speed";
+// README, "Performance"). Not a test: it prints figures, and targets are judged by reading them.
+//
+//   stepgate-bench [--json FILE] [--only NAME]... [--quick] [--python PATH]
+//
+// Workloads (fixed seeds): small (least squares, standardized diabetes data, gd, 30 rates x 5
+// seeds, budget 2000), medium (logistic, generated 200,000 x 50, gd and heavy ball, 16 rates,
+// 200 iterations), large (softmax on Fashion-MNIST, 60,000 x 784, 10 classes, gd, 8 rates, 50
+// iterations), search (suites/reference.json and suites/demo.json as `stepgate run` executes
+// them, --jobs 1 and 2), growth (medium at 50k..400k rows, small at 10..300 rates) and gemm
+// (dense 2000 x 2000 products on all cores: Eigen as built, and OpenBLAS through numpy).
+//
+// How the peers are compared: stepgate runs each workload with its real stopping rules
+// (confirmed convergence, divergence, budget); each peer then runs the same runs one at a time
+// for exactly the iterations stepgate took, computing cost and gradient at every step, and
+// reports its final costs. A ratio is printed only when every final cost agrees (relative
+// 1e-9, or 1e-6 for diverged runs, whose growth magnifies the rounding of either side).
+// For medium and large the peers time a few runs and are scaled by iterations (stated).
+#include <sys/resource.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <cstdio>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <functional>
+#include <iostream>
+#include <map>
+#include <optional>
+#include <set>
+#include <string>
+#include <thread>
+#include <vector>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "stepgate/core/results.hpp"
+#include "stepgate/data/csv.hpp"
+#include "stepgate/data/generate.hpp"
+#include "stepgate/data/idx.hpp"
+#include "stepgate/data/scaling.hpp"
+#include "stepgate/problems/linear_models.hpp"
+#include "stepgate/run/batch.hpp"
+#include "stepgate/run/child_process.hpp"
+#include "stepgate/sweep/run_suite.hpp"
+
+using namespace stepgate;
+using nlohmann::json;
+namespace fs = std::filesystem;
+
+namespace {
+
+using Clock = std::chrono::steady_clock;
+
+double since(Clock::time_point t0) { return std::chrono::duration<double>(Clock::now() - t0).count(); }
+
+struct Options {
+  std::string json_path;
+  std::set<std::string> only;
+  bool quick = false;
+  std::string python = "/usr/bin/python3";
+  fs::path source = STEPGATE_SOURCE_DIR;
+  bool wants(const std::string& name) const { return only.empty() || only.count(name) > 0; }
+};
+
+// ---- one workload: a problem, an optimizer, rates and seeds, run as the sweep runs them ------
+
+struct Workload {
+  std::string name, problem_kind, optimizer_label;
+  const Problem* problem = nullptr;
+  Mat Xaug;  // the features with the ones column, as the peers get them
+  Vec y;
+  Index classes = 1;
+  OptimizerSpec optimizer;
+  std::vector<double> rates;
+  int seeds = 1;
+  RunSettings settings;
+  double flops_per_lane_eval = 0;  // matrix-product flops of one cost-and-gradient evaluation
+};
+
+struct Measured {
+  double seconds = 0;
+  long runs = 0, lane_iterations = 0;
+  std::vector<double> rates, final_costs;
+  std::vector<long> steps;
+  std::vector<bool> diverged;
+  std::vector<Vec> starts;
+};
+
+Measured run_workload(const Workload& w) {
+  Measured m;
+  const auto t0 = Clock::now();
+  std::vector<std::vector<RunRecord>> all;
+  for (int s = 1; s <= w.seeds; ++s)
+    all.push_back(run_batch(*w.problem, w.optimizer, w.settings, w.rates, BatchSeed{std::uint64_t(s), s - 1, std::uint64_t(s)}));
+  m.seconds = since(t0);
+  for (int s = 1; s <= w.seeds; ++s) {
+    const Vec start = w.problem->start(std::uint64_t(s));
+    for (const RunRecord& r : all[std::size_t(s - 1)]) {
+      m.runs += 1;
+      m.lane_iterations += r.steps;
+      m.rates.push_back(r.rate);
+      m.steps.push_back(r.steps);
+      m.final_costs.push_back(r.trace.empty() ? NAN : r.trace.back().cost);
+      m.diverged.push_back(r.outcome == Outcome::diverged);
+      m.starts.push_back(start);
+    }
+  }
+  return m;
+}
+
+// ---- peers ---------------------------------------------------------------------------------
+
+struct PeerResult {
+  std::string name, note;
+  double seconds = NAN;  // scaled to all runs
+  bool agreed = false;
+  double worst_relative = 0;
+};
+
+void write_doubles(const fs::path& path, const double* data, std::size_t n) {
+  std::ofstream out(path, std::ios::binary);
+  out.write(reinterpret_cast<const char*>(data), static_cast<std::streamsize>(n * sizeof(double)));
+  if (!out) throw std::runtime_error("cannot write " + path.string());
+}
+
+std::optional<json> run_python(const Options& opt, const std::vector<std::string>& args, std::string& error) {
+  std::vector<std::string> argv = {opt.python};
+  argv.insert(argv.end(), args.begin(), args.end());
+  try {
+    ChildProcess child({argv, "", {}, false});
+    std::vector<std::string> lines;
+    while (child.read_lines(lines, std::chrono::milliseconds(1000))) {}
+    const ChildExit e = child.wait();
+    if (e.signalled || e.code != 0 || lines.empty()) {
+      error = fmt::format("exit {}: {}", e.code, child.stderr_tail());
+      return std::nullopt;
+    }
+    return json::parse(lines.back());
+  } catch (const std::exception& e) {
+    error = e.what();
+    return std::nullopt;
+  }
+}
+
+// `subset`: how many runs the peer times (0 = all); spread over the rates.
+std::vector<PeerResult> run_peers(const Options& opt, const Workload& w, const Measured& m, std::size_t subset,
+                                  const fs::path& scratch) {
+  std::vector<std::size_t> chosen;
+  if (subset == 0 || subset >= m.final_costs.size()) {
+    for (std::size_t i = 0; i < m.final_costs.size(); ++i) chosen.push_back(i);
+  } else {
+    for (std::size_t k = 0; k < subset; ++k) chosen.push_back(k * (m.final_costs.size() - 1) / (subset - 1));
+  }
+  // Row-major for numpy: write the transpose of the column-major matrix.
+  const Mat Xt = w.Xaug.transpose();
+  write_doubles(scratch / "X.f8", Xt.data(), std::size_t(Xt.size()));
+  write_doubles(scratch / "y.f8", w.y.data(), std::size_t(w.y.size()));
+  json job = {{"problem", w.problem_kind}, {"rows", w.Xaug.rows()}, {"cols", w.Xaug.cols()}, {"classes", w.classes},
+              {"X", (scratch / "X.f8").string()}, {"y", (scratch / "y.f8").string()},
+              {"optimizer", {{"kind", w.optimizer.kind == OptimizerKind::momentum ? "momentum" : "gd"},
+                             {"beta", w.optimizer.beta}}}};
+  long chosen_steps = 0;
+  for (std::size_t i : chosen) {
+    const Vec& s = m.starts[i];
+    json start = s.isZero(0) ? json(nullptr) : json(std::vector<double>(s.data(), s.data() + s.size()));
+    job["runs"].push_back({{"rate", m.rates[i]}, {"start", start}, {"steps", m.steps[i]}});
+    chosen_steps += m.steps[i] + 1;
+  }
+  std::ofstream(scratch / "job.json") << job.dump();
+  const double scale = double(m.lane_iterations + long(m.final_costs.size())) / double(std::max(1L, chosen_steps));
+
+  std::vector<PeerResult> out;
+  for (const std::string& peer : {"numpy_loop.py", "torch_loop.py"}) {
+    PeerResult r;
+    r.name = peer == std::string("numpy_loop.py") ? "numpy" : "torch";
+    std::string error;
+    const auto res = run_python(opt, {(opt.source / "tests/bench/peers" / peer).string(), (scratch / "job.json").string()}, error);
+    if (!res) {
+      r.note = "not run: " + error.substr(0, 200);
+      out.push_back(r);
+      continue;
+    }
+    r.name = res->at("peer").get<std::string>();
+    r.seconds = res->at("seconds").get<double>() * scale;
+    const json& finals = res->at("final_costs");
+    r.agreed = true;
+    for (std::size_t k = 0; k < chosen.size(); ++k) {
+      const double ours = m.final_costs[chosen[k]];
+      const double theirs = finals[k].is_null() ? INFINITY : finals[k].get<double>();
+      if (!std::isfinite(ours) && !std::isfinite(theirs)) continue;
+      const double rel = std::abs(ours - theirs) / std::max(std::abs(ours), 1e-300);
+      r.worst_relative = std::max(r.worst_relative, rel);
+      if (!(rel <= (m.diverged[chosen[k]] ? 1e-6 : 1e-9))) r.agreed = false;
+    }
+    if (chosen.size() < m.final_costs.size())
+      r.note = fmt::format("timed on {} of {} runs, scaled by iterations ({:.1f}x)", chosen.size(), m.final_costs.size(), scale);
+    out.push_back(r);
+  }
+  return out;
+}
+
+// ---- the table -----------------------------------------------------------------------------
+
+json report(const std::string& name, const Workload& w, const Measured& m, const std::vector<PeerResult>& peers,
+            double setup_seconds) {
+  json j = {{"workload", name},
+            {"setup_seconds", setup_seconds},
+            {"seconds", m.seconds},
+            {"runs", m.runs},
+            {"lane_iterations", m.lane_iterations},
+            {"runs_per_second", m.runs / m.seconds},
+            {"lane_iterations_per_second", double(m.lane_iterations) / m.seconds}};
+  if (w.flops_per_lane_eval > 0)
+    j["gflops"] = w.flops_per_lane_eval * double(m.lane_iterations + m.runs) / m.seconds / 1e9;
+  std::printf("\n%s: %s, %s, %zu rates x %d seeds, budget %ld\n", name.c_str(), w.name.c_str(),
+              w.optimizer_label.c_str(), w.rates.size(), w.seeds, w.settings.budget);
+  std::printf("  stepgate: %.3f s for %ld runs, %ld lane-iterations (%.0f runs/s, %.3g lane-iterations/s", m.seconds,
+              m.runs, m.lane_iterations, m.runs / m.seconds, double(m.lane_iterations) / m.seconds);
+  if (j.contains("gflops")) std::printf(", %.1f GFLOP/s in matrix products", j["gflops"].get<double>());
+  std::printf("); setup %.2f s\n", setup_seconds);
+  for (const PeerResult& p : peers) {
+    json pj = {{"peer", p.name}, {"note", p.note}, {"final_costs_agree", p.agreed}, {"worst_relative_difference", p.worst_relative}};
+    if (std::isnan(p.seconds)) {
+      std::printf("  %-28s %s\n", p.name.c_str(), p.note.c_str());
+    } else if (!p.agreed) {
+      std::printf("  %-28s %.3f s, NO RATIO: final costs differ (worst relative %.2e)\n", p.name.c_str(), p.seconds,
+                  p.worst_relative);
+      pj["seconds"] = p.seconds;
+    } else {
+      std::printf("  %-28s %.3f s -> stepgate %.1fx faster (final costs agree to %.1e)%s%s\n", p.name.c_str(),
+                  p.seconds, p.seconds / m.seconds, p.worst_relative, p.note.empty() ? "" : "; ", p.note.c_str());
+      pj["seconds"] = p.seconds;
+      pj["ratio"] = p.seconds / m.seconds;
+    }
+    j["peers"].push_back(pj);
+  }
+  return j;
+}
+
+std::vector<double> log_rates(double from, double to, int count) {
+  std::vector<double> r;
+  for (int i = 0; i < count; ++i) r.push_back(from * std::pow(to / from, count == 1 ? 0.0 : double(i) / (count - 1)));
+  return r;
+}
+
+Mat with_ones(const Mat& X) {
+  Mat out(X.rows(), X.cols() + 1);
+  out.leftCols(X.cols()) = X;
+  out.col(X.cols()).setOnes();
+  return out;
+}
+
+long peak_rss_kib() {
+  rusage u{};
+  getrusage(RUSAGE_SELF, &u);
+  return u.ru_maxrss;
+}
+
+double fitted_exponent(const std::vector<double>& x, const std::vector<double>& t) {
+  double mx = 0, my = 0;
+  for (std::size_t i = 0; i < x.size(); ++i) mx += std::log(x[i]), my += std::log(t[i]);
+  mx /= double(x.size());
+  my /= double(x.size());
+  double sxy = 0, sxx = 0;
+  for (std::size_t i = 0; i < x.size(); ++i) {
+    sxy += (std::log(x[i]) - mx) * (std::log(t[i]) - my);
+    sxx += (std::log(x[i]) - mx) * (std::log(x[i]) - mx);
+  }
+  return sxy / sxx;
+}
+
+// ---- workloads -----------------------------------------------------------------------------
+
+Dataset diabetes(const Options& opt) {
+  Dataset d = load_csv_dataset((opt.source / "suites/data/diabetes.csv").string(), {}, "progression", {}, "diabetes");
+  ScalingSpec standardize;
+  standardize.kind = ScalingSpec::standardize;
+  apply_scaling(d, standardize);
+  return d;
+}
+
+Workload small_workload(const Problem& p, const Dataset& d, int rates) {
+  Workload w;
+  w.name = "least squares, diabetes (442 x 10) standardized";
+  w.problem_kind = "least_squares";
+  w.optimizer_label = "gd";
+  w.problem = &p;
+  w.Xaug = with_ones(d.X);
+  w.y = d.y;
+  w.rates = log_rates(1e-3, 3.0, rates);
+  w.seeds = 5;
+  w.settings.budget = 2000;
+  w.settings.keep_final_params = false;
+  return w;
+}
+
+Dataset generated_logistic(long rows) {
+  GeneratedSpec g;
+  g.kind = GeneratedSpec::logistic;
+  g.rows = rows;
+  g.features = 50;
+  g.seed = 2026;
+  g.intercept = -0.3;
+  return generate_dataset(g, "generated-logistic");
+}
+
+Workload medium_workload(const Problem& p, const Dataset& d, bool momentum) {
+  Workload w;
+  w.name = fmt::format("logistic, generated {} x {}", d.rows(), d.cols());
+  w.problem_kind = "logistic";
+  w.problem = &p;
+  w.Xaug = with_ones(d.X);
+  w.y = d.y;
+  w.rates = log_rates(1e-2, 30.0, 16);
+  w.settings.budget = 200;
+  w.settings.keep_final_params = false;
+  if (momentum) {
+    w.optimizer.kind = OptimizerKind::momentum;
+    w.optimizer.beta = 0.9;
+  }
+  w.optimizer_label = momentum ? "heavy ball 0.9" : "gd";
+  w.flops_per_lane_eval = 4.0 * double(w.Xaug.rows()) * double(w.Xaug.cols());
+  return w;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  Options opt;
+  for (int i = 1; i < argc; ++i) {
+    const std::string a = argv[i];
+    auto value = [&]() -> std::string {
+      if (i + 1 >= argc) {
+        std::fprintf(stderr, "stepgate-bench: %s needs a value\n", a.c_str());
+        std::exit(2);
+      }
+      return argv[++i];
+    };
+    if (a == "--json") opt.json_path = value();
+    else if (a == "--only") opt.only.insert(value());
+    else if (a == "--quick") opt.quick = true;
+    else if (a == "--python") opt.python = value();
+    else if (a == "--source") opt.source = value();
+    else if (a == "-h" || a == "--help") {
+      std::printf("stepgate-bench [--json FILE] [--only small|medium|large|search|growth|gemm]... [--quick] "
+                  "[--python PATH] [--source DIR]\n");
+      return 0;
+    } else {
+      std::fprintf(stderr, "stepgate-bench: unknown argument '%s'\n", a.c_str());
+      return 2;
+    }
+  }
+  const HostInfo host = this_host();
+  const ToolInfo tool = this_tool();
+  json out = {{"host", {{"os", host.os}, {"machine", host.machine}, {"cores", host.cores}}},
+              {"tool", {{"version", tool.version}, {"compiler", tool.compiler}, {"build", tool.build}}},
+              {"workloads", json::array()}};
+  std::printf("stepgate-bench on %s, %u cores, %s, %s%s\n", host.machine.c_str(), host.cores, tool.compiler.c_str(),
+              tool.build.c_str(),
+              opt.quick ? " (--quick: smaller sizes, figures not comparable with the targets)" : "");
+  const fs::path scratch = fs::temp_directory_path() / fmt::format("stepgate-bench-{}", ::getpid());
+  fs::create_directories(scratch);
+
+  // large first, so that the process's peak memory is its own.
+  const std::string images = "/usr/share/datasets/fashion-mnist/train-images-idx3-ubyte.gz";
+  const std::string labels = "/usr/share/datasets/fashion-mnist/train-labels-idx1-ubyte.gz";
+  if (opt.wants("large")) {
+    if (!fs::exists(images)) {
+      std::printf("\nlarge: skipped, %s is missing (scripts/setup --fashion installs it)\n", images.c_str());
+    } else {
+      const long before = peak_rss_kib();
+      auto t0 = Clock::now();
+      Workload w;
+      std::unique_ptr<Problem> p;
+      {
+        Dataset d = load_idx_dataset(images, labels, "fashion-mnist", 1.0 / 255.0, opt.quick ? 10000 : 0);
+        p = make_softmax(d, {}, 10);
+        w.Xaug = with_ones(d.X);
+        w.y = d.y;
+      }
+      w.name = fmt::format("softmax, Fashion-MNIST {} x {}, 10 classes", w.Xaug.rows(), w.Xaug.cols() - 1);
+      w.problem_kind = "softmax";
+      w.optimizer_label = "gd";
+      w.classes = 10;
+      w.problem = p.get();
+      w.rates = log_rates(1e-2, 5.0, 8);
+      w.settings.budget = 50;
+      w.settings.keep_final_params = false;
+      w.settings.outcome.criterion = Criterion::cost;  // a training script's stop: no J* needed
+      w.settings.outcome.target = 0.0;
+      w.settings.skip_optimum = true;
+      w.flops_per_lane_eval = 4.0 * double(w.Xaug.rows()) * double(w.Xaug.cols()) * 10.0;
+      const double setup = since(t0);
+      const Measured m = run_workload(w);
+      const long peak = peak_rss_kib();
+      const double data_mib = double(w.Xaug.rows()) * double(w.Xaug.cols() - 1) * 8.0 / 1048576.0;
+      json j = report("large", w, m, run_peers(opt, w, m, 2, scratch), setup);
+      j["peak_rss_mib"] = double(peak) / 1024.0;
+      j["data_mib"] = data_mib;
+      std::printf("  peak memory %.0f MiB (%.0f MiB before), data %.0f MiB in double precision: %.2fx\n", peak / 1024.0,
+                  before / 1024.0, data_mib, peak / 1024.0 / data_mib);
+      out["workloads"].push_back(j);
+    }
+  }
+
+  if (opt.wants("gemm")) {
+    const Index n = opt.quick ? 1000 : 2000;
+    const unsigned threads = std::max(1u, std::thread::hardware_concurrency());
+    std::vector<Mat> A(threads), B(threads), C(threads);
+    for (unsigned t = 0; t < threads; ++t) A[t] = Mat::Random(n, n), B[t] = Mat::Random(n, n), C[t] = Mat(n, n);
+    double best = INFINITY;
+    for (int rep = 0; rep < 3; ++rep) {
+      const auto t0 = Clock::now();
+      std::vector<std::thread> pool;
+      for (unsigned t = 0; t < threads; ++t) pool.emplace_back([&, t] { C[t].noalias() = A[t] * B[t]; });
+      for (auto& th : pool) th.join();
+      best = std::min(best, since(t0));
+    }
+    const double eigen_gflops = 2.0 * double(n) * double(n) * double(n) * threads / best / 1e9;
+    std::string error;
+    const auto numpy = run_python(opt, {(opt.source / "tests/bench/peers/gemm_limit.py").string()}, error);
+    std::printf("\ngemm: dense %ld x %ld float64 on %u cores: Eigen %.1f GFLOP/s", long(n), long(n), threads, eigen_gflops);
+    json j = {{"workload", "gemm"}, {"eigen_gflops", eigen_gflops}};
+    if (numpy) {
+      std::printf(", OpenBLAS through numpy %.1f GFLOP/s", numpy->at("gflops").get<double>());
+      j["openblas_gflops"] = numpy->at("gflops");
+    } else {
+      std::printf(", numpy not run: %s", error.c_str());
+    }
+    std::printf("\n");
+    out["gemm"] = j;
+  }
+
+  if (opt.wants("small")) {
+    const auto t0 = Clock::now();
+    const Dataset d = diabetes(opt);
+    LinearModelOptions lo;
+    lo.init_scale = 0.1;  // seeds start apart, so five seeds are five different runs
+    const auto p = make_least_squares(d, lo);
+    Workload w = small_workload(*p, d, 30);
+    const double setup = since(t0);
+    const Measured m = run_workload(w);
+    out["workloads"].push_back(report("small", w, m, run_peers(opt, w, m, 0, scratch), setup));
+  }
+
+  if (opt.wants("medium")) {
+    const auto t0 = Clock::now();
+    const Dataset d = generated_logistic(opt.quick ? 20000 : 200000);
+    const auto p = make_logistic(d, {});
+    (void)p->optimum();  // J* for the gap criterion: setup, computed once per case by the sweep too
+    const double setup = since(t0);
+    for (bool momentum : {false, true}) {
+      Workload w = medium_workload(*p, d, momentum);
+      const Measured m = run_workload(w);
+      out["workloads"].push_back(report(momentum ? "medium (heavy ball)" : "medium (gd)", w, m,
+                                        run_peers(opt, w, m, 2, scratch), setup));
+    }
+  }
+
+  if (opt.wants("growth")) {
+    std::printf("\ngrowth: medium (gd) against rows\n  %10s %10s %14s\n", "rows", "seconds", "lane-iter/s");
+    std::vector<double> xs, ts;
+    for (long rows : opt.quick ? std::vector<long>{5000, 10000, 20000, 40000} : std::vector<long>{50000, 100000, 200000, 400000}) {
+      const Dataset d = generated_logistic(rows);
+      const auto p = make_logistic(d, {});
+      (void)p->optimum();
+      const Measured m = run_workload(medium_workload(*p, d, false));
+      std::printf("  %10ld %10.3f %14.3g\n", rows, m.seconds, double(m.lane_iterations) / m.seconds);
+      xs.push_back(double(rows));
+      ts.push_back(m.seconds / double(m.lane_iterations));
+    }
+    const double rows_exponent = fitted_exponent(xs, ts);
+    std::printf("  time per lane-iteration grows as rows^%.2f\n", rows_exponent);
+    std::printf("growth: small against rates\n  %10s %10s %14s\n", "rates", "seconds", "runs/s");
+    const Dataset d = diabetes(opt);
+    LinearModelOptions lo;
+    lo.init_scale = 0.1;
+    const auto p = make_least_squares(d, lo);
+    std::vector<double> rs, rt;
+    for (int rates : {10, 30, 100, 300}) {
+      const Measured m = run_workload(small_workload(*p, d, rates));
+      std::printf("  %10d %10.3f %14.0f\n", rates, m.seconds, m.runs / m.seconds);
+      rs.push_back(rates);
+      rt.push_back(m.seconds);
+    }
+    const double rates_exponent = fitted_exponent(rs, rt);
+    std::printf("  time grows as rates^%.2f\n", rates_exponent);
+    out["growth"] = {{"medium_rows", xs}, {"medium_seconds_per_lane_iteration", ts}, {"rows_exponent", rows_exponent},
+                     {"small_rates", rs}, {"small_seconds", rt}, {"rates_exponent", rates_exponent}};
+  }
+
+  if (opt.wants("search")) {
+    for (const char* suite : {"suites/reference.json", "suites/demo.json"}) {
+      json j = {{"workload", std::string("search ") + suite}};
+      std::printf("\nsearch: %s as `stepgate run` executes it\n", suite);
+      double t1 = NAN;
+      for (int jobs : {1, 2}) {
+        RunSuiteOptions ro;
+        ro.out_dir = (scratch / fmt::format("out-{}", jobs)).string();
+        ro.jobs = jobs;
+        const auto t0 = Clock::now();
+        const SuiteRun run = run_suite((opt.source / suite).string(), ro);
+        const double s = since(t0);
+        long runs = 0;
+        for (const CaseResult& c : run.results.cases) runs += long(c.runs.size());
+        std::printf("  --jobs %d: %.2f s, %ld runs%s\n", jobs, s, runs,
+                    jobs == 2 ? fmt::format(" ({:.2f}x --jobs 1)", t1 / s).c_str() : "");
+        j[fmt::format("jobs{}_seconds", jobs)] = s;
+        if (jobs == 1) t1 = s;
+      }
+      j["jobs2_speedup"] = t1 / j["jobs2_seconds"].get<double>();
+      out["workloads"].push_back(j);
+    }
+  }
+
+  fs::remove_all(scratch);
+  if (!opt.json_path.empty()) std::ofstream(opt.json_path) << out.dump(1) << "\n";
+  return 0;
+}
