@@ -97,4 +97,20 @@ TEST_CASE("demo: end to end", "[e2e]") {
     CHECK(check.out.find("verdict: pass") != std::string::npos);
     CHECK(read_text(again.out / "report.md").find("**stepgate: PASS**") != std::string::npos);
   }
+
+  SECTION("a baseline accepted with the portable kernels passes with this build's kernels") {
+    // references/demo.portable.baseline.json was accepted from a STEPGATE_ARCH=portable build
+    // (SSE2, no FMA); scripts/build makes an `auto` build (AVX2/AVX-512 with FMA here), whose
+    // results differ in the last bits. The gate must not see that as a change.
+    const fs::path portable = source_dir() / "references" / "demo.portable.baseline.json";
+    const json b = read_json(portable);
+    CHECK(b.at("platform").at("kernels").get<std::string>().rfind("x86-64;", 0) == 0);
+    const json results = read_json(demo_first().results());
+    INFO("this build's kernels: " << results.at("host").at("kernels"));
+    CHECK(!results.at("host").at("kernels").get<std::string>().empty());
+    TempDir tmp("demo-portable");
+    const CliResult check = expect_exit(
+        "check " + quoted(demo_first().results().string()) + " --baseline " + quoted(portable.string()), tmp.path(), 0);
+    CHECK(check.out.find("verdict: pass") != std::string::npos);
+  }
 }
