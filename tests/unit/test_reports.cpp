@@ -63,7 +63,7 @@ Results sample_results() {
   Results r;
   r.suite = {"demo", "suites/demo.json", std::string(64, 'e')};
   r.tool = {"9.8.7", "GCC 12.2.0", "Release, Eigen 3.4.0"};
-  r.host = {"Linux 6.1", "x86_64", "box", 8, 2};
+  r.host = {"Linux 6.1", "x86_64", "box", 8, 2, ""};
   r.started = "2026-01-02T03:04:05Z";
 
   CaseResult pass = make_case(kPassId, "lin-data", std::string(64, 'a'));
