@@ -41,6 +41,52 @@ double OutcomeMonitor::overshoot() const {
   return rises_ > 0.0 ? kInf : 0.0;
 }
 
+void OutcomeMonitor::allow_slow_proof(long every) {
+  if (every > 0 && (criterion_ == Criterion::gap || criterion_ == Criterion::grad)) proof_every_ = every;
+}
+
+double OutcomeMonitor::criterion_value(const TracePoint& p) const {
+  return criterion_ == Criterion::gap ? p.gap : p.grad_norm;
+}
+
+// The proof. With eᵢ the error's component along the i-th eigenvector of H, gd at rate α gives
+// gap_t = Σᵢ aᵢ rᵢᵗ with aᵢ = ½λᵢeᵢ² ≥ 0 and rᵢ = (1 − αλᵢ)² (and ‖∇J‖² the same with
+// aᵢ = λᵢ²eᵢ²). Over an evaluation interval of e iterations the ratio
+//   ρ_t = s_{t+e} / s_t = Σᵢ (aᵢrᵢᵗ) rᵢᵉ / Σᵢ aᵢrᵢᵗ
+// is the mean of rᵢᵉ weighted by aᵢrᵢᵗ, and by Cauchy–Schwarz s_t² ≤ s_{t−e}·s_{t+e}, so
+// ρ_{t−e} ≤ ρ_t: the ratio never decreases (the weight moves to the slowest mode), and a norm
+// (the square root) keeps that. Hence s_{t+me} ≥ s_t·ρ_{t−e}^m for every m ≥ 0: extrapolating
+// the latest ratio underestimates every later value. With α < 2/λ_max all rᵢ < 1, so the
+// series never rises (no divergence, overshoot 0) and the outcome is converged or slow.
+// Converged needs the criterion met at an evaluation t₁ with t₁ + confirm_min ≤ budget; if
+// even the lower bound at the last such evaluation exceeds the threshold, slow is certain.
+// The factor 2 leaves room for rounding, which the exact-arithmetic argument does not cover,
+// and any rise seen so far (rounding dominating) switches the proof off for the run.
+std::optional<std::string> OutcomeMonitor::proven_slow(const TracePoint& p) const {
+  if (proof_every_ <= 0 || budget_ < 0 || stretch_start_ || !proof_monotone_) return std::nullopt;
+  if (proof_prev_iter_ != p.iter - proof_every_) return std::nullopt;  // not evenly spaced
+  const double s = criterion_value(p), s0 = criterion_value(first_), prev = proof_prev_;
+  const double threshold = tol_ * s0;
+  if (!(s > 0.0) || !(prev > 0.0) || !(threshold > 0.0) || !std::isfinite(s0)) return std::nullopt;
+  const double ratio = s / prev;  // in (0, 1]: monotone so far
+  const long last_start = budget_ - settings_.confirm_min;  // the latest t₁ that can be confirmed
+  const long last_eval = last_start < 0 ? -1 : last_start / proof_every_ * proof_every_;
+  const long ahead = last_eval <= p.iter ? 0 : (last_eval - p.iter) / proof_every_;
+  // log of the lower bound s·ratio^ahead at the last evaluation that could start the stretch
+  const double log_bound = std::log(s) + static_cast<double>(ahead) * std::log(ratio);
+  if (!(log_bound > std::log(2.0 * threshold))) return std::nullopt;
+  const char* what = criterion_ == Criterion::gap ? "gap" : "gradient norm";
+  if (ahead == 0)
+    return fmt::format("proven slow at iteration {}: the {} is {:.3g} of its start, above the criterion's {:g}, "
+                       "and no later evaluation can start a stretch that is confirmed within the budget",
+                       p.iter, what, s / s0, tol_);
+  return fmt::format("proven slow at iteration {}: the {} shrinks at best x{:.6g} per evaluation (gd on a "
+                     "convex quadratic below 2/L: this ratio never falls), so at iteration {}, the last that "
+                     "can start a confirmed stretch within the budget, it is still at least {:.3g} of its start, "
+                     "above the criterion's {:g}",
+                     p.iter, what, ratio, last_eval, std::exp(log_bound) / s0, tol_);
+}
+
 bool OutcomeMonitor::observe(const TracePoint& p) {
   if (decided_) return true;
   const double value = progress_value(p);
@@ -120,6 +166,16 @@ bool OutcomeMonitor::observe(const TracePoint& p) {
           Confirmation{probed ? "stretch+probe" : "stretch", p.iter, probed ? probe_growth_ : kMissing}};
     }
     return true;
+  }
+  if (proof_every_ > 0) {
+    const double v = criterion_value(p);
+    if (count_ > 1 && !(v <= proof_prev_)) proof_monotone_ = false;
+    if (std::optional<std::string> why = proven_slow(p)) {
+      decided_ = Classification{Outcome::slow, std::nullopt, overshoot(), std::move(*why), std::nullopt};
+      return true;
+    }
+    proof_prev_ = v;
+    proof_prev_iter_ = p.iter;
   }
   return false;
 }

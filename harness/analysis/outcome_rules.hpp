@@ -48,6 +48,15 @@ class OutcomeMonitor {
   /// The probe's growth so far: ‖kick now‖ / ‖kick at the start‖ (NaN or not called: no
   /// probe). Call before observe() of the same evaluation; reset when confirmation restarts.
   void set_probe_growth(double growth) { probe_growth_ = growth; }
+  /// Admits the proven early `slow` verdict (docs/design.md, "A proven early slow verdict").
+  /// The caller vouches that the criterion's value (the gap, or ‖∇J‖) at evaluation t is
+  /// √(Σᵢ aᵢ rᵢᵗ) or Σᵢ aᵢ rᵢᵗ with aᵢ ≥ 0 and 0 ≤ rᵢ < 1: gd at a constant rate α below
+  /// 2/λ_max on a convex quadratic, with evaluations every `every` iterations. Then the ratio of
+  /// successive values never decreases, so the run cannot diverge or ring, and once even the
+  /// current ratio, extrapolated, leaves the value above twice the criterion's threshold at the
+  /// last iteration that could still start a confirmable stretch, the run is decided `slow`.
+  /// Only the gap and grad criteria; ignored for the others.
+  void allow_slow_proof(long every);
   /// The classification now; when not decided, the run is taken to have used its budget.
   Classification result() const;
   /// The criterion in force after resolving `automatic`.
@@ -57,6 +66,8 @@ class OutcomeMonitor {
   double progress_value(const TracePoint& p) const;  // gap when known, else cost
   bool criterion_met(const TracePoint& p);
   double overshoot() const;
+  double criterion_value(const TracePoint& p) const;  // gap or ‖∇J‖ (the proof's series)
+  std::optional<std::string> proven_slow(const TracePoint& p) const;
 
   OutcomeSettings settings_;
   bool has_optimum_;
@@ -72,6 +83,10 @@ class OutcomeMonitor {
   long confirm_until_ = 0;
   double probe_growth_ = kMissing;
   std::optional<long> lost_from_, lost_at_;  // the last stretch that broke during confirmation
+  long proof_every_ = 0;           // > 0: the slow proof is admitted (allow_slow_proof)
+  bool proof_monotone_ = true;     // every criterion value so far at most the one before
+  double proof_prev_ = kMissing;   // the criterion value at the previous evaluation
+  long proof_prev_iter_ = -1;
   std::deque<double> window_;  // plateau: last w+1 costs
   std::optional<Classification> decided_;
 };

@@ -19,6 +19,11 @@ struct RunSettings {
   /// runs then have no gap, and the automatic criterion falls back to the plateau. For
   /// criteria that need no J* (cost, grad, plateau). Default false: J* when the problem has one.
   bool skip_optimum = false;
+  /// Stop a run as soon as `slow` is proven (gd at a constant rate on a convex quadratic:
+  /// docs/design.md, "A proven early slow verdict"); the outcome is the same as at the end of
+  /// the budget, the trace shorter. false runs every slow run to its budget (for comparisons
+  /// with loops that do). Default true.
+  bool prove_slow = true;
 };
 
 }  // namespace stepgate

@@ -87,6 +87,12 @@ class Problem {
   /// A global bound on the Lipschitz constant of ∇J where one is known in closed form; NaN otherwise.
   virtual double smoothness_bound() const { return kMissing; }
 
+  /// For a problem whose cost is exactly a convex quadratic, J(w) = J* + ½(w − w*)ᵀH(w − w*)
+  /// with H constant and positive semi-definite (quadratics, least squares): a proven upper bound
+  /// on λ_max(H), never below it (rounding included). NaN for every other problem. It admits the
+  /// proven early `slow` verdict of gd (docs/design.md, "A proven early slow verdict").
+  virtual double quadratic_curvature_bound() const { return kMissing; }
+
   /// Layout of a linear model's parameters; nullopt for problems that are not linear models.
   virtual std::optional<LinearLayout> linear_layout() const { return std::nullopt; }
 };

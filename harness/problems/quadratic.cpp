@@ -105,6 +105,10 @@ class Quadratic final : public Problem {
   Mat hessian(const Vec&) const override { return A_; }
   std::optional<Optimum> optimum() const override { return Optimum{w_star_, 0.0, "exact"}; }
   double smoothness_bound() const override { return opt_.L; }
+  // λ_max of the rounded A_ is within p·ε·L of the drawn spectrum's largest value (Weyl).
+  double quadratic_curvature_bound() const override {
+    return lambda_.maxCoeff() * (1.0 + 1e-10);
+  }
 
  private:
   QuadraticOptions opt_;

@@ -24,6 +24,7 @@ void compare(const char* name, const Problem& p, const OptimizerSpec& spec, std:
   RunSettings s;
   s.budget = budget;
   s.outcome.tol = 1e-30;  // every lane runs the whole budget: the comparison is per iteration
+  s.prove_slow = false;   // (gd on least squares would be proven slow at once)
   s.keep_final_params = false;
   const double batch = seconds([&] { run_batch(p, spec, s, rates, {1, 0}); });
   const double alone = seconds([&] {
