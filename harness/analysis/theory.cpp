@@ -26,9 +26,14 @@ static const char* rule_text(StepRule rule) {
 }
 
 Theory theory_for(const Problem& problem, const Vec& start, StepRule rule, double beta,
-                  const CurvatureOptions& opt) {
+                  const CurvatureOptions& opt, bool use_optimum) {
   Theory t;
   t.at_start = curvature_at(problem, start, opt);
+  if (!use_optimum) {
+    t.L = t.at_start.lambda_max;
+    t.mu = t.at_start.lambda_min;
+    return t;
+  }
   if (auto optimum = problem.optimum()) {
     t.at_optimum = curvature_at(problem, optimum->w, opt);
     t.L = t.at_optimum.lambda_max;

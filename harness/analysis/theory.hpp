@@ -25,7 +25,9 @@ struct Theory {
 };
 
 /// Computes the Theory of a problem for a step rule. `start` is the runs' starting point.
+/// `use_optimum` false (the suite skips the optimum): curvature at the start only, and no
+/// threshold, since a nonlinear problem's threshold is local to its optimum.
 Theory theory_for(const Problem& problem, const Vec& start, StepRule rule, double beta,
-                  const CurvatureOptions& opt = {});
+                  const CurvatureOptions& opt = {}, bool use_optimum = true);
 
 }  // namespace stepgate

@@ -132,7 +132,10 @@ std::string cost_plot_html(const CaseResult& c) {
       "<figcaption class=\"note\">First seed, {} of its rates (grid and fixed rates first); x: iteration + 1 on a "
       "log scale; y: log10 of {}{}; values that are not positive and finite are left out; "
       "<span class=\"xmark\">×</span> ends a diverged run.</figcaption>\n</figure>\n",
-      runs.size(), html_escape(what), use_gap ? fmt::format(" (optimum {})", html_number(c.optimum_cost)) : "");
+      runs.size(), html_escape(what),
+      use_gap                          ? fmt::format(" (optimum {})", html_number(c.optimum_cost))
+      : std::isfinite(c.optimum_cost) ? std::string()
+                                       : " (no optimum known, hence no gap; curvature " + html_escape(c.theory.method) + ")");
   return out;
 }
 

@@ -14,8 +14,8 @@ StepRule step_rule(const OptimizerSpec& spec) {
 }
 
 Theory case_theory(const Problem& problem, const OptimizerSpec& spec, const Vec& start,
-                   const CurvatureOptions& opt) {
-  return theory_for(problem, start, step_rule(spec), spec.beta, opt);
+                   const CurvatureOptions& opt, bool use_optimum) {
+  return theory_for(problem, start, step_rule(spec), spec.beta, opt, use_optimum);
 }
 
 }  // namespace stepgate

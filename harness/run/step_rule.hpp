@@ -10,7 +10,8 @@ namespace stepgate {
 StepRule step_rule(const OptimizerSpec& spec);
 
 /// Theory for one (problem, optimizer): curvature at `start` and at the optimum, predicted blow-up.
+/// `use_optimum`: as theory_for.
 Theory case_theory(const Problem& problem, const OptimizerSpec& spec, const Vec& start,
-                   const CurvatureOptions& opt = {});
+                   const CurvatureOptions& opt = {}, bool use_optimum = true);
 
 }  // namespace stepgate

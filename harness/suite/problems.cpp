@@ -39,7 +39,7 @@ const std::vector<KindKey>& kind_keys() {
       {"start_radius", {K::quadratic}},
       {"function", {K::test_function}},
       {"command", {K::command}},
-      {"optimum", {K::command}},
+      {"optimum", {K::command, K::logistic, K::softmax}},
   };
   return keys;
 }
@@ -234,6 +234,21 @@ void read_command(const ObjectNode& o, ProblemSpec& p) {
   if (auto n = o.find("optimum")) spec.optimum = n->number();
 }
 
+// `"optimum": "skip"` (logistic, softmax): no Newton solve for J*, whose cost at scale can
+// outweigh the runs. Only where nothing needs J*: not the gap criterion, not reference values
+// (they are compared with the optimum). The automatic criterion then resolves to the plateau.
+void read_optimum_skip(const ObjectNode& o, ProblemSpec& p) {
+  const auto n = o.find("optimum");
+  if (!n) return;
+  n->choice({"skip"}, "optimum");
+  if (p.run.outcome.criterion == Criterion::gap)
+    n->fail("found \"skip\" with the gap criterion, which measures the distance to J*; expected the "
+            "criterion cost, grad or plateau (or automatic, which then means plateau), or no \"optimum\" key");
+  if (p.reference)
+    n->fail("found \"skip\" with reference values, which are compared with the optimum; expected one of the two");
+  p.run.skip_optimum = true;
+}
+
 // Every placeholder of every argument must be known (the run fails otherwise, too late).
 void check_placeholders(const ObjectNode& o, const Suite& suite, const ProblemSpec& p) {
   const Node argv = o.require("command").member("argv");
@@ -296,6 +311,7 @@ ProblemSpec read_problem(const Node& node, const std::optional<Node>& defaults,
     check_placeholders(o, suite, p);
   }
   if (has_data(p.kind)) read_problem_reference(o, suite, p);
+  if (p.kind == ProblemKind::logistic || p.kind == ProblemKind::softmax) read_optimum_skip(o, p);
   // A command's reference values are compared with its last {"params": [...]} line, in the
   // order the file gives them (stepgate cannot know the program's parameter names).
   if (p.kind == ProblemKind::command)

@@ -1,9 +1,12 @@
 // The search of one case on quadratics, where the answer is known: gd's safe range ends at
 // 2/L (Polyak 1987, sect. 1.4, recalled from memory; see tests/reference/test_thresholds.cpp).
 #include <catch2/catch.hpp>
+#include <atomic>
 #include <cmath>
 #include <fmt/format.h>
 
+#include "stepgate/data/generate.hpp"
+#include "stepgate/problems/linear_models.hpp"
 #include "stepgate/problems/quadratic.hpp"
 #include "stepgate/search/case_search.hpp"
 #include "stepgate/search/rate_grid.hpp"
@@ -30,6 +33,26 @@ std::unique_ptr<Problem> quadratic(double L, double kappa, std::uint64_t seed) {
   q.seed = seed;
   return make_quadratic(q);
 }
+
+// Forwards to another problem and counts the requests for its optimum.
+class CountingOptimum final : public Problem {
+ public:
+  explicit CountingOptimum(const Problem& inner) : inner_(inner) {}
+  std::string_view kind() const override { return inner_.kind(); }
+  Index dim() const override { return inner_.dim(); }
+  Index samples() const override { return inner_.samples(); }
+  Vec start(std::uint64_t seed) const override { return inner_.start(seed); }
+  void evaluate(const Mat& W, Evaluation& out, Scratch& s) const override { inner_.evaluate(W, out, s); }
+  void hessian_vector(const Vec& w, const Vec& v, Vec& out) const override { inner_.hessian_vector(w, v, out); }
+  std::optional<Optimum> optimum() const override {
+    ++calls;
+    return inner_.optimum();
+  }
+  mutable std::atomic<int> calls{0};
+
+ private:
+  const Problem& inner_;
+};
 
 }  // namespace
 
@@ -165,4 +188,45 @@ TEST_CASE("ragged zone: converged rates above the edge are recorded, the edge st
   CHECK(s.ragged_top == top);
   CHECK(s.seeds.front().ragged_top == top);
   CHECK(s.ragged_top > s.edge);
+}
+
+TEST_CASE("optimum skipped: no optimum is computed, theory says why, the plateau criterion decides", "[search]") {
+  GeneratedSpec g;
+  g.kind = GeneratedSpec::logistic;
+  g.rows = 400;
+  g.features = 4;
+  g.seed = 3;
+  const auto logistic = make_logistic(generate(g, "labels").data);
+  CaseSearchInput in = gd_case();
+  in.run.budget = 3000;
+  in.rates.grid = RateGrid{1e-2, 100.0, 2};
+  in.seeds = {1};
+
+  CountingOptimum skipped(*logistic);
+  in.run.skip_optimum = true;
+  const CaseSearchOutput out = search_case(skipped, in);
+  CHECK(skipped.calls == 0);
+  CHECK(std::isnan(out.optimum_cost));
+  CHECK(std::isnan(out.theory.predicted_blowup));
+  CHECK(out.theory.rule.empty());
+  CHECK(std::isnan(out.theory.lambda_max_optimum));
+  CHECK(out.theory.lambda_max_start > 0.0);
+  CHECK(out.theory.method.find("the suite skips the optimum") != std::string::npos);
+  int converged = 0;
+  for (const StoredRun& r : out.runs) {
+    for (const TracePoint& p : r.record.trace) REQUIRE(std::isnan(p.gap));
+    if (r.record.outcome == Outcome::converged) {
+      ++converged;
+      CHECK(r.record.reason.find("plateau criterion") == 0);
+    }
+  }
+  CHECK(converged > 0);
+  CHECK(std::isfinite(out.summary.edge));
+
+  CountingOptimum kept(*logistic);
+  in.run.skip_optimum = false;
+  const CaseSearchOutput with = search_case(kept, in);
+  CHECK(kept.calls > 0);
+  CHECK(std::isfinite(with.optimum_cost));
+  CHECK(std::isfinite(with.theory.predicted_blowup));
 }

@@ -342,6 +342,30 @@ TEST_CASE("suite: malformed suites fail at the right pointer with a helpful mess
        "/problems/0/pinned/nag", "does not use"},
       {"pinned zero", [](Json& j) { j["problems"][0]["pinned"] = 0; }, "/problems/0/pinned",
        "expected a rate > 0, found 0"},
+      {"optimum skip on least squares (its optimum is closed form)",
+       [](Json& j) { j["problems"][0]["optimum"] = "skip"; }, "/problems/0/optimum",
+       "key 'optimum' does not apply to a least_squares problem; it is for: command, logistic, softmax"},
+      {"optimum other than skip on logistic",
+       [](Json& j) {
+         j["problems"][0]["kind"] = "logistic";
+         j["problems"][0]["optimum"] = 0.25;
+       },
+       "/problems/0/optimum", "one of: skip"},
+      {"optimum skip with the gap criterion",
+       [](Json& j) {
+         j["problems"][0]["kind"] = "logistic";
+         j["problems"][0]["optimum"] = "skip";
+         j["problems"][0]["outcome"] = {{"criterion", "gap"}};
+       },
+       "/problems/0/optimum", "found \"skip\" with the gap criterion"},
+      {"optimum skip with reference values",
+       [](Json& j) {
+         j["problems"][0]["kind"] = "logistic";
+         j["problems"][0]["optimum"] = "skip";
+         j["problems"][0]["reference"] = {{"source", "x"},
+                                          {"coefficients", {{"size", 1.0}, {"rooms", 2.0}, {"sold", 0.5}, {"intercept", 0.0}}}};
+       },
+       "/problems/0/optimum", "with reference values"},
       {"negative fixed rate",
        [](Json& j) {
          j["problems"][0]["rates"]["fixed"] = {0.1, -1};
