@@ -11,6 +11,18 @@ struct NewtonOracle {
   std::function<double(const Vec& w, Vec& grad)> cost_grad;
   std::function<Mat(const Vec& w)> hessian;                         ///< dense, used when p <= dense_limit
   std::function<void(const Vec& w, const Vec& v, Vec& out)> hvp;    ///< used by Newton-CG otherwise
+  /// Newton-CG, optional: the Hessian at w prepared once per Newton step (what every product
+  /// at w shares, such as the class probabilities), returning v ↦ H(w)·v. Empty: `hvp`.
+  std::function<std::function<void(const Vec& v, Vec& out)>(const Vec& w)> hvp_at;
+  /// Newton-CG, optional: a positive diagonal M ≈ diag H(w), for Jacobi-preconditioned CG. It
+  /// must map H's null space into itself (then CG from 0 stays in H's range, which keeps the
+  /// minimum-norm property); a diagonal shared by all classes of softmax does. Empty: plain CG.
+  std::function<Vec(const Vec& w)> diagonal;
+  /// Newton-CG, optional: removes from a vector its part in H's null space (known in closed
+  /// form, the same at every w). In exact arithmetic CG from 0 never leaves H's range; over
+  /// thousands of iterations rounding feeds the null space, which H never damps, so the
+  /// minimum-norm iterate drifts. Applied to every preconditioned residual and to the step.
+  std::function<void(Vec& v)> project;
   Index dense_limit = 2000;
   /// Solve the Newton system for its minimum-norm solution (complete orthogonal decomposition;
   /// CG from zero has the same property): keeps iterates in the range of a singular Hessian.
@@ -24,6 +36,7 @@ struct NewtonResult {
   double grad_norm = 0.0;
   double last_step = 0.0;  ///< norm of the last accepted step
   int steps = 0;
+  long cg_iterations = 0;  ///< Hessian-vector products of Newton-CG over all steps (0: dense)
   /// The steps collapsed (last ≤ 1e-6·(1 + ‖w‖)), as they do when Newton converges
   /// quadratically. When the infimum is not attained (separable data without l2) the steps
   /// stay of constant size while ‖w‖ grows, and this stays false (even if the gradient

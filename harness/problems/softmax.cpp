@@ -2,6 +2,7 @@
 // s = 1/n (mean) or 1 (sum). Parameters: (d+1) x C, column c = weights of class c, then its
 // intercept; the full (over-complete) parameterisation.
 #include <cmath>
+#include <memory>
 #include <mutex>
 #include <stdexcept>
 
@@ -67,16 +68,8 @@ class Softmax final : public detail::LinearModel {
   }
 
   void hessian_vector(const Vec& w, const Vec& v, Vec& out) const override {
-    const Index C = outputs_;
-    Mat P = Xaug_ * Eigen::Map<const Mat>(w.data(), rows_per_output_, C);
-    probabilities(P);
-    Mat U = Xaug_ * Eigen::Map<const Mat>(v.data(), rows_per_output_, C);
-    // Per row: (diag(p) − p pᵀ) u = p ⊙ (u − pᵀu).
-    const Vec pu = P.cwiseProduct(U).rowwise().sum();
-    U = P.cwiseProduct(U.colwise() - pu);
-    out.resize(dim());
-    Eigen::Map<Mat>(out.data(), rows_per_output_, C).noalias() = data_weight() * (Xaug_.transpose() * U);
-    add_ridge(v, out);
+    Mat U;
+    product(probabilities_at(w), v, out, U);
   }
 
   Mat hessian(const Vec& w) const override {
@@ -151,6 +144,49 @@ class Softmax final : public detail::LinearModel {
     return loss;
   }
 
+  /// softmax(Xaug·W) at w: n x C.
+  Mat probabilities_at(const Vec& w) const {
+    Mat P = Xaug_ * Eigen::Map<const Mat>(w.data(), rows_per_output_, outputs_);
+    probabilities(P);
+    return P;
+  }
+
+  /// out = ∇²J·v with the probabilities P at the point; U is working memory (n x C).
+  void product(const Mat& P, const Vec& v, Vec& out, Mat& U) const {
+    U.noalias() = Xaug_ * Eigen::Map<const Mat>(v.data(), rows_per_output_, outputs_);
+    // Per row: (diag(p) − p pᵀ) u = p ⊙ (u − pᵀu).
+    const Vec pu = P.cwiseProduct(U).rowwise().sum();
+    U = P.cwiseProduct(U.colwise() - pu);
+    out.resize(dim());
+    Eigen::Map<Mat>(out.data(), rows_per_output_, outputs_).noalias() = data_weight() * (Xaug_.transpose() * U);
+    add_ridge(v, out);
+  }
+
+  /// The Jacobi preconditioner of Newton-CG: per feature j, s·Σᵢ xᵢⱼ²·qᵢ (+ l2 on weights) with
+  /// qᵢ = mean over classes of pᵢc(1 − pᵢc), the same for every class. Being shared by the
+  /// classes, it maps the Hessian's null space (one vector added to every class) into itself,
+  /// as NewtonOracle::diagonal requires. A column of zeros without l2 gets 1 (any value does).
+  Vec class_shared_diagonal(const Vec& w) const {
+    const Mat P = probabilities_at(w);
+    const Vec q = (P.array() * (1.0 - P.array())).rowwise().mean();
+    const Index m = rows_per_output_;
+    Vec d(m);
+    for (Index j = 0; j < m; ++j) d[j] = data_weight() * Xaug_.col(j).cwiseAbs2().dot(q);
+    d.head(features_).array() += opt_.l2;  // l2 on the weights, none on the intercept
+    for (Index j = 0; j < m; ++j)
+      if (!(d[j] > 0.0)) d[j] = 1.0;
+    return d.replicate(outputs_, 1);
+  }
+
+  /// Removes the Hessian's null space from v: one vector added to every class's parameters
+  /// changes no probability, so on the rows that l2 does not hold in place (the intercept; every
+  /// row without l2) v's mean over the classes goes.
+  void remove_class_shift(Vec& v) const {
+    Eigen::Map<Mat> V(v.data(), rows_per_output_, outputs_);
+    const Index from = opt_.l2 > 0.0 ? features_ : 0;
+    for (Index j = from; j < rows_per_output_; ++j) V.row(j).array() -= V.row(j).mean();
+  }
+
   /// Logits to probabilities, row by row (log-sum-exp stabilised).
   void probabilities(Mat& Z) const {
     for (Index i = 0; i < Z.rows(); ++i) {
@@ -172,10 +208,23 @@ class Softmax final : public detail::LinearModel {
     };
     oracle.hessian = [this](const Vec& w) { return hessian(w); };
     oracle.hvp = [this](const Vec& w, const Vec& v, Vec& out) { hessian_vector(w, v, out); };
+    // Newton-CG (p > 2000): the probabilities once per Newton step, not once per product.
+    oracle.hvp_at = [this](const Vec& w) {
+      auto P = std::make_shared<const Mat>(probabilities_at(w));
+      auto U = std::make_shared<Mat>();
+      return std::function<void(const Vec&, Vec&)>(
+          [this, P, U](const Vec& v, Vec& out) { product(*P, v, out, *U); });
+    };
+    oracle.diagonal = [this](const Vec& w) { return class_shared_diagonal(w); };
+    oracle.project = [this](Vec& v) { remove_class_shift(v); };
     oracle.min_norm = opt_.l2 == 0.0 || opt_.intercept;
     const detail::NewtonResult r = detail::newton_minimise(oracle, Vec::Zero(dim()));
     if (opt_.l2 == 0.0 && !r.settled) return std::nullopt;
-    return Optimum{r.w, r.cost, fmt::format("Newton ({} steps, |grad| {:.2e})", r.steps, r.grad_norm)};
+    return Optimum{r.w, r.cost,
+                   r.cg_iterations > 0
+                       ? fmt::format("Newton-CG ({} steps, {} Hessian products, |grad| {:.2e})", r.steps,
+                                     r.cg_iterations, r.grad_norm)
+                       : fmt::format("Newton ({} steps, |grad| {:.2e})", r.steps, r.grad_norm)};
   }
 
   std::vector<Index> label_;
