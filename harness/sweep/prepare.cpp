@@ -142,6 +142,16 @@ static DatasetInfo describe(const DatasetSpec& spec, const Dataset& d) {
 
 PreparedSweep prepare_problems(const Suite& suite, const Plan& plan) {
   std::map<std::string, Dataset> raw;  // loaded once per dataset
+  // Problems (with their own copy of the features) still to build per data set: the raw copy
+  // is moved into the last one rather than copied, so that at most two copies of a data set
+  // are held at once (raw or scaled, and the problem's [X 1]), not three.
+  std::map<std::string, int> pending;
+  {
+    std::set<PreparedKey> seen;
+    for (const PlannedCase& c : plan.cases)
+      if (const ProblemSpec& p = suite.problems[c.problem]; uses_dataset(p) && seen.insert({c.problem, c.scaling}).second)
+        ++pending[p.dataset];
+  }
   PreparedSweep sweep;
   std::map<PreparedKey, PreparedProblem>& out = sweep.problems;
   for (const PlannedCase& c : plan.cases) {
@@ -157,7 +167,13 @@ PreparedSweep prepare_problems(const Suite& suite, const Plan& plan) {
         const Dataset& d = raw.emplace(p.dataset, load_dataset(spec)).first->second;
         sweep.datasets.push_back(describe(spec, d));
       }
-      Dataset data = raw.at(p.dataset);
+      Dataset data;
+      if (--pending[p.dataset] == 0) {
+        data = std::move(raw.at(p.dataset));
+        raw.erase(p.dataset);
+      } else {
+        data = raw.at(p.dataset);
+      }
       try {
         apply_scaling(data, suite.scalings.at(c.scaling));
       } catch (const InputError& e) {
