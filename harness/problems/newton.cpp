@@ -6,23 +6,19 @@ namespace stepgate::detail {
 namespace {
 
 /// Truncated conjugate gradients for H d = -g from d = 0 (stops at negative curvature),
-/// preconditioned by the oracle's diagonal when it has one (Jacobi). Features on very
+/// preconditioned by the prepared Hessian's diagonal when it has one (Jacobi). Features on very
 /// different scales (pixels that are almost always 0 next to busy ones) make H's diagonal span
 /// decades; dividing by it removes that part of the condition number, which is what plain CG
 /// pays for in iterations. The stopping rule is on the unpreconditioned residual, as before.
 Vec newton_cg_direction(const NewtonOracle& o, const Vec& w, const Vec& g, long& products) {
   const Index p = g.size();
-  std::function<void(const Vec&, Vec&)> H;
-  if (o.hvp_at) H = o.hvp_at(w);
-  else H = [&](const Vec& v, Vec& out) { o.hvp(w, v, out); };
+  PreparedHessian prepared;
+  if (o.prepare) prepared = o.prepare(w);
+  else prepared.product = [&](const Vec& v, Vec& out) { o.hvp(w, v, out); };
+  const auto& H = prepared.product;
   Vec inverse_diagonal;
-  if (o.diagonal) {
-    inverse_diagonal = o.diagonal(w);
-    if (inverse_diagonal.size() != p || !(inverse_diagonal.array() > 0.0).all() || !inverse_diagonal.allFinite())
-      inverse_diagonal.resize(0);  // not usable: plain CG
-    else
-      inverse_diagonal = inverse_diagonal.cwiseInverse();
-  }
+  if (prepared.diagonal.size() == p && (prepared.diagonal.array() > 0.0).all() && prepared.diagonal.allFinite())
+    inverse_diagonal = prepared.diagonal.cwiseInverse();  // else not usable: plain CG
   const bool preconditioned = inverse_diagonal.size() == p;
   auto precondition = [&](const Vec& r, Vec& z) {
     if (preconditioned) z = inverse_diagonal.cwiseProduct(r);

@@ -7,17 +7,22 @@
 
 namespace stepgate::detail {
 
+/// The Hessian at one point, for Newton-CG.
+struct PreparedHessian {
+  std::function<void(const Vec& v, Vec& out)> product;  ///< v ↦ H(w)·v
+  /// Optional (empty: plain CG): a positive diagonal M ≈ diag H(w), for Jacobi-preconditioned
+  /// CG. It must map H's null space into itself (then CG from 0 stays in H's range, which
+  /// keeps the minimum-norm property); a diagonal shared by all classes of softmax does.
+  Vec diagonal;
+};
+
 struct NewtonOracle {
   std::function<double(const Vec& w, Vec& grad)> cost_grad;
   std::function<Mat(const Vec& w)> hessian;                         ///< dense, used when p <= dense_limit
   std::function<void(const Vec& w, const Vec& v, Vec& out)> hvp;    ///< used by Newton-CG otherwise
   /// Newton-CG, optional: the Hessian at w prepared once per Newton step (what every product
-  /// at w shares, such as the class probabilities), returning v ↦ H(w)·v. Empty: `hvp`.
-  std::function<std::function<void(const Vec& v, Vec& out)>(const Vec& w)> hvp_at;
-  /// Newton-CG, optional: a positive diagonal M ≈ diag H(w), for Jacobi-preconditioned CG. It
-  /// must map H's null space into itself (then CG from 0 stays in H's range, which keeps the
-  /// minimum-norm property); a diagonal shared by all classes of softmax does. Empty: plain CG.
-  std::function<Vec(const Vec& w)> diagonal;
+  /// at w shares, such as the class probabilities). Empty: `hvp`, unpreconditioned.
+  std::function<PreparedHessian(const Vec& w)> prepare;
   /// Newton-CG, optional: removes from a vector its part in H's null space (known in closed
   /// form, the same at every w). In exact arithmetic CG from 0 never leaves H's range; over
   /// thousands of iterations rounding feeds the null space, which H never damps, so the

@@ -68,8 +68,8 @@ class Softmax final : public detail::LinearModel {
   }
 
   void hessian_vector(const Vec& w, const Vec& v, Vec& out) const override {
-    Mat U;
-    product(probabilities_at(w), v, out, U);
+    ProductScratch scratch;
+    product(probabilities_at(w), v, out, scratch);
   }
 
   Mat hessian(const Vec& w) const override {
@@ -151,23 +151,29 @@ class Softmax final : public detail::LinearModel {
     return P;
   }
 
-  /// out = ∇²J·v with the probabilities P at the point; U is working memory (n x C).
-  void product(const Mat& P, const Vec& v, Vec& out, Mat& U) const {
+  /// Working memory of product(), reused over the products of one Newton step.
+  struct ProductScratch {
+    Mat U;   ///< n x C
+    Vec pu;  ///< n
+  };
+
+  /// out = ∇²J·v with the probabilities P at the point.
+  void product(const Mat& P, const Vec& v, Vec& out, ProductScratch& s) const {
+    Mat& U = s.U;
     U.noalias() = Xaug_ * Eigen::Map<const Mat>(v.data(), rows_per_output_, outputs_);
     // Per row: (diag(p) − p pᵀ) u = p ⊙ (u − pᵀu).
-    const Vec pu = P.cwiseProduct(U).rowwise().sum();
-    U = P.cwiseProduct(U.colwise() - pu);
+    s.pu.noalias() = P.cwiseProduct(U).rowwise().sum();
+    U = P.cwiseProduct(U.colwise() - s.pu);
     out.resize(dim());
     Eigen::Map<Mat>(out.data(), rows_per_output_, outputs_).noalias() = data_weight() * (Xaug_.transpose() * U);
     add_ridge(v, out);
   }
 
-  /// The Jacobi preconditioner of Newton-CG: per feature j, s·Σᵢ xᵢⱼ²·qᵢ (+ l2 on weights) with
+  /// The Jacobi preconditioner of Newton-CG at the probabilities P: per feature j, s·Σᵢ xᵢⱼ²·qᵢ (+ l2 on weights) with
   /// qᵢ = mean over classes of pᵢc(1 − pᵢc), the same for every class. Being shared by the
   /// classes, it maps the Hessian's null space (one vector added to every class) into itself,
   /// as NewtonOracle::diagonal requires. A column of zeros without l2 gets 1 (any value does).
-  Vec class_shared_diagonal(const Vec& w) const {
-    const Mat P = probabilities_at(w);
+  Vec class_shared_diagonal(const Mat& P) const {
     const Vec q = (P.array() * (1.0 - P.array())).rowwise().mean();
     const Index m = rows_per_output_;
     Vec d(m);
@@ -208,14 +214,16 @@ class Softmax final : public detail::LinearModel {
     };
     oracle.hessian = [this](const Vec& w) { return hessian(w); };
     oracle.hvp = [this](const Vec& w, const Vec& v, Vec& out) { hessian_vector(w, v, out); };
-    // Newton-CG (p > 2000): the probabilities once per Newton step, not once per product.
-    oracle.hvp_at = [this](const Vec& w) {
+    // Newton-CG (p > 2000): the probabilities once per Newton step, for every product and the
+    // preconditioner, not once per product.
+    oracle.prepare = [this](const Vec& w) {
       auto P = std::make_shared<const Mat>(probabilities_at(w));
-      auto U = std::make_shared<Mat>();
-      return std::function<void(const Vec&, Vec&)>(
-          [this, P, U](const Vec& v, Vec& out) { product(*P, v, out, *U); });
+      auto scratch = std::make_shared<ProductScratch>();
+      detail::PreparedHessian h;
+      h.product = [this, P, scratch](const Vec& v, Vec& out) { product(*P, v, out, *scratch); };
+      h.diagonal = class_shared_diagonal(*P);
+      return h;
     };
-    oracle.diagonal = [this](const Vec& w) { return class_shared_diagonal(w); };
     oracle.project = [this](Vec& v) { remove_class_shift(v); };
     oracle.min_norm = opt_.l2 == 0.0 || opt_.intercept;
     const detail::NewtonResult r = detail::newton_minimise(oracle, Vec::Zero(dim()));

@@ -237,8 +237,8 @@ CaseSearchOutput Searcher::search() {
     if (!use_optimum)
       out.theory.method = "at the start only: the suite skips the optimum (\"optimum\": \"skip\"), so there is no "
                           "gap and no predicted threshold (" + t.at_start.method + ")";
-    if (use_optimum)
-      if (auto opt = problem_->optimum()) out.optimum_cost = opt->cost;
+    else if (auto opt = problem_->optimum())
+      out.optimum_cost = opt->cost;
     compare_reference(out);
   } else {
     out.theory.method = "not available (command problem)";

@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "stepgate/analysis/outcome_rules.hpp"
+#include "stepgate/data/generate.hpp"
 #include "stepgate/problems/linear_models.hpp"
 #include "stepgate/problems/quadratic.hpp"
 #include "stepgate/run/batch.hpp"
@@ -78,6 +79,14 @@ OptimizerSpec kind(OptimizerKind k) {
   return s;
 }
 
+std::unique_ptr<Problem> quadratic_1e3(Index dim) {
+  QuadraticOptions q;
+  q.dim = dim;
+  q.condition = 1e3;
+  q.L = 1.0;
+  return make_quadratic(q);
+}
+
 long total_steps(const std::vector<RunRecord>& runs) {
   long n = 0;
   for (const RunRecord& r : runs) n += r.steps;
@@ -87,11 +96,7 @@ long total_steps(const std::vector<RunRecord>& runs) {
 }  // namespace
 
 TEST_CASE("slow proof premise: along gd on a quadratic the gap ratio per evaluation never falls", "[slow_proof]") {
-  QuadraticOptions q;
-  q.dim = 30;
-  q.condition = 1e3;
-  q.L = 1.0;
-  const auto problem = make_quadratic(q);
+  const auto problem = quadratic_1e3(30);
   RunSettings s;
   s.budget = 3000;
   s.prove_slow = false;
@@ -192,27 +197,14 @@ TEST_CASE("slow proof: any rise in the series switches it off", "[slow_proof]") 
 }
 
 TEST_CASE("slow proof in run_batch: same outcomes, fewer iterations, only where it holds", "[slow_proof]") {
-  QuadraticOptions q;
-  q.dim = 40;
-  q.condition = 1e3;
-  q.L = 1.0;
-  const auto quadratic = make_quadratic(q);
-  Dataset ds;
-  {
-    std::mt19937_64 rng(7);
-    std::normal_distribution<double> z;
-    ds.name = "generated";
-    ds.X.resize(300, 6);
-    ds.y.resize(300);
-    for (Index i = 0; i < 300; ++i) {
-      double y = 1.0;
-      for (Index j = 0; j < 6; ++j) y += (ds.X(i, j) = z(rng) * double(j + 1)) * 0.3;
-      ds.y[i] = y + 0.1 * z(rng);
-    }
-    for (int j = 0; j < 6; ++j) ds.features.push_back("x" + std::to_string(j));
-    ds.target = "y";
-    ds.map = FeatureMap::identity(6);
-  }
+  const auto quadratic = quadratic_1e3(40);
+  GeneratedSpec g;  // y = X·w + 1 + 0.1·noise, features on scales 1..6
+  g.rows = 300;
+  g.features = 6;
+  g.seed = 7;
+  g.intercept = 1.0;
+  g.feature_scales = {1, 2, 3, 4, 5, 6};
+  const Dataset ds = generate(g, "generated").data;
   LinearModelOptions lo;
   lo.intercept = true;
   const auto lsq = make_least_squares(ds, lo);
