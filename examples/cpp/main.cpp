@@ -194,7 +194,7 @@ int main(int argc, char** argv) {
     }
 
     const stepgate::SuiteRun run = stepgate::run_suite(suite_path, out_dir, jobs);
-    std::cout << "\n" << stepgate::summary_table(run.results);
+    std::cout << "\n" << stepgate::summary_table(run.results, run.gate);
     std::cout << fmt::format("\nresults: {}\n", run.results_path) << stepgate::findings_text(run.gate, run.results);
     return run.verdict_exit_code();
   } catch (const stepgate::InputError& e) {

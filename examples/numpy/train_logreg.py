@@ -29,16 +29,17 @@ Protocol (stepgate problem kind `command`):
   serving : train_logreg.py --serve   (requests on stdin, one JSON object per line)
 """
 import argparse
-import collections
 import csv
-import json
 import math
 import os
-import select
 import signal
 import sys
 
 import numpy as np
+
+# The command protocol (say, serve), shared by every example: examples/stepgate_command.py.
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
+from stepgate_command import say, serve  # noqa: E402
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 DEFAULT_DATA = os.path.join(HERE, "..", "..", "suites", "data", "breast_cancer.csv")
@@ -117,82 +118,6 @@ def train(model, lr, steps, emit, stopped):
                 w = w - lr * grad
     return w
 
-
-# ---------------------------------------------------------------------------------------
-# stepgate's `command` protocol (the same block is in each example; each file stands alone)
-# ---------------------------------------------------------------------------------------
-
-def say(obj):
-    # json.dumps writes floats with repr (round-trips exactly) and non-finite values as the
-    # bare tokens NaN / Infinity / -Infinity, which stepgate accepts.
-    sys.stdout.write(json.dumps(obj) + "\n")
-    sys.stdout.flush()
-
-
-class Inbox:
-    """JSON lines from fd 0, read with os.read (no Python buffering, so select() on fd 0
-    tells the truth about what is waiting)."""
-
-    def __init__(self):
-        self.partial = b""
-        self.messages = collections.deque()
-        self.eof = False
-
-    def pump(self, block):
-        timeout = None if block else 0.0
-        while not self.eof and select.select([0], [], [], timeout)[0]:
-            chunk = os.read(0, 1 << 16)
-            if not chunk:
-                self.eof = True
-                chunk = b"\n"  # a last line without a newline still counts
-            *lines, self.partial = (self.partial + chunk).split(b"\n")
-            for line in lines:
-                if line.strip():
-                    try:
-                        msg = json.loads(line)
-                    except ValueError:
-                        msg = None
-                    if not isinstance(msg, dict):
-                        sys.exit(f"serve: not a JSON object on stdin: {line[:200]!r}")
-                    self.messages.append(msg)
-            timeout = 0.0
-
-    def next(self):
-        """The next message, waiting for it; None at the end of input."""
-        while not self.messages and not self.eof:
-            self.pump(block=True)
-        return self.messages.popleft() if self.messages else None
-
-    def stop_requested(self, run):
-        """True if a {"stop": run} line has arrived; drops every stop line read so far (a
-        stop for a run that is not running is stale and ignored)."""
-        self.pump(block=False)
-        found = any(m.get("stop") == run for m in self.messages if "stop" in m)
-        if any("stop" in m for m in self.messages):
-            self.messages = collections.deque(m for m in self.messages if "stop" not in m)
-        return found
-
-
-def serve(run_one, default_beta=None):
-    inbox = Inbox()
-    while True:
-        msg = inbox.next()
-        if msg is None:
-            return 0
-        if "run" not in msg:
-            continue  # a stop for a run that has already ended
-        rid = msg["run"]
-        try:
-            rate, seed, budget = float(msg["rate"]), int(msg["seed"]), int(msg["budget"])
-        except (KeyError, TypeError, ValueError) as e:
-            sys.exit(f"serve: request {msg!r}: needs numeric rate, seed and budget ({e})")
-        beta = float(msg["beta"]) if "beta" in msg else default_beta
-        run_one(rate, seed, budget, beta, lambda obj: say({"run": rid, **obj}),
-                lambda: inbox.stop_requested(rid))
-        say({"run": rid, "end": True})
-
-
-# ---------------------------------------------------------------------------------------
 
 def main():
     p = argparse.ArgumentParser(description=__doc__.split("\n")[0])

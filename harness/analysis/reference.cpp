@@ -33,7 +33,7 @@ ReferenceComparison compare_with_reference(const Problem& problem, const Feature
   if (layout->intercept) E.row(d) = b.transpose();
   out.lre.resize(params.size());
   for (Index i = 0; i < params.size(); ++i) out.lre[i] = lre(out.estimate[i], ref.values[i], ref.digits);
-  out.lre_min = *std::min_element(out.lre.begin(), out.lre.end());
+  out.min_lre = *std::min_element(out.lre.begin(), out.lre.end());
   return out;
 }
 

@@ -18,7 +18,7 @@ double lre(double estimate, double certified, double max_digits = 15.0);
 struct ReferenceComparison {
   Vec estimate;                    ///< the solution mapped back to original units
   std::vector<double> lre;         ///< per value
-  double lre_min = kMissing;
+  double min_lre = kMissing;
   std::string source;
 };
 

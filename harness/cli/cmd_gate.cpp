@@ -61,7 +61,7 @@ int report_command(const Args& args) {
   std::string dir = p.vm.count("out") ? p.vm["out"].as<std::string>() : fs::path(path).parent_path().string();
   if (dir.empty()) dir = ".";
   const OutputFolder folder(dir, p.vm.count("out") ? "--out" : "the folder of RESULTS");
-  for (const std::string& w : write_reports(dir, results, baseline ? &*baseline : nullptr, gate))
+  for (const std::string& w : write_reports(dir, ReportInput{results, baseline ? &*baseline : nullptr, gate}, all_reporters()))
     std::cout << "wrote " << w << "\n";
   return kExitPass;
 }
@@ -143,7 +143,7 @@ int merge_command(const Args& args) {
   const std::string out = (fs::path(dir) / "results.json").string();
   OutputSet outputs(dir);
   outputs.stage(out, json_file_text(to_json(merged)));
-  const std::vector<std::string> reports = stage_reports(outputs, dir, ReportInput{merged, nullptr, gate});
+  const std::vector<std::string> reports = stage_reports(outputs, dir, ReportInput{merged, nullptr, gate}, all_reporters());
   outputs.commit();
   std::cout << fmt::format("merged {} shards ({} cases) into {}\nreports: {}\n", paths.size(), merged.cases.size(), out,
                            fmt::join(reports, ", "));

@@ -73,7 +73,7 @@ int run_command(const Args& args) {
       ("suite", po::value<std::string>()->required(), "suite file")
       ("out", po::value<std::string>(), "output folder (default reports/out/SUITE-NAME)")
       ("jobs", po::value<int>()->default_value(0), "worker threads (default: all cores); results do not depend on it")
-      ("baseline", po::value<std::string>(), "accepted baseline: apply the gate, exit 0 pass / 1 fail")
+      ("baseline", po::value<std::string>(), "accepted baseline to compare with (without one only the rules that need none apply); exit 0 pass / 1 fail")
       ("shard", po::value<std::string>(),
        "run only shard K of N of the cases (K/N), or 'slurm': K and N from the job array's environment")
       ("resume", po::bool_switch(), "continue from OUT/journal.jsonl: finished runs are not run again")
@@ -117,18 +117,19 @@ int run_command(const Args& args) {
   }
   line.finish();
   if (!quiet) {
-    std::cout << summary_table(run.results);
+    std::cout << summary_table(run.results, run.gate);
     std::cout << fmt::format("\n{} cases, {} runs; results: {}\nreports: {}\n", run.results.cases.size(), run.runs,
                              run.results_path, fmt::join(run.reports, ", "));
     std::cout << scope_warning(run.results) << "\n";
   }
-  if (run.baseline) print_findings(run.gate, run.results);
+  // With or without a baseline, the verdict is the gate's: without one, the baseline-free
+  // rules decide (exit 1 when one fails), as `check` would.
+  if (!quiet || run.baseline || !run.gate.pass) print_findings(run.gate, run.results);
   if (run.failed_cases > 0) {
     std::cerr << fmt::format("stepgate: failure: {} case(s) could not be run (see the table above)\n", run.failed_cases);
     return kExitToolFailure;
   }
-  if (run.baseline) return run.gate.pass ? kExitPass : kExitFail;
-  return kExitPass;
+  return run.gate.pass ? kExitPass : kExitFail;
 }
 
 }  // namespace stepgate::cli

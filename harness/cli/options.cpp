@@ -51,10 +51,21 @@ Parsed parse_options(const std::vector<std::string>& args, po::options_descripti
     po::store(po::command_line_parser(args).options(options).positional(positional).run(), p.vm);
     if (p.vm.count("help")) {
       // Help lists the options a user types; the positional arguments are in the usage line.
+      // The positional arguments are listed by the word the usage line shows (SUITE), not as
+      // Boost's "--suite arg".
       po::options_description visible;
-      for (const auto& o : options.options())
-        if (!names.count(o->long_name())) visible.add(o);
-      std::cout << usage << "\n\n" << visible << "\n";
+      std::string arguments;
+      for (const auto& o : options.options()) {
+        if (!names.count(o->long_name())) {
+          visible.add(o);
+          continue;
+        }
+        const std::string word = upper(o->long_name()) + (positional.max_total_count() > 1 ? "..." : "");
+        arguments += "  " + word + std::string(word.size() < 22 ? 22 - word.size() : 1, ' ') + o->description() + "\n";
+      }
+      std::cout << usage << "\n\n";
+      if (!arguments.empty()) std::cout << "arguments:\n" << arguments << "\n";
+      std::cout << visible << "\n";
       p.help = true;
       return p;
     }

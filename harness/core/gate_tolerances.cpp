@@ -19,11 +19,11 @@ const std::array<ToleranceField, 8>& tolerance_fields() {
   static const std::array<ToleranceField, 8> fields = {{
       {"edge_moved", &G::edge_moved, 0.0, kNoLimit, "a number >= 0"},
       {"floor_moved", &G::floor_moved, 0.0, kNoLimit, "a number >= 0"},
-      {"best_moved_factor", &G::best_moved_factor, 1.0, kNoLimit, "a number >= 1"},
-      {"min_headroom", &G::min_headroom, 1.0, kNoLimit, "a number >= 1"},
-      {"iterations_grew", &G::iterations_grew, 0.0, kNoLimit, "a number >= 0"},
-      {"min_reference_digits", &G::min_reference_digits, 0.0, 17.0, "a number in [0, 17]"},
-      {"theory_factor", &G::theory_factor, 1.0, kNoLimit, "a number >= 1"},
+      {"best_moved", &G::best_moved, 1.0, kNoLimit, "a number >= 1"},
+      {"pinned_headroom", &G::pinned_headroom, 1.0, kNoLimit, "a number >= 1"},
+      {"pinned_iterations", &G::pinned_iterations, 0.0, kNoLimit, "a number >= 0"},
+      {"min_lre", &G::min_lre, 0.0, 17.0, "a number in [0, 17]"},
+      {"theory", &G::theory, 1.0, kNoLimit, "a number >= 1"},
       {"theory_slack", &G::theory_slack, 0.0, 1.0, "a number in [0, 1]"},
   }};
   return fields;
@@ -47,6 +47,17 @@ const std::vector<std::string>& gate_keys() {
     return out;
   }();
   return keys;
+}
+
+const std::vector<std::pair<std::string_view, std::string_view>>& renamed_gate_keys() {
+  static const std::vector<std::pair<std::string_view, std::string_view>> renamed = {
+      {"best_moved_factor", "best_moved"},
+      {"min_headroom", "pinned_headroom"},
+      {"iterations_grew", "pinned_iterations"},
+      {"min_reference_digits", "min_lre"},
+      {"theory_factor", "theory"},
+  };
+  return renamed;
 }
 
 }  // namespace stepgate

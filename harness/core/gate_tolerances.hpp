@@ -5,6 +5,7 @@
 #include <array>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 namespace stepgate {
@@ -19,17 +20,17 @@ struct GateTolerances {
   /// Floor moved (relative, plus precision): warns. Floors are softer (budget-dependent).
   double floor_moved = 0.25;
   /// Best rate moved by more than this factor (either way) warns. 2: beyond one grid step.
-  double best_moved_factor = 2.0;
-  /// Required headroom: the pinned rate must satisfy floor <= pinned <= edge / min_headroom.
+  double best_moved = 2.0;
+  /// Required headroom: the pinned rate must satisfy floor <= pinned <= edge / pinned_headroom.
   /// 1.5: common practice keeps a shipped rate well below the divergence edge.
-  double min_headroom = 1.5;
+  double pinned_headroom = 1.5;
   /// Iterations at the pinned rate grew by more than this (relative): fails. 0.25.
-  double iterations_grew = 0.25;
+  double pinned_iterations = 0.25;
   /// Minimum LRE (significant digits) required against published reference values. 6.
-  double min_reference_digits = 6.0;
+  double min_lre = 6.0;
   /// Predicted and measured blow-up disagree by more than this factor on a built-in problem:
   /// fails (often a gradient scaled wrongly). 1.25.
-  double theory_factor = 1.25;
+  double theory = 1.25;
   /// One-sided theory rule: where theory gives a threshold, an edge above
   /// predicted × (1 + precision + theory_slack) fails, because no rate above the local
   /// stability limit can converge (Polyak 1987, ch. 1: the map linearised at w* has eigenvalues
@@ -64,5 +65,7 @@ const std::array<ToleranceField, 8>& tolerance_fields();
 const std::array<SeverityField, 3>& severity_fields();
 /// Every key of a `gate` object, numeric then severities.
 const std::vector<std::string>& gate_keys();
+/// Keys of stepgate 0.1 and their names now (each tolerance is named as its rule).
+const std::vector<std::pair<std::string_view, std::string_view>>& renamed_gate_keys();
 
 }  // namespace stepgate

@@ -23,14 +23,14 @@ GateTolerances gate_tolerances_from_json(const JsonField& f) {
     const JsonField v = f[std::string(t.key)];
     // The same ranges as in a suite: a results file whose gate a suite could not have set is
     // damaged, and its rules would compare against nothing (null) or pass everything (< 0).
-    if (v.is_null() || !v.value().is_number() || !t.admits(v.number_or_missing())) v.fail(t.expected);
+    if (v.is_null() || !v.json().is_number() || !t.admits(v.number_or_missing())) v.expected(t.expected);
     g.*t.member = v.number_or_missing();
   }
   for (const SeverityField& s : severity_fields()) {
     if (!f.has(std::string(s.key))) continue;
     const JsonField v = f[std::string(s.key)];
     auto parsed = severity_from_string(v.string());
-    if (!parsed) v.fail("\"pass\", \"warn\" or \"fail\"");
+    if (!parsed) v.expected("\"pass\", \"warn\" or \"fail\"");
     g.*s.member = *parsed;
   }
   return g;

@@ -4,7 +4,7 @@
 #include <nlohmann/json.hpp>
 
 #include "stepgate/core/gate_tolerances.hpp"
-#include "stepgate/core/json_fields.hpp"
+#include "stepgate/core/json_node.hpp"
 
 namespace stepgate {
 

@@ -18,7 +18,7 @@ struct OptimizerSpec {
   double beta = 0.9;          ///< momentum / nesterov: momentum coefficient, in [0, 1)
   double beta1 = 0.9;         ///< adam: first-moment decay (Kingma & Ba 2015, Algorithm 1)
   double beta2 = 0.999;       ///< adam: second-moment decay (ibid.)
-  double rho = 0.9;           ///< rmsprop: decay of the mean square (Tieleman & Hinton 2012)
+  double rho = 0.9;           ///< rmsprop: decay of the mean square (Goodfellow et al. 2016, Alg. 8.5)
   double eps = 1e-8;          ///< adam / rmsprop / adagrad: added to the root in the denominator
   long batch_size = 0;        ///< samples per mini-batch; 0 = full batch. sgd requires > 0;
                               ///< other kinds accept it too (mini-batch momentum, adam, ...)

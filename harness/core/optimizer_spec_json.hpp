@@ -16,8 +16,9 @@ nlohmann::json to_json(const OptimizerSpec& spec);
 /// Inverse of to_json. Every field above is mandatory; unknown extra fields are ignored.
 /// Throws InputError(path + "#" + pointer of the bad field, "expected ..., found ..."); `at` is
 /// the pointer of `j` inside the file. Does not validate() ranges: a stored spec is data.
+/// Reads an optimizer entry of results.json; `pointer` is where `j` lies in the file `path`
+/// (for messages). InputError at the field that is wrong.
 OptimizerSpec optimizer_spec_from_json(const nlohmann::json& j, const std::string& path,
-                                       const nlohmann::json::json_pointer& at =
-                                           nlohmann::json::json_pointer());
+                                       const std::string& pointer = "");
 
 }  // namespace stepgate

@@ -6,7 +6,7 @@
 #include <cmath>
 
 #include "stepgate/core/gate_tolerances_json.hpp"
-#include "stepgate/core/json_fields.hpp"
+#include "stepgate/core/json_node.hpp"
 #include "stepgate/core/optimizer_spec_json.hpp"
 
 namespace stepgate {
@@ -72,6 +72,45 @@ void thin_traces(Results& results, const TraceThinning& t) {
     }
 }
 
+const std::vector<SafeRangeField>& safe_range_fields() {
+  using S = SafeRange;
+  static const std::vector<SafeRangeField> fields = {
+      {"floor", &S::floor},       {"edge", &S::edge},
+      {"blowup", &S::blowup},     {"best_rate", &S::best_rate},
+      {"best_iterations", &S::best_iterations}, {"pinned", &S::pinned},
+      {"pinned_iterations", &S::pinned_iterations}, {"headroom", &S::headroom},
+      {"edge_spread", &S::edge_spread}, {"precision", &S::precision},
+  };
+  return fields;
+}
+
+const std::vector<NumberField<CaseTheory>>& theory_number_fields() {
+  using T = CaseTheory;
+  static const std::vector<NumberField<T>> fields = {
+      {"L", &T::L},
+      {"mu", &T::mu},
+      {"predicted_blowup", &T::predicted_blowup},
+      {"lambda_max_start", &T::lambda_max_start},
+      {"lambda_min_start", &T::lambda_min_start},
+      {"lambda_max_optimum", &T::lambda_max_optimum},
+      {"lambda_min_optimum", &T::lambda_min_optimum},
+  };
+  return fields;
+}
+
+const std::vector<NumberField<SeedSummary>>& seed_number_fields() {
+  using S = SeedSummary;
+  static const std::vector<NumberField<S>> fields = {
+      {"floor", &S::floor}, {"edge", &S::edge}, {"blowup", &S::blowup}, {"best_rate", &S::best_rate},
+      {"ragged_top", &S::ragged_top}};
+  return fields;
+}
+
+const std::vector<TextField<CaseTheory>>& theory_text_fields() {
+  static const std::vector<TextField<CaseTheory>> fields = {{"rule", &CaseTheory::rule}, {"method", &CaseTheory::method}};
+  return fields;
+}
+
 namespace {
 
 json to_json(const RunRecord& r, RunRole role, const TraceThinning& t) {
@@ -81,12 +120,12 @@ json to_json(const RunRecord& r, RunRole role, const TraceThinning& t) {
   const TracePoint* last = r.last();
   const bool converged = r.outcome == Outcome::converged && r.iterations.has_value();
   return {{"rate", finite_or_null(r.rate)},
-          {"seed", r.seed},
+          {"rng_seed", r.seed},
           {"seed_index", r.seed_index},
           {"role", to_string(role)},
           {"outcome", to_string(r.outcome)},
           {"reason", r.reason},
-          {"iterations", converged ? json(*r.iterations) : json(nullptr)},
+          {"converged_at", converged ? json(*r.iterations) : json(nullptr)},
           {"steps", r.steps},
           {"final_cost", last ? finite_or_null(last->cost) : json(nullptr)},
           {"gap", last ? finite_or_null(last->gap) : json(nullptr)},
@@ -107,7 +146,7 @@ json numbers(const std::vector<double>& v) {
 }
 
 json to_json(const ReferenceSummary& r) {
-  return {{"lre_min", finite_or_null(r.lre_min)},
+  return {{"min_lre", finite_or_null(r.min_lre)},
           {"source", r.source},
           {"names", r.names},
           {"lre", numbers(r.lre)},
@@ -115,49 +154,33 @@ json to_json(const ReferenceSummary& r) {
 }
 
 json to_json(const SeedSummary& s) {
-  return {{"seed", s.seed},
-          {"floor", finite_or_null(s.floor)},
-          {"edge", finite_or_null(s.edge)},
-          {"edge_bracket", json::array({finite_or_null(s.edge_lo), finite_or_null(s.edge_hi)})},
-          {"blowup", finite_or_null(s.blowup)},
-          {"best_rate", finite_or_null(s.best_rate)},
-          {"ragged_top", finite_or_null(s.ragged_top)},
-          {"runs", s.runs}};
+  json out = {{"seed", s.seed},
+              {"edge_bracket", json::array({finite_or_null(s.edge_lo), finite_or_null(s.edge_hi)})},
+              {"runs", s.runs}};
+  for (const auto& f : seed_number_fields()) out[std::string(f.key)] = finite_or_null(s.*f.member);
+  return out;
 }
 
 json to_json(const CaseSummary& s) {
   json seeds = json::array();
   for (const SeedSummary& seed : s.seeds) seeds.push_back(to_json(seed));
-  return {{"floor", finite_or_null(s.floor)},
-          {"edge", finite_or_null(s.edge)},
-          {"edge_bracket", json::array({finite_or_null(s.edge_lo), finite_or_null(s.edge_hi)})},
-          {"blowup", finite_or_null(s.blowup)},
-          {"ragged_zone", std::isnan(s.ragged_top)
-                              ? json(nullptr)
-                              : json::array({finite_or_null(s.edge), finite_or_null(s.ragged_top)})},
-          {"best_rate", finite_or_null(s.best_rate)},
-          {"best_iterations", finite_or_null(s.best_iterations)},
-          {"pinned", finite_or_null(s.pinned)},
-          {"pinned_iterations", finite_or_null(s.pinned_iterations)},
-          {"pinned_outcome", s.pinned_outcome ? json(to_string(*s.pinned_outcome)) : json(nullptr)},
-          {"headroom", finite_or_null(s.headroom)},
-          {"edge_spread", finite_or_null(s.edge_spread)},
-          {"precision", finite_or_null(s.precision)},
-          {"runs", s.runs},
-          {"reference", s.reference ? to_json(*s.reference) : json(nullptr)},
-          {"seeds", std::move(seeds)}};
+  json out = json::object();
+  for (const SafeRangeField& f : safe_range_fields()) out[std::string(f.key)] = finite_or_null(s.*f.member);
+  out["edge_bracket"] = json::array({finite_or_null(s.edge_lo), finite_or_null(s.edge_hi)});
+  out["ragged_zone"] =
+      std::isnan(s.ragged_top) ? json(nullptr) : json::array({finite_or_null(s.edge), finite_or_null(s.ragged_top)});
+  out["pinned_outcome"] = s.pinned_outcome ? json(to_string(*s.pinned_outcome)) : json(nullptr);
+  out["runs"] = s.runs;
+  out["reference"] = s.reference ? to_json(*s.reference) : json(nullptr);
+  out["seeds"] = std::move(seeds);
+  return out;
 }
 
 json to_json(const CaseTheory& t) {
-  return {{"L", finite_or_null(t.L)},
-          {"mu", finite_or_null(t.mu)},
-          {"predicted_blowup", finite_or_null(t.predicted_blowup)},
-          {"rule", t.rule},
-          {"method", t.method},
-          {"lambda_max_start", finite_or_null(t.lambda_max_start)},
-          {"lambda_min_start", finite_or_null(t.lambda_min_start)},
-          {"lambda_max_optimum", finite_or_null(t.lambda_max_optimum)},
-          {"lambda_min_optimum", finite_or_null(t.lambda_min_optimum)}};
+  json out = json::object();
+  for (const auto& f : theory_number_fields()) out[std::string(f.key)] = finite_or_null(t.*f.member);
+  for (const auto& f : theory_text_fields()) out[std::string(f.key)] = text_or_null(t.*f.member);
+  return out;
 }
 
 json to_json(const CaseResult& c, const TraceThinning& t) {
@@ -168,14 +191,15 @@ json to_json(const CaseResult& c, const TraceThinning& t) {
           {"scaling", c.scaling},
           {"problem_kind", c.problem_kind},
           {"optimizer", to_json(c.optimizer)},
-          {"dataset", c.dataset},
-          {"data_sha256", c.data_sha256},
+          {"dataset", text_or_null(c.dataset)},
+          {"data_sha256", text_or_null(c.data_sha256)},
           {"optimum_cost", finite_or_null(c.optimum_cost)},
-          {"error", c.error},
+          {"error", text_or_null(c.error)},
           {"theory", to_json(c.theory)},
           {"summary", to_json(c.summary)},
           {"runs", std::move(runs)},
-          {"gate", to_json(c.gate)}};
+          {"gate", to_json(c.gate)},
+          {"wall_seconds", finite_or_null(c.wall_seconds)}};
 }
 
 }  // namespace
@@ -207,6 +231,7 @@ json to_json(const Results& r, const TraceThinning& t) {
             {"kernels", r.host.kernels}}},
           {"started", r.started},
           {"finished", r.finished},
+          {"wall_seconds", finite_or_null(r.wall_seconds)},
           {"shard", r.shard.empty() ? json(nullptr) : json(r.shard)},
           {"gate", to_json(r.gate)},
           {"datasets", std::move(datasets)},

@@ -1,10 +1,11 @@
 // The Results model: everything a sweep of one suite produced, and its JSON form
-// (results.json, format "stepgate.results/1"; docs/design.md, "results.json"). gate/ and report/
+// (results.json, format "stepgate.results/2"; docs/design.md, "results.json"). gate/ and report/
 // read only this. A value that does not exist is NaN / nullopt here and null in JSON.
 #pragma once
 #include <cstdint>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include <nlohmann/json.hpp>
@@ -15,7 +16,7 @@
 
 namespace stepgate {
 
-inline constexpr const char* kResultsFormat = "stepgate.results/1";
+inline constexpr const char* kResultsFormat = "stepgate.results/2";
 
 /// Why a run was made: the search step that asked for it.
 enum class RunRole { grid, fixed, edge, floor, blowup, refine };
@@ -26,6 +27,20 @@ std::optional<RunRole> run_role_from_string(std::string_view s);
 struct StoredRun {
   RunRecord record;
   RunRole role = RunRole::grid;
+};
+
+/// One number of a struct S as results (and baselines) write it: its key and member; NaN is
+/// written as null and null read as NaN. A struct's table is the one place its keys are named.
+template <class S>
+struct NumberField {
+  std::string_view key;
+  double S::*member;
+};
+/// The same for a text that may be absent: "" is written as null and null read as "".
+template <class S>
+struct TextField {
+  std::string_view key;
+  std::string S::*member;
 };
 
 /// Theory beside measurement (docs/design.md, "Theory beside measurement").
@@ -39,6 +54,10 @@ struct CaseTheory {
   std::string method;                  ///< how λ was computed
 };
 
+/// L, mu, predicted_blowup and the four λ of CaseTheory; and its rule and method.
+const std::vector<NumberField<CaseTheory>>& theory_number_fields();
+const std::vector<TextField<CaseTheory>>& theory_text_fields();
+
 /// Per-seed located boundaries.
 struct SeedSummary {
   std::uint64_t seed = 0;          ///< the user's seed number (as in the suite)
@@ -50,17 +69,20 @@ struct SeedSummary {
   double ragged_top = kMissing;
   int runs = 0;
 };
+/// floor, edge, blowup, best_rate and ragged_top of SeedSummary (the bracket is a pair).
+const std::vector<NumberField<SeedSummary>>& seed_number_fields();
 
 struct ReferenceSummary {
-  double lre_min = kMissing;
+  double min_lre = kMissing;
   std::string source;
   std::vector<std::string> names;
   std::vector<double> lre;         ///< per coefficient
   std::vector<double> estimate;    ///< solution in original units (from the best run of the first seed)
 };
 
-/// The located safe range of a case (docs/design.md words: floor, edge, blow-up, best, pinned, headroom).
-struct CaseSummary {
+/// The located safe range of a case (docs/design.md words: floor, edge, blow-up, best, pinned,
+/// headroom): what the results summarise and a baseline keeps of each case, declared once.
+struct SafeRange {
   double floor = kMissing;
   double edge = kMissing;
   double edge_lo = kMissing, edge_hi = kMissing;  ///< edge_bracket: lo safe for all seeds, hi unsafe for some
@@ -75,10 +97,21 @@ struct CaseSummary {
   double best_iterations = kMissing;   ///< median over seeds at best_rate
   double pinned = kMissing;
   double pinned_iterations = kMissing; ///< median over seeds at the pinned rate (when it was run)
-  std::optional<Outcome> pinned_outcome;  ///< worst outcome over seeds at the pinned rate
   double headroom = kMissing;          ///< edge / pinned
   double edge_spread = kMissing;       ///< max/min of the seeds' edges (1 = all agree)
   double precision = kMissing;         ///< search precision in force
+};
+
+/// The numbers of SafeRange. The edge bracket (edge_lo, edge_hi) and the ragged zone are
+/// written by each file in its own form.
+using SafeRangeField = NumberField<SafeRange>;
+/// floor, edge, blowup, best_rate, best_iterations, pinned, pinned_iterations, headroom,
+/// edge_spread, precision: in the order both files write them.
+const std::vector<SafeRangeField>& safe_range_fields();
+
+/// The summary of a case: its safe range, plus what only the results keep.
+struct CaseSummary : SafeRange {
+  std::optional<Outcome> pinned_outcome;  ///< worst outcome over seeds at the pinned rate
   std::optional<ReferenceSummary> reference;
   std::vector<SeedSummary> seeds;
   int runs = 0;
@@ -97,6 +130,9 @@ struct CaseResult {
   std::vector<StoredRun> runs;
   std::string error;         ///< non-empty when the case could not be run at all
   GateTolerances gate;       ///< the gate tolerances in force for this case (suite merged with problem)
+  /// Elapsed seconds from the start of the case's search to its end (timing only; its batched
+  /// lanes share this time, so it is not the sum of its runs' times).
+  double wall_seconds = kMissing;
 };
 
 /// A data set as loaded (before scaling): where it came from and what it held.
@@ -140,6 +176,9 @@ struct Results {
   ToolInfo tool;
   HostInfo host;
   std::string started, finished;  ///< ISO 8601 UTC
+  /// Elapsed seconds of the whole run, preparation included (timing only). Merged shards: the
+  /// longest shard's, as shards run side by side.
+  double wall_seconds = kMissing;
   std::vector<CaseResult> cases;
   /// Shard "K/N" when the results are a shard; "" for a whole suite (results.json: null).
   std::string shard;

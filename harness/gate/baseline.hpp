@@ -10,25 +10,25 @@
 
 namespace stepgate {
 
-inline constexpr const char* kBaselineFormat = "stepgate.baseline/1";
+inline constexpr const char* kBaselineFormat = "stepgate.baseline/2";
+/// Baselines of stepgate 0.1: the same fields, with the host facts under "platform", the min LRE
+/// under "reference_digits" and "" for a missing hash. Still read, so that an accepted baseline need not be accepted again.
+inline constexpr const char* kBaselineFormatV1 = "stepgate.baseline/1";
 
-struct BaselineCase {
+/// What a baseline keeps of a case: its safe range (the fields of CaseSummary's SafeRange,
+/// declared once there), its data's hash, the agreement with a reference and the prediction.
+struct BaselineCase : SafeRange {
   std::string id;
   std::string data_sha256;
-  double floor = kMissing, edge = kMissing, edge_lo = kMissing, edge_hi = kMissing;
-  double blowup = kMissing, best_rate = kMissing, best_iterations = kMissing;
-  double pinned = kMissing, pinned_iterations = kMissing, headroom = kMissing;
-  double reference_digits = kMissing;  ///< min LRE
-  double edge_spread = kMissing, precision = kMissing;
+  double min_lre = kMissing;  ///< min LRE against the reference values; NaN = no reference
   double predicted_blowup = kMissing;
-  double ragged_top = kMissing;  ///< top of the ragged zone [edge, ragged_top]; NaN = none
 };
 
 struct Baseline {
   std::string format = kBaselineFormat;
   SuiteInfo suite;
   ToolInfo tool;
-  HostInfo platform;
+  HostInfo host;  ///< where the accepted results were made (os, machine, cores, kernels)
   std::string accepted;   ///< ISO 8601 UTC, when accepted
   std::string results_started;  ///< when the accepted results were made
   std::vector<BaselineCase> cases;

@@ -15,12 +15,24 @@ std::string_view to_string(Rule r) {
     case Rule::best_moved: return "best_moved";
     case Rule::pinned_headroom: return "pinned_headroom";
     case Rule::pinned_iterations: return "pinned_iterations";
-    case Rule::reference_digits: return "reference_digits";
+    case Rule::min_lre: return "min_lre";
     case Rule::theory: return "theory";
     case Rule::case_presence: return "case_presence";
     case Rule::data_changed: return "data_changed";
   }
   return "edge_moved";
+}
+
+const std::vector<Rule>& baseline_free_rules() {
+  static const std::vector<Rule> rules = {Rule::pinned_headroom, Rule::min_lre, Rule::theory};
+  return rules;
+}
+
+std::optional<Severity> GateReport::worst(const std::string& id) const {
+  std::optional<Severity> w;
+  for (const Finding& f : findings)
+    if (f.case_id == id && (!w || static_cast<int>(f.severity) > static_cast<int>(*w))) w = f.severity;
+  return w;
 }
 
 std::vector<const Finding*> GateReport::of_case(const std::string& id) const {
@@ -106,9 +118,9 @@ void Gate::compare_range(const CaseResult& c, const BaselineCase& b) {
   }
   if (!std::isnan(b.best_rate) && !std::isnan(s.best_rate)) {
     const double factor = std::max(s.best_rate / b.best_rate, b.best_rate / s.best_rate);
-    add(c.id, Rule::best_moved, factor > g.best_moved_factor ? Severity::warn : Severity::pass,
+    add(c.id, Rule::best_moved, factor > g.best_moved ? Severity::warn : Severity::pass,
         fmt::format("best rate {} (factor {:.2f}, allowed {:.2f})", change(b.best_rate, s.best_rate), factor,
-                    g.best_moved_factor),
+                    g.best_moved),
         b.best_rate, s.best_rate);
   }
   if (b.data_sha256 != c.data_sha256)
@@ -121,7 +133,7 @@ void Gate::pinned(const CaseResult& c, const BaselineCase* b) {
   const CaseSummary& s = c.summary;
   const GateTolerances& g = c.gate;
   if (std::isnan(s.pinned)) return;
-  const std::string was = b && !std::isnan(b->headroom) ? fmt::format(" (baseline headroom {:.2f}x)", b->headroom) : "";
+  const std::string was = b && !std::isnan(b->headroom) ? fmt::format(" (baseline headroom {:.3g}×)", b->headroom) : "";
   if (s.pinned_outcome && *s.pinned_outcome != Outcome::converged) {
     add(c.id, Rule::pinned_headroom, Severity::fail,
         fmt::format("pinned rate {} is unsafe: {} for at least one seed{}", num(s.pinned), to_string(*s.pinned_outcome), was),
@@ -134,17 +146,17 @@ void Gate::pinned(const CaseResult& c, const BaselineCase* b) {
         fmt::format("pinned rate {} is below the floor {}{}", num(s.pinned), num(s.floor), was), b ? b->headroom : kMissing,
         s.headroom);
   } else {
-    const bool ok = s.headroom >= g.min_headroom;
+    const bool ok = s.headroom >= g.pinned_headroom;
     add(c.id, Rule::pinned_headroom, ok ? Severity::pass : Severity::fail,
-        fmt::format("pinned rate {}: headroom {:.2f}x (edge {}; required >= {:.2f}x){}", num(s.pinned), s.headroom,
-                    num(s.edge), g.min_headroom, was),
+        fmt::format("pinned rate {}: headroom {:.3g}× (edge {}; required >= {:.3g}×){}", num(s.pinned), s.headroom,
+                    num(s.edge), g.pinned_headroom, was),
         b ? b->headroom : kMissing, s.headroom);
   }
   if (b && !std::isnan(b->pinned_iterations) && !std::isnan(s.pinned_iterations) && b->pinned == s.pinned) {
     const double grew = s.pinned_iterations / b->pinned_iterations - 1.0;
-    add(c.id, Rule::pinned_iterations, grew > g.iterations_grew ? Severity::fail : Severity::pass,
+    add(c.id, Rule::pinned_iterations, grew > g.pinned_iterations ? Severity::fail : Severity::pass,
         fmt::format("iterations at the pinned rate {} (allowed +{:.0f}%)", change(b->pinned_iterations, s.pinned_iterations),
-                    100.0 * g.iterations_grew),
+                    100.0 * g.pinned_iterations),
         b->pinned_iterations, s.pinned_iterations);
   }
 }
@@ -152,15 +164,15 @@ void Gate::pinned(const CaseResult& c, const BaselineCase* b) {
 void Gate::reference(const CaseResult& c) {
   if (!c.summary.reference) return;
   const ReferenceSummary& r = *c.summary.reference;
-  const double need = c.gate.min_reference_digits;
-  if (std::isnan(r.lre_min)) {
-    add(c.id, Rule::reference_digits, Severity::fail,
+  const double need = c.gate.min_lre;
+  if (std::isnan(r.min_lre)) {
+    add(c.id, Rule::min_lre, Severity::fail,
         fmt::format("no converged solution to compare with {}", r.source));
     return;
   }
-  add(c.id, Rule::reference_digits, r.lre_min < need ? Severity::fail : Severity::pass,
-      fmt::format("{:.1f} correct digits (min LRE) against {}; required {:.1f}", r.lre_min, r.source, need), need,
-      r.lre_min);
+  add(c.id, Rule::min_lre, r.min_lre < need ? Severity::fail : Severity::pass,
+      fmt::format("min LRE {:.1f} against {}; required {:.1f}", r.min_lre, r.source, need), need,
+      r.min_lre);
 }
 
 void Gate::theory(const CaseResult& c) {
@@ -188,13 +200,13 @@ void Gate::theory(const CaseResult& c) {
     const double edge = c.summary.edge;
     if (!std::isnan(edge)) {
       const double factor = std::max(edge / predicted, predicted / edge);
-      add(c.id, Rule::theory, factor > c.gate.theory_factor ? Severity::fail : Severity::pass,
+      add(c.id, Rule::theory, factor > c.gate.theory ? Severity::fail : Severity::pass,
           fmt::format("no run diverged up to {}; edge {} vs predicted threshold {} by {} (factor {:.3f}, allowed {:.2f})",
-                      num(top), num(edge), num(predicted), c.theory.rule, factor, c.gate.theory_factor),
+                      num(top), num(edge), num(predicted), c.theory.rule, factor, c.gate.theory),
           predicted, edge);
       return;
     }
-    const bool reachable = predicted * c.gate.theory_factor <= top;
+    const bool reachable = predicted * c.gate.theory <= top;
     add(c.id, Rule::theory, reachable ? Severity::fail : Severity::pass,
         reachable ? fmt::format("theory ({}) predicts blow-up at {}, but no run diverged up to {} and none converged",
                                 c.theory.rule, num(predicted), num(top))
@@ -204,16 +216,16 @@ void Gate::theory(const CaseResult& c) {
     return;
   }
   const double factor = std::max(measured / predicted, predicted / measured);
-  add(c.id, Rule::theory, factor > c.gate.theory_factor ? Severity::fail : Severity::pass,
+  add(c.id, Rule::theory, factor > c.gate.theory ? Severity::fail : Severity::pass,
       fmt::format("blow-up measured {} vs predicted {} by {} (factor {:.3f}, allowed {:.2f})", num(measured),
-                  num(predicted), c.theory.rule, factor, c.gate.theory_factor),
+                  num(predicted), c.theory.rule, factor, c.gate.theory),
       predicted, measured);
 }
 
 GateReport Gate::apply() {
   report_.had_baseline = baseline_ != nullptr;
   if (baseline_ && baseline_->suite.sha256 != results_.suite.sha256)
-    add("(suite)", Rule::data_changed, results_.gate.data_changed,
+    add(kSuiteFindingId, Rule::data_changed, results_.gate.data_changed,
         fmt::format("suite file changed: sha256 {} -> {}", baseline_->suite.sha256, results_.suite.sha256));
   std::set<std::string> seen;
   for (const CaseResult& c : results_.cases) {

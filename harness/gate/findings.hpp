@@ -1,6 +1,7 @@
 // The gate rules (docs/design.md, "Gate") applied to results and a baseline: one finding per case
 // and rule, and the verdict.
 #pragma once
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -15,14 +16,21 @@ enum class Rule {
   edge_moved,          ///< edge moved beyond tolerance + precision + seed spread       (fail)
   floor_moved,         ///< floor moved beyond tolerance + precision                     (warn)
   best_moved,          ///< best rate moved by more than a factor                         (warn)
-  pinned_headroom,     ///< pinned rate outside [floor, edge / min_headroom] or unsafe    (fail)
+  pinned_headroom,     ///< pinned rate outside [floor, edge / pinned_headroom] or unsafe    (fail)
   pinned_iterations,   ///< iterations at the pinned rate grew beyond tolerance           (fail)
-  reference_digits,    ///< min LRE below the requirement                                 (fail)
+  min_lre,    ///< min LRE below the requirement                                 (fail)
   theory,              ///< predicted and measured blow-up (or edge, when nothing blew up) disagree (fail)
   case_presence,       ///< case added (warn) or missing (fail); also "could not be run"
   data_changed,        ///< data or suite SHA-256 differs from the baseline              (warn)
 };
 std::string_view to_string(Rule r);
+
+/// The rules that need no baseline, applied by `check`, `run` and `report` when none is given:
+/// pinned_headroom, min_lre and theory (and case_presence's "could not be run").
+const std::vector<Rule>& baseline_free_rules();
+
+/// The case id of the findings about the suite itself (its file's hash): not a case.
+inline constexpr const char* kSuiteFindingId = "(suite)";
 
 struct Finding {
   std::string case_id;
@@ -37,9 +45,11 @@ struct GateReport {
   std::vector<Finding> findings;    ///< in case order, then rule order
   bool pass = true;                 ///< no finding is `fail`
   int warnings = 0, failures = 0;
-  /// Without a baseline only the rules that need none are applied (pinned, reference, theory).
+  /// Without a baseline only baseline_free_rules() are applied.
   bool had_baseline = false;
   std::vector<const Finding*> of_case(const std::string& id) const;
+  /// The worst severity among the findings of `id`; nullopt when it has none.
+  std::optional<Severity> worst(const std::string& id) const;
 };
 
 /// Applies every rule. `baseline` may be null: then only the baseline-free rules run.

@@ -5,11 +5,6 @@
 
 namespace stepgate::detail {
 
-void AdaGrad::reset(Index p, Index lanes) {
-  set_shape(p, lanes);
-  S_.setZero(p, lanes);
-}
-
 void AdaGrad::step(Mat& P, const Mat& G, const Vec& rates) {
   check_step(P, G, rates);
   S_.array() += G.array().square();

@@ -5,15 +5,6 @@
 
 namespace stepgate::detail {
 
-void Adam::reset(Index p, Index lanes) {
-  set_shape(p, lanes);
-  t_ = 0;
-  beta1_t_ = 1.0;
-  beta2_t_ = 1.0;
-  M_.setZero(p, lanes);
-  V_.setZero(p, lanes);
-}
-
 void Adam::step(Mat& P, const Mat& G, const Vec& rates) {
   check_step(P, G, rates);
   ++t_;

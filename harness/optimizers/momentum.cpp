@@ -4,11 +4,6 @@
 
 namespace stepgate::detail {
 
-void HeavyBall::reset(Index p, Index lanes) {
-  set_shape(p, lanes);
-  V_.setZero(p, lanes);
-}
-
 void HeavyBall::step(Mat& P, const Mat& G, const Vec& rates) {
   check_step(P, G, rates);
   V_ = beta_ * V_ - G * rates.asDiagonal();  // coefficient-wise, so no aliasing temporary

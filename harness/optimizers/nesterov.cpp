@@ -10,11 +10,6 @@
 
 namespace stepgate::detail {
 
-void Nesterov::reset(Index p, Index lanes) {
-  set_shape(p, lanes);
-  V_.setZero(p, lanes);
-}
-
 void Nesterov::step(Mat& P, const Mat& G, const Vec& rates) {
   check_step(P, G, rates);
   const double b2 = beta_ * beta_;

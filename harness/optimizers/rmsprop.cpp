@@ -1,13 +1,9 @@
-// RMSProp (Tieleman & Hinton 2012): a running mean square of the gradient,
+// RMSProp (Tieleman & Hinton 2012, unpublished; written: Goodfellow, Bengio & Courville 2016,
+// *Deep Learning*, Algorithm 8.5): a running mean square of the gradient,
 // S = ρ S + (1 − ρ) G², divides the step: P −= α G / (√S + ε).
 #include "stepgate/optimizers/update_rules.hpp"
 
 namespace stepgate::detail {
-
-void RMSProp::reset(Index p, Index lanes) {
-  set_shape(p, lanes);
-  S_.setZero(p, lanes);
-}
 
 void RMSProp::step(Mat& P, const Mat& G, const Vec& rates) {
   check_step(P, G, rates);

@@ -14,9 +14,15 @@ namespace stepgate::detail {
 
 /// Shape and state bookkeeping shared by all rules: p parameters, K lanes, checked on every
 /// step. A rule registers its per-lane state matrices (p x K) with track() in its constructor;
-/// keep_lanes and append_lanes then act on all of them, so each rule writes only reset and step.
+/// reset, keep_lanes and append_lanes then act on all of them, so each rule writes only step()
+/// (and on_reset() when it keeps state other than matrices, as Adam's step count).
 class LaneOptimizer : public Optimizer {
  public:
+  void reset(Index p, Index lanes) final {
+    set_shape(p, lanes);
+    for (Mat* m : state_) m->setZero(p, lanes);
+    on_reset();
+  }
   void keep_lanes(std::span<const Index> keep) final {
     check_keep(keep);
     for (Mat* m : state_) keep_columns(*m, keep);
@@ -36,6 +42,8 @@ class LaneOptimizer : public Optimizer {
   LaneOptimizer(const LaneOptimizer&) = delete;
   LaneOptimizer& operator=(const LaneOptimizer&) = delete;
   void track(Mat& state) { state_.push_back(&state); }
+  /// Called at the end of reset(), after the tracked matrices are zero.
+  virtual void on_reset() {}
   void set_shape(Index p, Index lanes) {
     if (p < 0 || lanes < 0) throw std::invalid_argument("optimizer reset: negative p or lanes");
     p_ = p;
@@ -70,40 +78,38 @@ class LaneOptimizer : public Optimizer {
 /// gd and sgd: P −= α G (sgd differs only in the caller's mini-batch gradients).
 class GradientDescent final : public LaneOptimizer {
  public:
-  void reset(Index p, Index lanes) override;
   void step(Mat& P, const Mat& G, const Vec& rates) override;
 };
 
-/// Heavy ball (Polyak 1964): V = β V − α G; P += V.
-class HeavyBall final : public LaneOptimizer {
- public:
-  explicit HeavyBall(double beta) : beta_(beta) { track(V_); }
-  void reset(Index p, Index lanes) override;
-  void step(Mat& P, const Mat& G, const Vec& rates) override;
+/// The momentum rules' shared state: a coefficient β and a velocity per lane.
+class VelocityRule : public LaneOptimizer {
+ public:  // abstract (no step), so public only for the rules' inherited constructors
+  explicit VelocityRule(double beta) : beta_(beta) { track(V_); }
 
- private:
+ protected:
   double beta_;
   Mat V_;  ///< velocity, p x K
+};
+
+/// Heavy ball (Polyak 1964): V = β V − α G; P += V.
+class HeavyBall final : public VelocityRule {
+ public:
+  using VelocityRule::VelocityRule;
+  void step(Mat& P, const Mat& G, const Vec& rates) override;
 };
 
 /// Nesterov momentum tracked at the look-ahead point (Bengio, Boulanger-Lewandowski &
 /// Pascanu 2013, eq. 7/8): P += β² V − (1 + β) α G; V = β V − α G.
-class Nesterov final : public LaneOptimizer {
+class Nesterov final : public VelocityRule {
  public:
-  explicit Nesterov(double beta) : beta_(beta) { track(V_); }
-  void reset(Index p, Index lanes) override;
+  using VelocityRule::VelocityRule;
   void step(Mat& P, const Mat& G, const Vec& rates) override;
-
- private:
-  double beta_;
-  Mat V_;  ///< velocity, p x K
 };
 
 /// AdaGrad (Duchi, Hazan & Singer 2011): S += G²; P −= α G / (√S + ε).
 class AdaGrad final : public LaneOptimizer {
  public:
   explicit AdaGrad(double eps) : eps_(eps) { track(S_); }
-  void reset(Index p, Index lanes) override;
   void step(Mat& P, const Mat& G, const Vec& rates) override;
 
  private:
@@ -111,11 +117,12 @@ class AdaGrad final : public LaneOptimizer {
   Mat S_;  ///< sum of squared gradients, p x K
 };
 
-/// RMSProp (Tieleman & Hinton 2012): S = ρ S + (1 − ρ) G²; P −= α G / (√S + ε).
+/// RMSProp (Tieleman & Hinton 2012, unpublished; written source: Goodfellow, Bengio & Courville
+/// 2016, *Deep Learning*, Algorithm 8.5): S = ρ S + (1 − ρ) G²; P −= α G / (√S + ε). Algorithm 8.5
+/// puts its δ inside the root; ε is added to the root here, as PyTorch's RMSprop does.
 class RMSProp final : public LaneOptimizer {
  public:
   RMSProp(double rho, double eps) : rho_(rho), eps_(eps) { track(S_); }
-  void reset(Index p, Index lanes) override;
   void step(Mat& P, const Mat& G, const Vec& rates) override;
 
  private:
@@ -131,10 +138,14 @@ class Adam final : public LaneOptimizer {
     track(M_);
     track(V_);
   }
-  void reset(Index p, Index lanes) override;
   void step(Mat& P, const Mat& G, const Vec& rates) override;
 
  private:
+  void on_reset() override {
+    t_ = 0;
+    beta1_t_ = 1.0;
+    beta2_t_ = 1.0;
+  }
   double beta1_;
   double beta2_;
   double eps_;

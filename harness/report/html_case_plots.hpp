@@ -9,6 +9,7 @@
 #include "stepgate/core/outcome.hpp"
 #include "stepgate/core/results.hpp"
 #include "stepgate/gate/baseline.hpp"
+#include "stepgate/gate/findings.hpp"
 
 namespace stepgate {
 
@@ -17,6 +18,11 @@ std::string_view outcome_colour(Outcome o);
 char outcome_letter(Outcome o);
 /// A value with 4 significant digits; "–" (en dash) for NaN (a value that does not exist).
 std::string html_number(double v);
+
+/// The suite chart: one row per case (and per baseline case missing from the results), every
+/// safe range on one shared log-rate axis, the baseline's outlined above the current one, with
+/// the best rate, the pinned rate and the measured blow-up marked; rows of failing cases in red.
+std::string suite_chart_html(const Results& results, const Baseline* baseline, const GateReport& gate);
 
 /// Log-rate axis over every rate of the case and of its baseline entry (`base` may be null):
 /// current [floor, edge] filled, baseline [floor, edge] outlined above it, markers for the

@@ -53,7 +53,7 @@ double log_or_nan(double v) { return std::isfinite(v) && v > 0.0 ? std::log10(v)
 
 std::string cost_plot_html(const CaseResult& c) {
   const std::vector<const StoredRun*> runs = pick_runs(c);
-  if (runs.empty()) return "<p class=\"note\">No run of the first seed to plot.</p>\n";
+  if (runs.empty()) return "<h3>Cost per iteration, first seed</h3>\n<p class=\"note\">No run of the first seed to plot.</p>\n";
   // Gaps when J* is known and at least one is positive, otherwise the cost itself.
   bool use_gap = false;
   if (std::isfinite(c.optimum_cost))
@@ -70,14 +70,16 @@ std::string cost_plot_html(const CaseResult& c) {
       y_hi = std::max(y_hi, v);
       x_hi = std::max(x_hi, static_cast<double>(p.iter + 1));
     }
-  if (!std::isfinite(y_lo)) return "<p class=\"note\">No positive, finite value to plot.</p>\n";
+  if (!std::isfinite(y_lo))
+    return "<h3>Cost per iteration, first seed</h3>\n<p class=\"note\">No positive, finite value to plot.</p>\n";
   y_lo = std::max(std::floor(y_lo), std::ceil(y_hi) - kMaxDecades);
   y_hi = std::max(std::ceil(y_hi), y_lo + 1.0);
   const svg::LogScale x{1.0, std::pow(10.0, std::ceil(std::log10(x_hi) * 4.0) / 4.0), kLeft, kPlotRight};
   const svg::LinearScale y{y_lo, y_hi, kBottom, kTop};
 
   const std::string what = use_gap ? "cost − optimum" : "cost";
-  std::string out = "<figure class=\"costplot\">\n";
+  std::string out = fmt::format("<h3>{} per iteration, first seed</h3>\n<figure class=\"costplot\">\n",
+                                use_gap ? "Cost − optimum (log scale)" : "Cost (log scale)");
   out += svg::open(kWidth, kHeight, "log10 of " + what + " per iteration at each rate, " + c.id, "plot");
   out += svg::rect(kLeft, kTop, kPlotRight - kLeft, kBottom - kTop, "class=\"frame\"");
   for (double t : svg::decade_ticks(x.lo, x.hi)) {

@@ -109,9 +109,17 @@ std::string range_bar_html(const CaseResult& c, const BaselineCase* base) {
     out += svg::line(x(s.best_rate), kNowTop + 3, x(s.best_rate), kNowTop + kNowHeight - 3, "class=\"best\"");
   // Markers: blow-up labels above the bands, the pinned rate's under them.
   const double predicted = c.theory.predicted_blowup, measured = s.blowup;
+  // Each label names its own line in full ("measured blow-up", "predicted blow-up"); when the
+  // two lines are too close for two labels to read apart, one label names both.
   LabelPlacer labels;
-  if (positive(measured)) marker(out, labels, x(measured), "m-blow", "blow-up");
-  if (positive(predicted)) marker(out, labels, x(predicted), "m-pred", "predicted blow-up");
+  const bool together = positive(measured) && positive(predicted) && std::abs(x(measured) - x(predicted)) < 12.0;
+  if (together) {
+    out += svg::line(x(predicted), kLabelRows[0] + 2, x(predicted), kAxisY, "class=\"m-pred\"");
+    marker(out, labels, x(measured), "m-blow", "measured and predicted blow-up");
+  } else {
+    if (positive(measured)) marker(out, labels, x(measured), "m-blow", "measured blow-up");
+    if (positive(predicted)) marker(out, labels, x(predicted), "m-pred", "predicted blow-up");
+  }
   if (positive(s.pinned)) {
     const double px = x(s.pinned);
     out += svg::line(px, kNowTop - 4, px, kAxisY, "class=\"m-pin\"");
@@ -128,7 +136,7 @@ std::string range_bar_html(const CaseResult& c, const BaselineCase* base) {
   out += fmt::format("<span><i class=\"key key-now\"></i>current {}</span>", range(s.floor, s.edge));
   if (base) out += fmt::format("<span><i class=\"key key-base\"></i>baseline {}</span>", range(base->floor, base->edge));
   out += fmt::format("<span><i class=\"key key-pin\"></i>pinned {}</span>", html_number(s.pinned));
-  out += fmt::format("<span><i class=\"key key-best\"></i>best {}</span>", html_number(s.best_rate));
+  out += fmt::format("<span><i class=\"key key-best\"></i>best rate {}</span>", html_number(s.best_rate));
   out += fmt::format("<span><i class=\"key key-pred\"></i>predicted blow-up {}{}</span>", html_number(predicted),
                      c.theory.rule.empty() ? "" : " (" + html_escape(c.theory.rule) + ")");
   out += fmt::format("<span><i class=\"key key-blow\"></i>measured blow-up {}</span>", html_number(measured));

@@ -8,6 +8,7 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/report/format.hpp"
 #include "stepgate/report/html_case_plots.hpp"
 #include "stepgate/report/html_escape.hpp"
 #include "stepgate/report/html_style.hpp"
@@ -15,10 +16,7 @@
 
 namespace stepgate {
 
-std::string html_number(double v) {
-  if (std::isnan(v)) return "–";
-  return fmt::format("{:.4g}", v);
-}
+std::string html_number(double v) { return format_number(v); }
 
 namespace {
 
@@ -75,8 +73,7 @@ std::string header(const ReportInput& in) {
   out += "<p class=\"meta\">";
   out += fmt::format("<span>suite <code>{}</code></span>", esc(r.suite.path));
   out += fmt::format("<span>sha256 <code>{}</code></span>", esc(r.suite.sha256.substr(0, 12)));
-  out += fmt::format("<span>{} case{}</span>", r.cases.size(), r.cases.size() == 1 ? "" : "s");
-  out += fmt::format("<span>{} fail, {} warn</span>", in.gate.failures, in.gate.warnings);
+  out += "<span class=\"counts\">" + esc(count_line(in.gate, r)) + "</span>";
   if (!r.shard.empty()) out += fmt::format("<span>shard {}</span>", esc(r.shard));
   if (!r.started.empty()) out += fmt::format("<span>run {} to {}</span>", esc(r.started), esc(r.finished));
   out += fmt::format("<span>stepgate {} ({}, {})</span>", esc(r.tool.version), esc(r.tool.compiler), esc(r.tool.build));
@@ -85,16 +82,16 @@ std::string header(const ReportInput& in) {
   if (in.baseline)
     out += fmt::format("<span>baseline accepted {}</span>", esc(in.baseline->accepted));
   else
-    out += "<span>no baseline: only the rules that need none were applied (pinned rate, reference, theory)</span>";
+    out += "<span>" + esc(baseline_free_note()) + "</span>";
   out += "</p>\n";
   out += "<p class=\"scope\">" + esc(scope_warning(r)) + "</p>\n</header>\n";
   return out;
 }
 
 std::string summary_section(const ReportInput& in) {
-  std::string out =
-      "<section class=\"card\">\n<h2>Summary</h2>\n<table>\n<thead><tr><th>case</th><th>floor</th><th>edge</th>"
-      "<th>best rate</th><th>pinned</th><th>headroom</th><th>ref digits</th><th>worst finding</th></tr></thead>\n<tbody>\n";
+  std::string out = "<section class=\"card\">\n<h2>Summary</h2>\n<table>\n<thead><tr>";
+  for (std::string_view h : kSummaryHeadings) out += fmt::format("<th>{}</th>", h);
+  out += "</tr></thead>\n<tbody>\n";
   for (std::size_t i = 0; i < in.results.cases.size(); ++i) {
     const CaseResult& c = in.results.cases[i];
     const CaseSummary& s = c.summary;
@@ -115,8 +112,8 @@ std::string summary_section(const ReportInput& in) {
       out += fmt::format("<td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td>",
                          with_was(s.floor, b ? b->floor : kMissing), edge_cell,
                          html_number(s.best_rate), html_number(s.pinned),
-                         std::isnan(s.headroom) ? "–" : html_number(s.headroom) + "×",
-                         s.reference ? html_number(s.reference->lre_min) : "–");
+                         format_factor(s.headroom),
+                         s.reference ? html_number(s.reference->min_lre) : std::string(kMissingMark));
     }
     out += fmt::format("<td class=\"sev\">{}</td></tr>\n", w ? badge(*w) : "none");
   }
@@ -153,7 +150,10 @@ std::string case_section(const ReportInput& in, std::size_t index) {
                                  ? "none (no rate above the edge converged)"
                                  : fmt::format("[{}, {}]: rates above the edge that still converged",
                                                html_number(s.edge), html_number(s.ragged_top)));
-  out += fact("seed spread of edge", html_number(s.edge_spread));
+  out += fact("seed spread of edge", std::isnan(s.edge_spread)
+                                         ? html_number(s.edge_spread)
+                                         : html_number(s.edge_spread) + " (the largest seed's edge over the smallest's; 1: all "
+                                                                        "seeds agree; the gate allows this much more movement)");
   out += fact("best iterations", html_number(s.best_iterations));
   out += fact("pinned iterations", html_number(s.pinned_iterations) +
                                        (s.pinned_outcome ? " (" + std::string(to_string(*s.pinned_outcome)) + ")" : ""));
@@ -165,12 +165,13 @@ std::string case_section(const ReportInput& in, std::size_t index) {
   if (c.problem_kind == "command")
     out += fact("log lines", fmt::format("{} (output lines of the program that were not protocol lines)", log_lines));
   if (s.reference)
-    out += fact("reference", html_number(s.reference->lre_min) + " digits against " + esc(s.reference->source));
+    out += fact("min LRE", html_number(s.reference->min_lre) + " (about that many correct significant digits) against " +
+                               esc(s.reference->source));
   out += "</dl>\n";
   if (!c.error.empty()) out += "<p class=\"error\">Could not be run: " + esc(c.error) + "</p>\n";
   out += "<h3>Findings</h3>\n" + findings_list(fs, false);
   out += "<h3>Safe range</h3>\n" + range_bar_html(c, b);
-  out += "<h3>Cost per iteration</h3>\n" + cost_plot_html(c);
+  out += cost_plot_html(c);  // with its own heading: it says what the y axis shows
   out += "<h3>Outcome of every run</h3>\n" + outcome_map_html(c);
   out += "</section>\n";
   return out;
@@ -190,6 +191,8 @@ class HtmlReporter final : public Reporter {
     out += html_report_css();
     out += "</style>\n</head>\n<body>\n<main>\n";
     out += header(in);
+    out += "<section class=\"card\">\n<h2>All cases on one axis</h2>\n" +
+           suite_chart_html(in.results, in.baseline, in.gate) + "</section>\n";
     out += summary_section(in);
     out += findings_section(in);
     for (std::size_t i = 0; i < in.results.cases.size(); ++i) out += case_section(in, i);

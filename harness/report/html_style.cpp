@@ -35,7 +35,8 @@ ul.findings li { padding:5px 0; border-bottom:1px solid var(--line); display:gri
                  grid-template-columns:48px 130px 1fr; }
 ul.findings.with-case li { grid-template-columns:48px minmax(180px, 30%) 130px 1fr; }
 ul.findings li .badge { text-align:center; font-size:11.5px; padding:2px 0; }
-ul.findings .rule { color:var(--muted); font-size:12.5px; }
+ul.findings .rule { color:var(--muted); font-size:12.5px; overflow-wrap:anywhere; }
+ul.findings li > span:last-child { min-width:0; overflow-wrap:anywhere; }  /* long messages wrap in their column */
 ul.findings .case { font-weight:600; overflow-wrap:anywhere; }
 details summary { cursor:pointer; color:var(--muted); padding:6px 0; }
 dl.facts { display:grid; grid-template-columns:max-content 1fr max-content 1fr; gap:2px 14px; margin:0; }

@@ -8,10 +8,12 @@
 // - a case that could not be run carries <error> instead of <failure> (counted in "errors");
 // - a case that got no finding at all (no baseline, no pinned rate, no reference, no theory)
 //   gets one <testcase name="no_rule_applied"> with <skipped>, so that it does not vanish;
-// - "time" is the sum of the wall seconds of the case's runs, given to the case's first
-//   testcase (its other testcases get 0), so that testcase times add up to the suite's time.
+// - a testcase's "time" is its case's own elapsed time, given to the case's first testcase (its
+//   other testcases get 0); the testsuite's "time" is the run's elapsed time. With --jobs 2
+//   cases run side by side, so the cases' times may add up to more than the suite's.
 // Nothing else varies between two renderings of the same input: no timestamp, no host name.
 #include <algorithm>
+#include <cmath>
 #include <set>
 #include <sstream>
 #include <string>
@@ -54,11 +56,7 @@ void set_counts(pugi::xml_node node, const Counts& n) {
   attr(node, "time", seconds(n.time));
 }
 
-double wall_seconds(const CaseResult& c) {
-  double sum = 0.0;
-  for (const StoredRun& r : c.runs) sum += r.record.wall_seconds;
-  return sum;
-}
+double known(double seconds) { return std::isfinite(seconds) ? seconds : 0.0; }
 
 pugi::xml_node add_testcase(pugi::xml_node suite, const std::string& case_id, const std::string& name, double time) {
   pugi::xml_node tc = suite.append_child("testcase");
@@ -94,13 +92,12 @@ Counts add_suite(pugi::xml_node root, const ReportInput& in) {
   property("suite_sha256", r.suite.sha256);
   property("tool_version", r.tool.version);
   property("verdict", in.gate.pass ? "pass" : "fail");
-  property("baseline", in.baseline ? in.baseline->accepted : "none");
+  property("baseline_accepted", in.baseline ? in.baseline->accepted : "none");
 
   Counts n;
   auto emit = [&](const std::string& id, const CaseResult* c) {
     const bool not_run = c && !c->error.empty();
-    double time = c ? wall_seconds(*c) : 0.0;
-    n.time += time;
+    double time = c ? known(c->wall_seconds) : 0.0;
     bool any = false;
     for (const Finding& f : in.gate.findings) {
       if (f.case_id != id) continue;
@@ -134,6 +131,7 @@ Counts add_suite(pugi::xml_node root, const ReportInput& in) {
   for (const std::string& id : others_before) emit(id, nullptr);
   for (const CaseResult& c : r.cases) emit(c.id, &c);
   for (const std::string& id : others_after) emit(id, nullptr);
+  n.time = known(r.wall_seconds);
   set_counts(suite, n);
   return n;
 }

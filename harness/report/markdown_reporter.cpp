@@ -10,16 +10,17 @@
 
 #include "stepgate/core/quote_text.hpp"
 
+#include "stepgate/report/format.hpp"
 #include "stepgate/report/reporter.hpp"
 
 namespace stepgate {
 
 namespace {
 
-constexpr const char* kNone = "–";  // en dash: a value that does not exist
+const std::string kNone(kMissingMark);
 
-std::string number(double v) { return std::isnan(v) ? kNone : fmt::format("{:.4g}", v); }
-std::string factor(double v) { return std::isnan(v) ? kNone : fmt::format("{:.4g}x", v); }
+std::string number(double v) { return format_number(v); }
+std::string factor(double v) { return format_factor(v); }
 // The edge, with the top of its ragged zone when some rate above it converged.
 std::string edge_ragged(double edge, double ragged_top) {
   if (std::isnan(edge) || std::isnan(ragged_top)) return number(edge);
@@ -66,11 +67,9 @@ std::string code(const std::string& s) {
   return "`" + out + "`";
 }
 
-Severity worst(const std::vector<const Finding*>& findings) {
-  Severity w = Severity::pass;
-  for (const Finding* f : findings)
-    if (static_cast<int>(f->severity) > static_cast<int>(w)) w = f->severity;
-  return w;
+std::string worst_word(const GateReport& gate, const std::string& id) {
+  const std::optional<Severity> w = gate.worst(id);
+  return w ? std::string(to_string(*w)) : "none";
 }
 
 const CaseResult* find_case(const Results& r, const std::string& id) {
@@ -92,25 +91,12 @@ class MarkdownWriter {
   }
 
  private:
-  // Cases are counted by their worst finding, so "failing" means cases, not findings.
+  // The count line every report shares (report/format.hpp), then the suite.
   void verdict() {
-    std::map<std::string, Severity> by_case;
-    for (const Finding& f : in_.gate.findings) {
-      Severity& w = by_case[f.case_id];
-      if (static_cast<int>(f.severity) > static_cast<int>(w)) w = f.severity;
-    }
-    int failing = 0, warning = 0;
-    for (const auto& [id, s] : by_case) {
-      failing += s == Severity::fail;
-      warning += s == Severity::warn;
-    }
     const std::string& sha = in_.results.suite.sha256;
-    out_ += fmt::format("**stepgate: {}** — {} failing, {} with warnings only, of {} cases; suite {} (sha256 {})\n",
-                        in_.gate.pass ? "PASS" : "FAIL", failing, warning, in_.results.cases.size(),
-                        text(in_.results.suite.name), sha.empty() ? kNone : sha.substr(0, 12) + "…");
-    if (!in_.baseline)
-      out_ += "\nNo baseline: only the rules that need none were applied (pinned rate, reference digits, "
-              "theory, cases that could not be run).\n";
+    out_ += fmt::format("**{}**; suite {} (sha256 {})\n", count_line(in_.gate, in_.results), text(in_.results.suite.name),
+                        sha.empty() ? kNone : sha.substr(0, 12) + "…");
+    if (!in_.baseline) out_ += "\n" + baseline_free_note() + ".\n";
   }
 
   void details() {
@@ -127,7 +113,7 @@ class MarkdownWriter {
     const std::vector<const Finding*> findings = in_.gate.of_case(id);
     const CaseResult* c = find_case(in_.results, id);
     const BaselineCase* b = in_.baseline ? in_.baseline->find(id) : nullptr;
-    out_ += fmt::format("\n#### {}: {}\n\n", worst(findings) == Severity::fail ? "FAIL" : "warn", text(id));
+    out_ += fmt::format("\n#### {}: {}\n\n", worst_word(in_.gate, id), text(id));
     if (c || b) range_table(c, b);
     int passing = 0;
     for (const Finding* f : findings) {
@@ -170,21 +156,22 @@ class MarkdownWriter {
   }
 
   void compact_table() {
-    out_ += "\n### All cases\n\n| case | floor | edge | best | pinned | headroom | ref digits | status |\n"
-            "|---|---|---|---|---|---|---|---|\n";
+    out_ += "\n### All cases\n\n|";
+    for (std::string_view h : kSummaryHeadings) out_ += fmt::format(" {} |", h);
+    out_ += "\n|---|---|---|---|---|---|---|---|\n";
     for (const CaseResult& c : in_.results.cases) {
       const CaseSummary& s = c.summary;
-      std::string status(to_string(worst(in_.gate.of_case(c.id))));
+      std::string status = worst_word(in_.gate, c.id);
       if (!c.error.empty()) status += ": not run: " + c.error;
       out_ += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} |\n", cell(c.id), number(s.floor), edge_ragged(s.edge, s.ragged_top),
                           number(s.best_rate), number(s.pinned), factor(s.headroom),
-                          s.reference ? number(s.reference->lre_min) : kNone, cell(status));
+                          s.reference ? number(s.reference->min_lre) : kNone, cell(status));
     }
     if (!in_.baseline) return;
     for (const BaselineCase& b : in_.baseline->cases)  // in the baseline, not in these results
       if (!find_case(in_.results, b.id))
         out_ += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} |\n", cell(b.id), kNone, kNone, kNone, kNone,
-                            kNone, kNone, cell(std::string(to_string(worst(in_.gate.of_case(b.id)))) + ": missing"));
+                            kNone, kNone, cell(worst_word(in_.gate, b.id) + ": missing"));
   }
 
   const ReportInput& in_;

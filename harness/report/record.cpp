@@ -4,16 +4,17 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/report/format.hpp"
 #include "stepgate/report/reporter.hpp"
 
 namespace stepgate {
 
 namespace {
 
-constexpr const char* kNone = "–";
+const std::string kNone(kMissingMark);
 constexpr const char* kHistory = "## History";
 
-std::string number(double v) { return std::isnan(v) ? kNone : fmt::format("{:.4g}", v); }
+std::string number(double v) { return format_number(v); }
 
 // Suite strings on one line (a newline could forge a heading such as "## History"), with & and
 // < as character references (no raw HTML from a suite), and pipes escaped in table cells.
@@ -52,9 +53,9 @@ std::string data_cell(const CaseResult& c, const BaselineCase& b) {
 }
 
 std::string reference_cell(const CaseResult& c, const BaselineCase& b) {
-  if (std::isnan(b.reference_digits) && !c.summary.reference) return kNone;
+  if (std::isnan(b.min_lre) && !c.summary.reference) return kNone;
   const std::string source = c.summary.reference ? cell(c.summary.reference->source) : "";
-  return source.empty() ? number(b.reference_digits) : fmt::format("{} ({})", number(b.reference_digits), source);
+  return source.empty() ? number(b.min_lre) : fmt::format("{} ({})", number(b.min_lre), source);
 }
 
 }  // namespace
@@ -62,7 +63,7 @@ std::string reference_cell(const CaseResult& c, const BaselineCase& b) {
 std::string render_record_entry(const Results& results, const Baseline& baseline) {
   const SuiteInfo& suite = baseline.suite.name.empty() ? results.suite : baseline.suite;
   const ToolInfo& tool = baseline.tool.version.empty() ? results.tool : baseline.tool;
-  const HostInfo& host = baseline.platform.os.empty() ? results.host : baseline.platform;
+  const HostInfo& host = baseline.host.os.empty() ? results.host : baseline.host;
   std::string out = fmt::format("### {} — suite {}\n\n", or_none(one_line(baseline.accepted)), one_line(suite.name));
   out += fmt::format("- Accepted: {} (results started {})\n", or_none(one_line(baseline.accepted)),
                      or_none(one_line(results.started)));
@@ -70,11 +71,11 @@ std::string render_record_entry(const Results& results, const Baseline& baseline
                      or_none(one_line(suite.sha256)));
   out += fmt::format("- Tool: stepgate {}, {}, {}\n", or_none(one_line(tool.version)), or_none(one_line(tool.compiler)),
                      or_none(one_line(tool.build)));
-  out += fmt::format("- Platform: {}, {}, {} cores\n", or_none(one_line(host.os)), or_none(one_line(host.machine)),
+  out += fmt::format("- Host: {}, {}, {} cores\n", or_none(one_line(host.os)), or_none(one_line(host.machine)),
                      host.cores);
   if (!results.shard.empty()) out += fmt::format("- Shard: {} (not the whole suite)\n", one_line(results.shard));
 
-  out += "\n| case | data | floor | edge [bracket] | best | pinned | headroom | blow-up | ref digits |\n"
+  out += "\n| case | data | floor | edge [bracket] | best rate | pinned | headroom | blow-up | min LRE |\n"
          "|---|---|---|---|---|---|---|---|---|\n";
   std::string not_verified;
   for (const CaseResult& c : results.cases) {
@@ -86,7 +87,7 @@ std::string render_record_entry(const Results& results, const Baseline& baseline
     }
     out += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} | {} |\n", cell(c.id), data_cell(c, *b), number(b->floor),
                        edge_cell(*b), number(b->best_rate), number(b->pinned),
-                       std::isnan(b->headroom) ? kNone : number(b->headroom) + "x", number(b->blowup),
+                       format_factor(b->headroom), number(b->blowup),
                        reference_cell(c, *b));
   }
   if (!not_verified.empty()) out += "\n" + not_verified;
@@ -103,7 +104,7 @@ std::string append_record(const std::string& existing, const std::string& suite_
         "Each entry below was written by `stepgate accept` when a baseline of this suite was accepted. It "
         "names the rates that were verified for each case (floor, edge with its bracket, best, pinned, "
         "headroom, blow-up, reference digits), the data they were verified on (SHA-256), and the suite, tool "
-        "and platform. The newest entry comes first; older entries are kept as they were written.\n\n"
+        "and host. The newest entry comes first; older entries are kept as they were written.\n\n"
         "{}\n\n{}",
         one_line(suite_name), kHistory, body);
   // The heading as a whole line: at the start or after a newline, and ending the line.

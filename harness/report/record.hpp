@@ -1,5 +1,5 @@
 // The verification record (reports/<suite>.record.md by default, written by `stepgate accept`):
-// a human-readable history of what was verified, on which data, with which tool and platform.
+// a human-readable history of what was verified, on which data, with which tool and host.
 // Every acceptance adds one entry; older entries are never rewritten.
 #pragma once
 #include <string>

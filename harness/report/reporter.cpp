@@ -7,11 +7,14 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/report/format.hpp"
+
 namespace stepgate {
 
-std::vector<std::string> stage_reports(OutputSet& set, const std::string& dir, const ReportInput& in) {
+std::vector<std::string> stage_reports(OutputSet& set, const std::string& dir, const ReportInput& in,
+                                       const Reporters& reporters) {
   std::vector<std::string> staged;
-  for (const auto& reporter : all_reporters()) {
+  for (const auto& reporter : reporters) {
     const std::string path = (std::filesystem::path(dir) / reporter->file_name()).string();
     set.stage(path, reporter->render(in));
     staged.push_back(path);
@@ -19,9 +22,9 @@ std::vector<std::string> stage_reports(OutputSet& set, const std::string& dir, c
   return staged;
 }
 
-std::vector<std::string> write_reports(const std::string& dir, const ReportInput& in) {
+std::vector<std::string> write_reports(const std::string& dir, const ReportInput& in, const Reporters& reporters) {
   OutputSet set(dir);
-  stage_reports(set, dir, in);
+  stage_reports(set, dir, in, reporters);
   return set.commit();
 }
 
@@ -30,10 +33,9 @@ std::string findings_text(const GateReport& gate, const Results& results) {
   for (const Finding& f : gate.findings)
     if (f.severity != Severity::pass)
       out += fmt::format("{:<5} {}  {}: {}\n", to_string(f.severity), f.case_id, to_string(f.rule), f.message);
-  // Counts are of findings (one per case and rule); report.md counts cases.
-  out += fmt::format("verdict: {} ({} failing, {} warnings, {} cases{})\n", gate.pass ? "pass" : "fail",
-                     gate.failures, gate.warnings, results.cases.size(),
-                     gate.had_baseline ? "" : "; no baseline: only pinned, reference and theory rules");
+  // The count line of every report (report/format.hpp): cases by their worst finding.
+  out += count_line(gate, results) + "\n";
+  if (!gate.had_baseline) out += baseline_free_note() + "\n";
   return out;
 }
 

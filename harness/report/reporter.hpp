@@ -37,12 +37,15 @@ std::vector<std::unique_ptr<Reporter>> all_reporters();
 /// The plain warning every report carries: rates are verified only on the data named.
 std::string scope_warning(const Results& results);
 
-/// Renders every reporter and stages its file in `dir` (report.md, report.html, junit.xml) in
-/// `set`, to be committed with the other outputs; returns the paths staged.
-std::vector<std::string> stage_reports(OutputSet& set, const std::string& dir, const ReportInput& in);
+using Reporters = std::vector<std::unique_ptr<Reporter>>;
+
+/// Renders each reporter and stages its file in `dir` (report.md, report.html, junit.xml for
+/// all_reporters()) in `set`, to be committed with the other outputs; returns the paths staged.
+std::vector<std::string> stage_reports(OutputSet& set, const std::string& dir, const ReportInput& in,
+                                       const Reporters& reporters);
 /// The same, committed on their own as one unit; returns the paths written. ToolError when a
 /// file cannot be written (then none of them changed).
-std::vector<std::string> write_reports(const std::string& dir, const ReportInput& in);
+std::vector<std::string> write_reports(const std::string& dir, const ReportInput& in, const Reporters& reporters);
 
 /// The warn and fail findings, one line each ("fail  CASE  RULE: message"), then the verdict
 /// line with the counts of findings: what `stepgate check` and `run --baseline` print.

@@ -6,39 +6,50 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/report/format.hpp"
+
 namespace stepgate {
 
-std::string format_number(double v) {
-  if (std::isnan(v)) return "-";
-  return fmt::format("{:.4g}", v);
+namespace {
+
+// Width in characters on the terminal, not in bytes: "–" and "×" are one column each.
+std::size_t columns(const std::string& s) {
+  std::size_t n = 0;
+  for (unsigned char ch : s) n += (ch & 0xC0) != 0x80;
+  return n;
 }
 
-std::string summary_table(const Results& results) {
-  const std::vector<std::string> head = {"case", "floor", "edge", "best rate", "iters", "pinned", "headroom", "ref digits"};
+}  // namespace
+
+std::string summary_table(const Results& results, const GateReport& gate) {
+  const std::vector<std::string> head(kSummaryHeadings.begin(), kSummaryHeadings.end());
   std::vector<std::vector<std::string>> rows;
   std::vector<std::string> errors;
   for (const CaseResult& c : results.cases) {
+    const std::optional<Severity> w = gate.worst(c.id);
+    const std::string worst = w ? std::string(to_string(*w)) : "none";
     if (!c.error.empty()) {
       errors.push_back(fmt::format("{}: not run: {}", c.id, c.error));
       continue;
     }
     const CaseSummary& s = c.summary;
-    const std::string digits = s.reference ? format_number(s.reference->lre_min) : "";
     const std::string edge = std::isnan(s.ragged_top) ? format_number(s.edge)
                                                       : format_number(s.edge) + " (ragged to " + format_number(s.ragged_top) + ")";
-    rows.push_back({c.id, format_number(s.floor), edge, format_number(s.best_rate),
-                    format_number(s.best_iterations), format_number(s.pinned),
-                    std::isnan(s.headroom) ? "-" : fmt::format("{:.2f}x", s.headroom), digits});
+    rows.push_back({c.id, format_number(s.floor), edge, format_number(s.best_rate), format_number(s.pinned),
+                    format_factor(s.headroom), s.reference ? format_number(s.reference->min_lre) : std::string(kMissingMark),
+                    worst});
   }
   std::vector<std::size_t> width(head.size());
   for (std::size_t j = 0; j < head.size(); ++j) {
-    width[j] = head[j].size();
-    for (const auto& r : rows) width[j] = std::max(width[j], r[j].size());
+    width[j] = columns(head[j]);
+    for (const auto& r : rows) width[j] = std::max(width[j], columns(r[j]));
   }
   std::string out;
   auto line = [&](const std::vector<std::string>& cells) {
-    for (std::size_t j = 0; j < cells.size(); ++j)
-      out += j == 0 ? fmt::format("{:<{}}", cells[j], width[j]) : fmt::format("  {:>{}}", cells[j], width[j]);
+    for (std::size_t j = 0; j < cells.size(); ++j) {
+      const std::string pad(width[j] - columns(cells[j]), ' ');
+      out += j == 0 ? cells[j] + pad : "  " + pad + cells[j];
+    }
     out += "\n";
   };
   line(head);

@@ -3,14 +3,13 @@
 #include <string>
 
 #include "stepgate/core/results.hpp"
+#include "stepgate/gate/findings.hpp"
 
 namespace stepgate {
 
-/// Columns: case, floor, edge, best rate (median iterations), pinned, headroom, reference
-/// digits (min LRE). A missing value prints as "-"; a case that failed prints its error.
-std::string summary_table(const Results& results);
-
-/// A rate or factor with 4 significant digits, "-" for NaN.
-std::string format_number(double v);
+/// Columns: kSummaryHeadings (report/format.hpp), as report.md and report.html show them. A
+/// missing value prints as kMissingMark; a case that failed prints its error below the table.
+/// `gate` gives the last column (the worst finding of each case).
+std::string summary_table(const Results& results, const GateReport& gate);
 
 }  // namespace stepgate

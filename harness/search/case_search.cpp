@@ -9,6 +9,7 @@
 
 #include "stepgate/analysis/curvature.hpp"
 #include "stepgate/analysis/reference.hpp"
+#include "stepgate/analysis/safe_range.hpp"
 #include "stepgate/core/seed.hpp"
 #include "stepgate/run/batch.hpp"
 #include "stepgate/run/step_rule.hpp"
@@ -25,25 +26,6 @@ namespace {
 
 bool converged(Outcome o) { return o == Outcome::converged; }
 bool diverged(Outcome o) { return o == Outcome::diverged; }
-
-// Larger is worse: the outcome a rate gets across seeds is the worst one.
-int badness(Outcome o) {
-  switch (o) {
-    case Outcome::converged: return 0;
-    case Outcome::slow: return 1;
-    case Outcome::oscillating: return 2;
-    case Outcome::diverged: return 3;
-    case Outcome::failed: return 4;
-  }
-  return 4;
-}
-
-double median(std::vector<double> v) {
-  if (v.empty()) return kMissing;
-  std::sort(v.begin(), v.end());
-  const std::size_t n = v.size();
-  return n % 2 ? v[n / 2] : 0.5 * (v[n / 2 - 1] + v[n / 2]);
-}
 
 // The runs of one seed, found by rate (indices into the searcher's list of runs).
 struct SeedRuns {
@@ -249,74 +231,13 @@ CaseSearchOutput Searcher::search() {
 }
 
 void Searcher::summarise(CaseSearchOutput& out) const {
-  CaseSummary& c = out.summary;
-  c.precision = in_.rates.precision;
-  c.pinned = in_.pinned;
-  double edge = kInf, edge_lo = kInf, edge_hi = kInf, floor = 0.0, blowup = kInf, emax = 0.0;
-  bool all_have_edge = !seeds_.empty();
+  std::vector<SeedRunsView> views;
   for (const SeedRuns& s : seeds_) {
-    SeedSummary x = s.summary;
-    if (!std::isnan(x.edge))  // every run is in by now: grid, fixed, narrowing, refinement
-      for (const auto& [rate, index] : s.by_rate)
-        if (rate > x.edge && converged(outcome(index))) x.ragged_top = rate;  // by_rate ascends
-    c.seeds.push_back(x);
-    c.runs += x.runs;
-    if (std::isnan(x.edge)) all_have_edge = false;
-    else {
-      edge = std::min(edge, x.edge);
-      emax = std::max(emax, x.edge);
-      edge_lo = std::min(edge_lo, x.edge_lo);
-      if (!std::isnan(x.edge_hi)) edge_hi = std::min(edge_hi, x.edge_hi);
-      floor = std::max(floor, x.floor);
-    }
-    if (!std::isnan(x.blowup)) blowup = std::min(blowup, x.blowup);
+    SeedRunsView v{s.summary, {}};
+    for (const auto& [rate, index] : s.by_rate) v.by_rate.emplace(rate, &order_[index].record);
+    views.push_back(std::move(v));
   }
-  if (std::isfinite(blowup)) c.blowup = blowup;
-  if (all_have_edge && floor <= edge) {
-    c.edge = edge;
-    c.edge_lo = edge_lo;
-    c.edge_hi = std::isfinite(edge_hi) ? edge_hi : kMissing;
-    c.floor = floor;
-    c.edge_spread = emax / edge;
-    for (const SeedSummary& x : c.seeds)
-      if (!std::isnan(x.ragged_top) && !(x.ragged_top <= c.ragged_top)) c.ragged_top = x.ragged_top;
-  }
-  // Best rate: among rates every seed ran, inside [floor, edge], all converged.
-  if (!std::isnan(c.edge)) {
-    double best_iters = kInf;
-    for (const auto& [rate, index] : seeds_.front().by_rate) {
-      if (rate < c.floor || rate > c.edge) continue;
-      std::vector<double> iters;
-      for (const SeedRuns& s : seeds_) {
-        const RunRecord* r = at(s, rate);
-        if (!r || !converged(r->outcome)) break;
-        iters.push_back(static_cast<double>(*r->iterations));
-      }
-      if (iters.size() != seeds_.size()) continue;
-      const double m = median(iters);
-      if (m < best_iters) best_iters = m, c.best_rate = rate, c.best_iterations = m;
-    }
-  }
-  for (std::size_t i = 0; i < c.seeds.size(); ++i) {
-    double best = kMissing, iters = kInf;
-    for (const auto& [rate, index] : seeds_[i].by_rate) {
-      const RunRecord& r = order_[index].record;
-      if (converged(r.outcome) && *r.iterations < iters) iters = static_cast<double>(*r.iterations), best = rate;
-    }
-    c.seeds[i].best_rate = best;
-  }
-  if (!std::isnan(in_.pinned)) {
-    std::vector<double> iters;
-    int worst = -1;
-    for (const SeedRuns& s : seeds_) {
-      const RunRecord* r = at(s, in_.pinned);
-      if (!r) continue;
-      if (badness(r->outcome) > worst) worst = badness(r->outcome), c.pinned_outcome = r->outcome;
-      if (r->iterations) iters.push_back(static_cast<double>(*r->iterations));
-    }
-    if (iters.size() == seeds_.size()) c.pinned_iterations = median(iters);
-    if (!std::isnan(c.edge)) c.headroom = c.edge / in_.pinned;
-  }
+  out.summary = summarise_seeds(views, in_.rates.precision, in_.pinned);
 }
 
 void Searcher::compare_reference(CaseSearchOutput& out) const {
@@ -332,10 +253,10 @@ void Searcher::compare_reference(CaseSearchOutput& out) const {
     if (r && x.size() != c.size())
       ref.source += fmt::format(" (the program's last params line has {} values; the reference has {})", x.size(), c.size());
     if (r && x.size() == c.size() && c.size() > 0) {
-      ref.lre_min = kInf;
+      ref.min_lre = kInf;
       for (Index i = 0; i < c.size(); ++i) {
         ref.lre.push_back(lre(x[i], c[i], in_.reference->digits));
-        ref.lre_min = std::min(ref.lre_min, ref.lre.back());
+        ref.min_lre = std::min(ref.min_lre, ref.lre.back());
       }
       ref.estimate.assign(x.data(), x.data() + x.size());
     }
@@ -345,7 +266,7 @@ void Searcher::compare_reference(CaseSearchOutput& out) const {
   if (r && r->final_params.size() == problem_->dim()) {
     const ReferenceComparison cmp = compare_with_reference(*problem_, in_.map, r->final_params, *in_.reference);
     ref.lre = cmp.lre;
-    ref.lre_min = cmp.lre_min;
+    ref.min_lre = cmp.min_lre;
     ref.estimate.assign(cmp.estimate.data(), cmp.estimate.data() + cmp.estimate.size());
   }
   out.summary.reference = std::move(ref);

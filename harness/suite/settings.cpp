@@ -10,14 +10,22 @@
 #include "stepgate/suite/suite_sections.hpp"
 
 namespace stepgate::suite_detail {
+
+const std::vector<std::string>& rate_keys() {
+  static const std::vector<std::string> keys = {"grid",         "fixed",         "precision",    "lanes",
+                                                "locate_edge",  "locate_floor",  "locate_blowup", "refine_points"};
+  return keys;
+}
+
+const std::vector<std::string>& outcome_keys() {
+  static const std::vector<std::string> keys = {"criterion",      "tol",         "target", "plateau_window",
+                                                "blowup_factor",  "overshoot_limit", "hold", "confirm_factor",
+                                                "confirm_min",    "probe"};
+  return keys;
+}
+
 namespace {
 
-const std::vector<std::string> kRateKeys = {"grid",          "fixed",        "precision",
-                                            "lanes",         "locate_edge",  "locate_floor",
-                                            "locate_blowup", "refine_points"};
-const std::vector<std::string> kOutcomeKeys = {
-    "criterion", "tol", "target", "plateau_window", "blowup_factor", "overshoot_limit", "hold",
-    "confirm_factor", "confirm_min", "probe"};
 void check_levels(const Layers& layers, const std::vector<std::string>& keys) {
   for (const Node& level : layers.levels) ObjectNode(level, keys);
 }
@@ -86,7 +94,7 @@ RateGrid read_grid(const Node& node) {
 }
 
 RatePolicy read_rates(const Layers& rates) {
-  check_levels(rates, kRateKeys);
+  check_levels(rates, rate_keys());
   RatePolicy r;
   const auto grid = rates.find("grid");
   if (grid) r.grid = grid->is_null() ? std::nullopt : std::optional<RateGrid>(read_grid(*grid));
@@ -134,7 +142,7 @@ std::vector<std::uint64_t> read_seeds(const Node& node) {
 
 // `o` holds the defaults the problem's kind starts from; the levels override them key by key.
 OutcomeSettings read_outcome(const Layers& outcome, OutcomeSettings o) {
-  check_levels(outcome, kOutcomeKeys);
+  check_levels(outcome, outcome_keys());
   const auto criterion = outcome.find("criterion");
   if (criterion)
     o.criterion = *criterion_from_string(
@@ -187,6 +195,11 @@ Severity severity(const Node& node) {
 }  // namespace
 
 GateTolerances read_gate(const Layers& gate) {
+  // Keys of earlier versions, now named as their rules are: a clear word rather than "unknown".
+  for (const Node& level : gate.levels)
+    for (const auto& [old_key, key] : renamed_gate_keys())
+      if (auto n = Layers{{level}}.find(old_key))
+        n->fail(fmt::format("'{}' is now called '{}', as its rule is; expected '{}'", old_key, key, key));
   check_levels(gate, gate_keys());
   GateTolerances g;
   for (const ToleranceField& t : tolerance_fields())

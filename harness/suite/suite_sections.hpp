@@ -36,6 +36,9 @@ GateTolerances read_gate(const Layers& levels);
 
 /// Keys that problem settings may have, in defaults and in problems.
 const std::vector<std::string>& settings_keys();
+/// Keys of a `rates` object and of an `outcome` object (the gate's: gate_keys() in core).
+const std::vector<std::string>& rate_keys();
+const std::vector<std::string>& outcome_keys();
 /// Reads the problem settings of `problem` from `settings` (defaults, then the problem) and
 /// `gate` (the suite's gate section, if any), resolving names against `suite` (a predefined
 /// optimizer that is used is added to suite.optimizers).

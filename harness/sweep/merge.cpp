@@ -70,6 +70,7 @@ Results merge_shards(std::vector<Results> shards, const std::vector<std::string>
   for (const Results& s : shards) {
     out.started = std::min(out.started, s.started);
     out.finished = std::max(out.finished, s.finished);
+    if (!(s.wall_seconds <= out.wall_seconds)) out.wall_seconds = s.wall_seconds;  // NaN-safe max
   }
   for (std::size_t i = 0; i < ordered.size(); ++i) {
     if (!ordered[i]) throw InputError("command line", fmt::format("no shard holds the case '{}'", plan[i]));

@@ -84,7 +84,7 @@ SuiteRun run_suite(const std::string& suite_path, const RunSuiteOptions& options
   run.results_path = (std::filesystem::path(out_dir) / "results.json").string();
   OutputSet outputs(out_dir);
   outputs.stage(run.results_path, json_file_text(to_json(run.results)));
-  run.reports = stage_reports(outputs, out_dir, ReportInput{run.results, baseline, run.gate});
+  run.reports = stage_reports(outputs, out_dir, ReportInput{run.results, baseline, run.gate}, all_reporters());
   outputs.commit();
   return run;
 }

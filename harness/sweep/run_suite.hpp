@@ -5,7 +5,7 @@
 //
 //   stepgate::register_problem_kind("huber", {"delta"}, true, make_huber);
 //   const stepgate::SuiteRun run = stepgate::run_suite("huber.json", "out/huber");
-//   std::cout << stepgate::summary_table(run.results);
+//   std::cout << stepgate::summary_table(run.results, run.gate);
 //   return run.verdict_exit_code();
 #pragma once
 #include <functional>

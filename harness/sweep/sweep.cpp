@@ -1,6 +1,7 @@
 #include "stepgate/sweep/sweep.hpp"
 
 #include <atomic>
+#include <chrono>
 #include <mutex>
 #include <thread>
 
@@ -31,6 +32,7 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
   r.data_sha256 = prepared.data_sha256;
   r.summary.pinned = c.pinned;
   r.gate = p.gate;
+  const auto started = std::chrono::steady_clock::now();
   try {
     CaseSearchInput in;
     in.case_id = c.id;
@@ -62,6 +64,7 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
   } catch (const std::exception& e) {
     r.error = e.what();
   }
+  r.wall_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
   return r;
 }
 
@@ -76,6 +79,7 @@ Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& opti
   results.shard = options.shard;
   results.gate = suite.gate;
   results.started = utc_now();
+  const auto started = std::chrono::steady_clock::now();
 
   const PreparedSweep prepared_sweep = prepare_problems(suite, plan);
   const std::map<PreparedKey, PreparedProblem>& prepared = prepared_sweep.problems;
@@ -119,6 +123,7 @@ Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& opti
   });
   results.cases = std::move(cases);
   results.finished = utc_now();
+  results.wall_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
   return results;
 }
 

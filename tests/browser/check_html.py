@@ -69,8 +69,9 @@ def main():
         for hostile in (IMG, SCRIPT):
             if hostile not in text:
                 failures.append(f"hostile string not shown as text: {hostile}")
-        if dom.tags.count("svg") != 6:
-            failures.append(f"expected 6 inline SVG figures (3 per case), found {dom.tags.count('svg')}")
+        if dom.tags.count("svg") != 7:
+            failures.append(f"expected 7 inline SVG figures (the suite chart and 3 per case), "
+                            f"found {dom.tags.count('svg')}")
 
         shot = pathlib.Path(tmp) / "report.png"
         snap = chromium(binary, os.path.join(tmp, "profile-shot"), f"--screenshot={shot}",

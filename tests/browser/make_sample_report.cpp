@@ -57,7 +57,7 @@ CaseResult make_case(const std::string& id, double edge) {
   c.summary.headroom = edge / 0.1;
   c.summary.precision = 0.01;
   c.summary.reference = ReferenceSummary{};
-  c.summary.reference->lre_min = 9.0;
+  c.summary.reference->min_lre = 9.0;
   c.summary.reference->source = kScript;
   for (long seed = 0; seed < 3; ++seed) {
     c.summary.seeds.push_back({static_cast<std::uint64_t>(seed + 1)});

@@ -47,7 +47,7 @@ void gate_example(const std::string& name, const std::string& flag, const std::s
   report_time("example " + name + ": planted " + flag, changed.seconds);
   CHECK(changed.exit_code == 1);
   const std::string md = read_text(dir / "changed" / "report.md");
-  CHECK(md.find("#### FAIL: " + command_case) != std::string::npos);
+  CHECK(md.find("#### fail: " + command_case) != std::string::npos);
   CHECK(md.find("**fail** `edge_moved`") != std::string::npos);
   const json before = read_json(dir / "same" / "results.json"), after = read_json(dir / "changed" / "results.json");
   fmt::print("example {}: edge {} unchanged, {} with {}\n", name, case_of(before, command_case)["summary"]["edge"].dump(),
@@ -104,7 +104,7 @@ TEST_CASE("examples: the PyTorch trainer gates; serving and per-run mode agree",
   for (std::size_t i = 0; i < 5; ++i) {
     INFO("rate " << x[i]["rate"]);
     CHECK(x[i]["outcome"] == y[i]["outcome"]);
-    CHECK(x[i]["iterations"] == y[i]["iterations"]);
+    CHECK(x[i]["converged_at"] == y[i]["converged_at"]);
     CHECK(x[i]["trace"] == y[i]["trace"]);
   }
 }

@@ -68,6 +68,14 @@ TEST_CASE("exit codes: --version --help validate and plan of a good suite exit 0
   const CliResult help = expect_exit("--help", tmp.path(), 0);
   for (const char* command : {"run", "check", "report", "accept", "merge", "validate", "plan"})
     CHECK(help.out.find(command) != std::string::npos);
+  // Subcommand help names the positional arguments as the usage line does, never as options.
+  const CliResult run_help = expect_exit("run --help", tmp.path(), 0);
+  CHECK(run_help.out.find("arguments:\n  SUITE ") != std::string::npos);
+  CHECK(run_help.out.find("--suite") == std::string::npos);
+  CHECK(run_help.out.find("no scope note") != std::string::npos);
+  const CliResult merge_help = expect_exit("merge --help", tmp.path(), 0);
+  CHECK(merge_help.out.find("  RESULTS... ") != std::string::npos);
+  CHECK(merge_help.out.find("--results") == std::string::npos);
   const fs::path suite = e2e_suite("gate-small.json");
   const CliResult valid = expect_exit("validate " + quoted(suite.string()), tmp.path(), 0);
   CHECK(valid.out.find("valid suite 'e2e-gate-small'") != std::string::npos);

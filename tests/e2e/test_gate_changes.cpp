@@ -72,7 +72,7 @@ bool has_finding(const std::string& report_md, const std::string& severity, cons
   return report_md.find("- **" + severity + "** `" + rule + "`") != std::string::npos;
 }
 
-// The per-case section of report.md ("#### FAIL: id" up to the next case).
+// The per-case section of report.md ("#### fail: id" up to the next case).
 std::string case_section(const std::string& report_md, const std::string& id) {
   const std::size_t at = report_md.find(": " + id + "\n");
   if (at == std::string::npos) return "";
@@ -125,7 +125,7 @@ TEST_CASE("gate: a feature recorded in other units (data change) fails with both
   const std::string section = case_section(g.report_md, kPlantCase);
   INFO("report.md:\n" << g.report_md);
   REQUIRE_FALSE(section.empty());
-  CHECK(g.report_md.find("#### FAIL: " + std::string(kPlantCase)) != std::string::npos);
+  CHECK(g.report_md.find("#### fail: " + std::string(kPlantCase)) != std::string::npos);
   CHECK(section.find(fmt4(edge_was)) != std::string::npos);
   CHECK(section.find(fmt4(edge_now)) != std::string::npos);
   CHECK(section.find(old_sha) != std::string::npos);
@@ -167,7 +167,7 @@ TEST_CASE("gate: heavy-ball beta 0.9 -> 0.99 (code change) fails the case pinned
   const std::string section = case_section(g.report_md, kBowlCase);
   INFO("report.md:\n" << g.report_md);
   REQUIRE_FALSE(section.empty());
-  CHECK(g.report_md.find("#### FAIL: " + std::string(kBowlCase)) != std::string::npos);
+  CHECK(g.report_md.find("#### fail: " + std::string(kBowlCase)) != std::string::npos);
   // β 0.99 rings (overshoot) at the rates that suited 0.9: the safe range shrinks far below the
   // pinned rate, although the theoretical threshold 2(1+β)/L hardly moves.
   CHECK(has_finding(section, "fail", "edge_moved"));
@@ -191,7 +191,7 @@ TEST_CASE("gate: a different but equally safe pinned rate passes", "[e2e]") {
   CHECK(now.at("pinned_outcome") == "converged");
   CHECK(g.cli.out.find("verdict: pass") != std::string::npos);
   INFO("report.md:\n" << g.report_md);
-  CHECK(g.report_md.find("**stepgate: PASS**") != std::string::npos);
+  CHECK(g.report_md.find("**verdict: pass — ") != std::string::npos);
   CHECK(g.report_md.find("`pinned_headroom`") == std::string::npos);  // no warn or fail of it
 }
 

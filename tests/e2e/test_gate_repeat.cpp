@@ -19,7 +19,7 @@ TEST_CASE("gate: ten re-runs of an unchanged suite all pass", "[e2e]") {
                                           quoted(baseline.string()) + " --out " + quoted(out.string()),
                                       tmp.path(), 0);
     seconds += run.seconds;
-    CHECK(run.out.find("verdict: pass (0 failing, 0 warnings, 5 cases)") != std::string::npos);
+    CHECK(run.out.find("verdict: pass — 5 cases: 0 failing, 0 with warnings, 5 passing") != std::string::npos);
     const CliResult check = expect_exit(
         "check " + quoted((out / "results.json").string()) + " --baseline " + quoted(baseline.string()), tmp.path(), 0);
     CHECK(check.out.find("verdict: pass") != std::string::npos);

@@ -1,6 +1,6 @@
 // Reference values in the gate: Longley least squares against NIST's certified coefficients
 // (NIST StRD, Linear Least Squares Regression, Longley (1967), certified values;
-// references/longley.certified.json) passes reference_digits when converged to machine
+// references/longley.certified.json) passes min_lre when converged to machine
 // precision and fails it when the solutions are left far from converged.
 #include <pugixml.hpp>
 
@@ -33,7 +33,7 @@ fs::path longley_variant(const fs::path& dir, Edit edit) {
   return path;
 }
 
-TEST_CASE("reference: Longley passes reference_digits when converged and fails it far from converged", "[e2e]") {
+TEST_CASE("reference: Longley passes min_lre when converged and fails it far from converged", "[e2e]") {
   TempDir tmp("longley");
   const fs::path suite = e2e_suite("longley.json");
   const fs::path base_out = tmp / "base", baseline = tmp / "longley.baseline.json";
@@ -43,14 +43,14 @@ TEST_CASE("reference: Longley passes reference_digits when converged and fails i
   const json results = read_json(base_out / "results.json");
   const json& ref = case_of(results, kLongleyCase).at("summary").at("reference");
   REQUIRE(ref.is_object());
-  REQUIRE(ref.at("lre_min").is_number());
-  const double digits = ref.at("lre_min");
-  CHECK(digits >= 6.0);  // the default requirement (min_reference_digits)
+  REQUIRE(ref.at("min_lre").is_number());
+  const double digits = ref.at("min_lre");
+  CHECK(digits >= 6.0);  // the default requirement (min_lre)
   CHECK(ref.at("source").get<std::string>().find("NIST") != std::string::npos);
   {
     pugi::xml_document doc;
     REQUIRE(doc.load_file((base_out / "junit.xml").c_str()));
-    const pugi::xml_node tc = rule_testcase(doc, "reference_digits");
+    const pugi::xml_node tc = rule_testcase(doc, "min_lre");
     REQUIRE(tc);
     CHECK_FALSE(tc.child("failure"));
   }
@@ -69,44 +69,44 @@ TEST_CASE("reference: Longley passes reference_digits when converged and fails i
                                       tmp.path(), 1);
   report_time("longley loose run", gated.seconds);
   INFO("stdout:\n" << gated.out);
-  CHECK(gated.out.find(std::string("fail  ") + kLongleyCase + "  reference_digits") != std::string::npos);
+  CHECK(gated.out.find(std::string("fail  ") + kLongleyCase + "  min_lre") != std::string::npos);
   const json loose_results = read_json(loose_out / "results.json");
   const json& loose_ref = case_of(loose_results, kLongleyCase).at("summary").at("reference");
   CHECK(case_of(loose_results, kLongleyCase).at("data_sha256") == case_of(results, kLongleyCase).at("data_sha256"));
-  if (loose_ref.at("lre_min").is_number()) CHECK(loose_ref.at("lre_min").get<double>() < 6.0);
+  if (loose_ref.at("min_lre").is_number()) CHECK(loose_ref.at("min_lre").get<double>() < 6.0);
   const std::string md = read_text(loose_out / "report.md");
-  CHECK(md.find("- **fail** `reference_digits`") != std::string::npos);
+  CHECK(md.find("- **fail** `min_lre`") != std::string::npos);
   pugi::xml_document doc;
   REQUIRE(doc.load_file((loose_out / "junit.xml").c_str()));
-  const pugi::xml_node tc = rule_testcase(doc, "reference_digits");
+  const pugi::xml_node tc = rule_testcase(doc, "min_lre");
   REQUIRE(tc);
   CHECK(tc.child("failure"));
 }
 
-TEST_CASE("reference: requiring more digits than the solution has fails reference_digits", "[e2e]") {
+TEST_CASE("reference: requiring more digits than the solution has fails min_lre", "[e2e]") {
   TempDir tmp("longley-digits");
   const fs::path base_out = tmp / "base", baseline = tmp / "longley.baseline.json";
   expect_exit("run " + quoted(e2e_suite("longley.json").string()) + " --quiet --out " + quoted(base_out.string()),
               tmp.path(), 0);
   const double digits =
-      case_of(read_json(base_out / "results.json"), kLongleyCase).at("summary").at("reference").at("lre_min");
+      case_of(read_json(base_out / "results.json"), kLongleyCase).at("summary").at("reference").at("min_lre");
   // A first-order method stopped on the cost resolves the solution to fewer digits than a direct solve.
   REQUIRE(digits < 12.0);
   expect_exit("accept " + quoted((base_out / "results.json").string()) + " --baseline " + quoted(baseline.string()) +
                   " --record " + quoted((tmp / "record.md").string()),
               tmp.path(), 0);
   const fs::path strict =
-      longley_variant(tmp / "strict", [](json& suite) { suite["gate"]["min_reference_digits"] = 12; });
+      longley_variant(tmp / "strict", [](json& suite) { suite["gate"]["min_lre"] = 12; });
   const fs::path out = tmp / "strict-out";
   const CliResult gated = expect_exit("run " + quoted(strict.string()) + " --quiet --baseline " +
                                           quoted(baseline.string()) + " --out " + quoted(out.string()),
                                       tmp.path(), 1);
   INFO("stdout:\n" << gated.out);
-  CHECK(gated.out.find(std::string("fail  ") + kLongleyCase + "  reference_digits") != std::string::npos);
+  CHECK(gated.out.find(std::string("fail  ") + kLongleyCase + "  min_lre") != std::string::npos);
   CHECK(gated.out.find("required 12.0") != std::string::npos);
   // The same runs: only the requirement changed, so the safe range did not move.
   CHECK(gated.out.find("edge_moved") == std::string::npos);
   const json results = read_json(out / "results.json");
   const json& now = case_of(results, kLongleyCase).at("summary");
-  CHECK(now.at("reference").at("lre_min").get<double>() == Approx(digits));
+  CHECK(now.at("reference").at("min_lre").get<double>() == Approx(digits));
 }

@@ -2,9 +2,11 @@
 // figures of each case, the verdict and the legend; and the escaping and SVG helpers.
 #include <catch2/catch.hpp>
 
+#include <algorithm>
 #include <cmath>
 #include <regex>
 #include <string>
+#include <vector>
 
 #include "stepgate/gate/baseline.hpp"
 #include "stepgate/gate/findings.hpp"
@@ -157,8 +159,10 @@ TEST_CASE("report.html escapes every suite string and loads nothing", "[html]") 
   for (auto it = std::sregex_iterator(html.begin(), html.end(), href); it != std::sregex_iterator(); ++it)
     CHECK((*it)[1].str().rfind("#", 0) == 0);
   CHECK_FALSE(std::regex_search(html, std::regex(R"(<[a-z]+[^>]*\son[a-z]+\s*=)")));  // no event handler
-  // Three figures per case (range bar, cost plot, outcome map), legends, the verdict.
-  CHECK(count(html, "<svg ") == 3 * results.cases.size());
+  // The suite chart, then three figures per case (range bar, cost plot, outcome map), legends,
+  // the verdict.
+  CHECK(count(html, "<svg ") == 1 + 3 * results.cases.size());
+  CHECK(html.find("class=\"suitechart\"") < html.find("id=\"case-1\""));
   CHECK(count(html, "class=\"legend\"") >= 2 * results.cases.size());
   CHECK(html.find("verdict: fail") != std::string::npos);
   CHECK(html.find("no baseline") == std::string::npos);
@@ -184,7 +188,7 @@ TEST_CASE("report.html without a baseline says so and still draws every case", "
   CHECK(html.find("verdict: fail") != std::string::npos);
   CHECK(html.find("Could not be run: command &lt;exit 3&gt;") != std::string::npos);
   CHECK(html.find("No rate to show.") != std::string::npos);
-  CHECK(count(html, "<svg ") == 3 * (results.cases.size() - 1));
+  CHECK(count(html, "<svg ") == 1 + 3 * (results.cases.size() - 1));
   CHECK(html.find("class=\"band-base\"") == std::string::npos);
   CHECK(html.find("class=\"band-now\"") != std::string::npos);
 }
@@ -206,9 +210,76 @@ TEST_CASE("figures: one line per rate, diverged lines end with an x, cells lette
   CHECK(bar.find("no baseline") != std::string::npos);
   CHECK(bar.find("predicted blow-up") != std::string::npos);
   CHECK(bar.find("pinned") != std::string::npos);
+  CHECK(plot.find("<h3>Cost − optimum (log scale) per iteration, first seed</h3>") != std::string::npos);
+  // Marker labels name their own line; two lines too close to label apart get one label.
+  const auto labels = [](const std::string& svg) {
+    std::vector<std::string> out;
+    for (std::size_t at = svg.find("class=\"mlabel"); at != std::string::npos; at = svg.find("class=\"mlabel", at + 1)) {
+      const std::size_t open = svg.find('>', at) + 1;
+      out.push_back(svg.substr(open, svg.find('<', open) - open));
+    }
+    return out;
+  };
+  CaseResult apart = c, close = c;
+  apart.summary.blowup = 8.0, apart.theory.predicted_blowup = 2.0;
+  close.summary.blowup = 2.001, close.theory.predicted_blowup = 2.0;
+  const std::vector<std::string> apart_labels = labels(range_bar_html(apart, nullptr));
+  CHECK(std::count(apart_labels.begin(), apart_labels.end(), "measured blow-up") == 1);
+  CHECK(std::count(apart_labels.begin(), apart_labels.end(), "predicted blow-up") == 1);
+  const std::vector<std::string> close_labels = labels(range_bar_html(close, nullptr));
+  CHECK(std::count(close_labels.begin(), close_labels.end(), "measured and predicted blow-up") == 1);
+  CHECK(std::count(close_labels.begin(), close_labels.end(), "predicted blow-up") == 0);
+  CHECK(std::count(close_labels.begin(), close_labels.end(), "measured blow-up") == 0);
   // A line cap: many rates of the first seed still give at most kMaxCostLines lines.
   CaseResult many = c;
   many.runs.clear();
   for (int i = 0; i < 60; ++i) many.runs.push_back(make_run(1e-4 * std::pow(1.2, i), 0, Outcome::converged, RunRole::grid, 0.5));
   CHECK(count(cost_plot_html(many), "<polyline") == kMaxCostLines);
+}
+
+TEST_CASE("suite chart: every case on one axis, baseline beside current, failing rows marked", "[html]") {
+  Results results = make_results();
+  CaseResult broken;
+  broken.id = "broken/none/gd";
+  broken.error = "no such file";
+  results.cases.push_back(broken);
+  Baseline base;
+  for (const CaseResult& c : results.cases) {
+    if (!c.error.empty()) continue;
+    BaselineCase b;
+    b.id = c.id;
+    b.floor = c.summary.floor;
+    b.edge = c.summary.edge * 2.0;  // every case lost half its range
+    base.cases.push_back(b);
+  }
+  BaselineCase gone;
+  gone.id = "gone/none/gd";
+  gone.floor = 0.02, gone.edge = 0.4;
+  base.cases.push_back(gone);
+  const GateReport gate = apply_gate(results, &base);
+  const std::string chart = suite_chart_html(results, &base, gate);
+  // One row per case of the results, and one for the case only the baseline has.
+  CHECK(count(chart, "<g class=\"row ") == results.cases.size() + 1);
+  CHECK(count(chart, "class=\"band-now\"") == results.cases.size() - 1);  // the broken one has none
+  CHECK(count(chart, "class=\"band-base\"") == base.cases.size());
+  CHECK(chart.find(">not run<") != std::string::npos);
+  CHECK(chart.find(">missing from the results<") != std::string::npos);
+  CHECK(count(chart, "class=\"m-pin-head\"") == results.cases.size() - 1);
+  // Every case with a failing finding is drawn as failing; ids are escaped.
+  int failing = 0;
+  for (const CaseResult& c : results.cases) failing += gate.worst(c.id) == Severity::fail;
+  failing += gate.worst("gone/none/gd") == Severity::fail;
+  CHECK(failing > 0);
+  CHECK(count(chart, "class=\"row sev-fail\"") == static_cast<std::size_t>(failing));
+  CHECK(chart.find("<script>") == std::string::npos);
+  // One axis for all: decade ticks spanning every rate drawn.
+  CHECK(chart.find(">rate (log scale)<") != std::string::npos);
+  // A long id is cut for the label column but whole in the row's title.
+  Results one;
+  CaseResult longer = results.cases[0];
+  longer.id = std::string(80, 'x') + "/none/gd";
+  one.cases = {longer};
+  const std::string cut = suite_chart_html(one, nullptr, apply_gate(one, nullptr));
+  CHECK(cut.find(std::string(43, 'x') + "…") != std::string::npos);
+  CHECK(cut.find("<title>" + longer.id + ": ") != std::string::npos);
 }

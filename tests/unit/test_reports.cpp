@@ -2,6 +2,7 @@
 // hand-built results: one passing case, one failing case whose data changed (its id holds a
 // pipe), and one case with a reference whose source holds XML markup characters.
 #include <catch2/catch.hpp>
+#include <map>
 #include <unistd.h>
 
 #include <cmath>
@@ -12,13 +13,17 @@
 #include <string>
 #include <vector>
 
+#include <fmt/format.h>
 #include <nlohmann/json.hpp>
 #include <pugixml.hpp>
 
 #include "stepgate/core/results.hpp"
 #include "stepgate/gate/baseline.hpp"
 #include "stepgate/gate/findings.hpp"
+#include "stepgate/report/format.hpp"
+#include "stepgate/report/html_escape.hpp"
 #include "stepgate/report/record.hpp"
+#include "stepgate/report/summary_table.hpp"
 #include "stepgate/report/reporter.hpp"
 
 using namespace stepgate;
@@ -65,6 +70,7 @@ Results sample_results() {
   r.tool = {"9.8.7", "GCC 12.2.0", "Release, Eigen 3.4.0"};
   r.host = {"Linux 6.1", "x86_64", "box", 8, 2, ""};
   r.started = "2026-01-02T03:04:05Z";
+  r.wall_seconds = 1.25;  // the run's own elapsed time: cases side by side, plus preparation
 
   CaseResult pass = make_case(kPassId, "lin-data", std::string(64, 'a'));
   pass.summary.pinned = 0.25;
@@ -72,6 +78,7 @@ Results sample_results() {
   pass.summary.pinned_iterations = 100;
   pass.summary.pinned_outcome = Outcome::converged;
   pass.runs = {timed_run(0.1, 0.25), timed_run(0.2, 0.5)};
+  pass.wall_seconds = 0.5;  // its two lanes ran together: the case took as long as the longer
 
   CaseResult moved = make_case(kPipeId, "lin-data", std::string(64, 'c'));  // was 'b' in the baseline
   moved.optimizer.kind = OptimizerKind::momentum;
@@ -80,10 +87,11 @@ Results sample_results() {
   moved.summary.edge_lo = 0.25;
   moved.summary.edge_hi = 0.2525;
   moved.runs = {timed_run(0.1, 1.0)};
+  moved.wall_seconds = 1.0;
 
   CaseResult ref = make_case(kRefId, "longley", std::string(64, 'd'));
   ReferenceSummary rs;
-  rs.lre_min = 4.2;  // below the required 6 digits: reference_digits fails
+  rs.min_lre = 4.2;  // below the required 6 digits: min_lre fails
   rs.source = kRefSource;
   ref.summary.reference = rs;
 
@@ -96,7 +104,7 @@ Baseline sample_baseline(const Results& r) {
   Baseline b;
   b.suite = r.suite;
   b.tool = r.tool;
-  b.platform = r.host;
+  b.host = r.host;
   b.accepted = "2026-01-01T00:00:00Z";
   for (const CaseResult& c : r.cases) {
     BaselineCase x;
@@ -112,7 +120,7 @@ Baseline sample_baseline(const Results& r) {
     x.headroom = c.summary.headroom;
     x.edge_spread = 1.0;
     x.precision = 0.01;
-    if (c.summary.reference) x.reference_digits = c.summary.reference->lre_min;
+    if (c.summary.reference) x.min_lre = c.summary.reference->min_lre;
     b.cases.push_back(x);
   }
   b.cases[1].edge = 0.5;
@@ -227,18 +235,18 @@ TEST_CASE("reports: Markdown puts the verdict first and details only warn and fa
 
   const auto lines = lines_of(md);
   REQUIRE(!lines.empty());
-  CHECK(lines[0].rfind("**stepgate: FAIL** — 2 failing, 0 with warnings only, of 3 cases; suite demo (sha256 eeeeeeeeeeee…)", 0) == 0);
+  CHECK(lines[0] == "**verdict: fail — 3 cases: 2 failing, 0 with warnings, 1 passing**; suite demo (sha256 eeeeeeeeeeee…)");
 
   const std::string details = section(md, "### Cases with findings", "### All cases");
   CHECK(details.find(kPassId) == std::string::npos);
-  CHECK(details.find("#### FAIL: " + kPipeId) != std::string::npos);
-  CHECK(details.find("#### FAIL: " + md_text(kRefId)) != std::string::npos);
+  CHECK(details.find("#### fail: " + kPipeId) != std::string::npos);
+  CHECK(details.find("#### fail: " + md_text(kRefId)) != std::string::npos);
   // Every warn and fail finding appears with its severity, rule and message; data both hashes.
   for (const Finding& f : g.findings) {
     const std::string line = "- **" + std::string(to_string(f.severity)) + "** `" + std::string(to_string(f.rule)) + "`: " + md_text(f.message);
     CHECK((details.find(line) != std::string::npos) == (f.severity != Severity::pass));
   }
-  const std::string moved = section(details, "#### FAIL: " + kPipeId, "#### FAIL: " + md_text(kRefId));
+  const std::string moved = section(details, "#### fail: " + kPipeId, "#### fail: " + md_text(kRefId));
   CHECK(moved.find("data sha256 baseline: `" + std::string(64, 'b') + "`") != std::string::npos);
   CHECK(moved.find("data sha256 current:  `" + std::string(64, 'c') + "`") != std::string::npos);
   CHECK(moved.find("| edge [bracket] | 0.5 [0.5, 0.505] | 0.25 [0.25, 0.2525] |") != std::string::npos);
@@ -261,10 +269,11 @@ TEST_CASE("reports: Markdown without a baseline uses the baseline-free rules and
   const Results r = sample_results();
   const GateReport g = apply_gate(r, nullptr);
   const std::string md = render(*make_markdown_reporter(), r, nullptr, g);
-  CHECK(md.rfind(g.pass ? "**stepgate: PASS**" : "**stepgate: FAIL**", 0) == 0);
-  CHECK(md.find("No baseline") != std::string::npos);
+  CHECK(md.rfind(g.pass ? "**verdict: pass — " : "**verdict: fail — ", 0) == 0);
+  CHECK(md.find("no baseline: only the rules that need none were applied (pinned_headroom, min_lre and theory") !=
+        std::string::npos);
   const std::string details = section(md, "### Cases with findings", "### All cases");
-  CHECK(details.find("#### FAIL: " + md_text(kRefId)) != std::string::npos);
+  CHECK(details.find("#### fail: " + md_text(kRefId)) != std::string::npos);
   CHECK(details.find(kPipeId) == std::string::npos);  // its edge move needs a baseline
   CHECK(details.find("| floor | – | 0.01 |") != std::string::npos);
   CHECK(details.find("| edge [bracket] | – | 0.5 [0.5, 0.505] |") != std::string::npos);
@@ -289,8 +298,19 @@ TEST_CASE("reports: JUnit counts and messages, read by pugixml and by Python's E
     CHECK(n.attribute("failures").as_int() == g.failures);
     CHECK(n.attribute("errors").as_int() == 0);
     CHECK(n.attribute("skipped").as_int() == 0);
-    CHECK(n.attribute("time").as_double() == Approx(0.25 + 0.5 + 1.0));
+    CHECK(n.attribute("time").as_double() == Approx(1.25));  // the run's time, not a sum of lanes
   }
+  // Each case's own time, on its first testcase; the case without a time gets 0.
+  std::map<std::string, double> first_time;
+  for (const pugi::xml_node tc : suite.children("testcase"))
+    first_time.emplace(tc.attribute("classname").value(), tc.attribute("time").as_double());
+  CHECK(first_time.at(kPassId) == Approx(0.5));
+  CHECK(first_time.at(kPipeId) == Approx(1.0));
+  CHECK(first_time.at(kRefId) == 0.0);
+  const pugi::xml_node accepted = suite.child("properties").find_child_by_attribute("property", "name", "baseline_accepted");
+  REQUIRE(accepted);
+  CHECK(std::string(accepted.attribute("value").value()) == b.accepted);
+  CHECK_FALSE(suite.child("properties").find_child_by_attribute("property", "name", "baseline"));
   std::size_t i = 0;
   for (const pugi::xml_node tc : suite.children("testcase")) {
     REQUIRE(i < g.findings.size());
@@ -426,4 +446,56 @@ TEST_CASE("reports: a record without a history heading gets one, its text kept",
   const std::string rec = append_record(old, "demo", "### entry\n");
   CHECK(rec.rfind(old, 0) == 0);
   CHECK(rec.find("\n## History\n\n### entry\n") != std::string::npos);
+}
+
+TEST_CASE("reports: the terminal, report.md and report.html count the same things in the same words", "[reports]") {
+  const Results r = sample_results();
+  const Baseline b = sample_baseline(r);
+  for (const Baseline* base : {&b, static_cast<const Baseline*>(nullptr)}) {
+    const GateReport g = apply_gate(r, base);
+    const std::string line = count_line(g, r);
+    INFO(line);
+    CHECK(line.rfind(g.pass ? "verdict: pass — 3 cases: " : "verdict: fail — 3 cases: ", 0) == 0);
+    CHECK(findings_text(g, r).find(line + "\n") != std::string::npos);
+    CHECK(render(*make_markdown_reporter(), r, base, g).find("**" + line + "**") != std::string::npos);
+    CHECK(render(*make_html_reporter(), r, base, g).find(html_escape(line)) != std::string::npos);
+    // The counts add up to the cases, each case counted once by its worst finding.
+    int failing = 0, warning = 0, passing = 0;
+    for (const CaseResult& c : r.cases) {
+      const auto w = g.worst(c.id);
+      failing += w == Severity::fail;
+      warning += w == Severity::warn;
+      passing += !w || *w == Severity::pass;
+    }
+    CHECK(line.find(fmt::format("{} failing, {} with warnings, {} passing", failing, warning, passing)) != std::string::npos);
+    if (!base) CHECK(findings_text(g, r).find(baseline_free_note()) != std::string::npos);
+  }
+  // The headings are the same list in the terminal table, report.md and report.html.
+  const GateReport g = apply_gate(r, &b);
+  const std::string terminal = summary_table(r, g);
+  const std::string md = render(*make_markdown_reporter(), r, &b, g);
+  const std::string html = render(*make_html_reporter(), r, &b, g);
+  std::string md_head = "|", html_head;
+  for (std::string_view h : kSummaryHeadings) {
+    CHECK(terminal.substr(0, terminal.find('\n')).find(std::string(h)) != std::string::npos);
+    md_head += " " + std::string(h) + " |";
+    html_head += "<th>" + std::string(h) + "</th>";
+  }
+  CHECK(md.find(md_head + "\n") != std::string::npos);
+  CHECK(html.find(html_head) != std::string::npos);
+  // One headroom format and one missing mark: 2× in all three; the missing pinned rate a dash.
+  CHECK(terminal.find("2×") != std::string::npos);
+  CHECK(md.find("| 2× |") != std::string::npos);
+  CHECK(html.find("<td>2×</td>") != std::string::npos);
+  CHECK(terminal.find(" - ") == std::string::npos);
+  CHECK(terminal.find("–") != std::string::npos);
+}
+
+TEST_CASE("reports: one number format and one missing mark", "[reports]") {
+  CHECK(format_number(0.123456) == "0.1235");
+  CHECK(format_number(1.5e-5) == "1.5e-05");
+  CHECK(format_number(std::nan("")) == "–");
+  CHECK(format_factor(6.167594857709478) == "6.17×");
+  CHECK(format_factor(std::nan("")) == "–");
+  CHECK(std::string(kMissingMark) == "–");
 }

@@ -18,7 +18,7 @@
 #include <thread>
 
 #include "stepgate/core/error.hpp"
-#include "stepgate/core/json_fields.hpp"
+#include "stepgate/core/json_node.hpp"
 #include "stepgate/core/optimizer_spec_json.hpp"
 #include "stepgate/core/results.hpp"
 
@@ -193,10 +193,9 @@ TEST_CASE("results: every field of the docs/design.md contract is present by nam
       "/started", "/finished", "/shard", "/cases/0/id", "/cases/0/problem", "/cases/0/scaling",
       "/cases/0/problem_kind", "/cases/0/dataset", "/cases/0/data_sha256", "/cases/0/optimum_cost",
       "/cases/0/error", "/cases/0/optimizer/label", "/cases/0/optimizer/kind",
-      "/cases/0/optimizer/beta", "/cases/0/optimizer/beta1", "/cases/0/optimizer/beta2",
-      "/cases/0/optimizer/rho", "/cases/0/optimizer/eps", "/cases/0/optimizer/batch_size",
-      "/cases/0/optimizer/schedule/kind", "/cases/0/optimizer/schedule/factor",
-      "/cases/0/optimizer/schedule/every", "/cases/0/optimizer/schedule/decay",
+      "/cases/0/optimizer/beta1", "/cases/0/optimizer/beta2",
+      "/cases/0/optimizer/eps", "/cases/0/optimizer/batch_size",
+      "/cases/0/optimizer/schedule/kind",
       "/cases/0/optimizer/schedule/floor", "/cases/0/optimizer/schedule/warmup",
       "/cases/0/theory/L", "/cases/0/theory/mu", "/cases/0/theory/predicted_blowup",
       "/cases/0/theory/rule", "/cases/0/theory/method", "/cases/0/theory/lambda_max_start",
@@ -207,15 +206,15 @@ TEST_CASE("results: every field of the docs/design.md contract is present by nam
       "/cases/0/summary/pinned", "/cases/0/summary/pinned_iterations",
       "/cases/0/summary/pinned_outcome", "/cases/0/summary/headroom",
       "/cases/0/summary/edge_spread", "/cases/0/summary/precision", "/cases/0/summary/runs",
-      "/cases/0/summary/reference/lre_min", "/cases/0/summary/reference/source",
+      "/cases/0/summary/reference/min_lre", "/cases/0/summary/reference/source",
       "/cases/0/summary/reference/names/1", "/cases/0/summary/reference/lre/1",
       "/cases/0/summary/reference/estimate/1", "/cases/0/summary/seeds/1/seed",
       "/cases/0/summary/seeds/1/floor", "/cases/0/summary/seeds/1/edge",
       "/cases/0/summary/seeds/1/edge_bracket/1", "/cases/0/summary/seeds/1/blowup",
       "/cases/0/summary/seeds/1/best_rate", "/cases/0/summary/seeds/1/runs",
-      "/cases/0/runs/0/rate", "/cases/0/runs/0/seed", "/cases/0/runs/0/seed_index",
+      "/cases/0/runs/0/rate", "/cases/0/runs/0/rng_seed", "/cases/0/runs/0/seed_index",
       "/cases/0/runs/0/role", "/cases/0/runs/0/outcome", "/cases/0/runs/0/reason",
-      "/cases/0/runs/0/iterations", "/cases/0/runs/0/steps", "/cases/0/runs/0/final_cost",
+      "/cases/0/runs/0/converged_at", "/cases/0/runs/0/steps", "/cases/0/runs/0/final_cost",
       "/cases/0/runs/0/gap", "/cases/0/runs/0/overshoot", "/cases/0/runs/0/wall_seconds",
       "/cases/0/runs/0/trace/0/0", "/cases/0/runs/0/trace/0/1", "/cases/1/summary/reference",
       "/cases/1/runs"};
@@ -223,9 +222,9 @@ TEST_CASE("results: every field of the docs/design.md contract is present by nam
     INFO(p);
     CHECK(j.contains(json::json_pointer(p)));
   }
-  CHECK(j["format"] == "stepgate.results/1");
+  CHECK(j["format"] == "stepgate.results/2");
   CHECK(j["cases"][0]["runs"][0]["role"] == "refine");
-  CHECK(j["cases"][0]["runs"][0]["seed"].is_number_unsigned());
+  CHECK(j["cases"][0]["runs"][0]["rng_seed"].is_number_unsigned());
   CHECK(j["cases"][0]["summary"]["seeds"][0]["seed"].get<std::uint64_t>() == kBigSeed);
   CHECK(j["cases"][0]["summary"]["pinned_outcome"] == "converged");
   // final_cost and gap are those of the last trace point.
@@ -247,7 +246,7 @@ TEST_CASE("results: NaN, nullopt and +-infinity are written as null", "[results]
   CHECK(a["summary"]["seeds"][1]["floor"].is_null());
   CHECK(a["summary"]["seeds"][1]["blowup"].is_null());     // +inf
   const json& diverged = a["runs"][1];
-  CHECK(diverged["iterations"].is_null());  // set in memory but the run did not converge
+  CHECK(diverged["converged_at"].is_null());  // set in memory but the run did not converge
   CHECK(diverged["overshoot"].is_null());
   CHECK(diverged["final_cost"].is_null());  // last cost +inf
   CHECK(diverged["gap"].is_null());
@@ -319,36 +318,42 @@ TEST_CASE("results: malformed documents name the JSON pointer of the bad field",
     std::function<void(json&)> break_it;
   };
   const std::vector<Bad> table = {
-      {"/format", "stepgate.results/1", [](json& j) { j.erase("format"); }},
-      {"/format", "expected format \"stepgate.results/1\", found string \"stepgate.results/2\"",
-       [](json& j) { j["format"] = "stepgate.results/2"; }},
-      {"", "expected an object, found array", [](json& j) { j = json::array({1}); }},
-      {"/suite/name", "expected a string, found number 5", [](json& j) { j["suite"]["name"] = 5; }},
-      {"/host/cores", "found number -2", [](json& j) { j["host"]["cores"] = -2; }},
-      {"/cases", "expected an array, found object", [](json& j) { j["cases"] = json::object(); }},
-      {"/cases/0/summary/edge", "found no such field",
+      {"/format", "stepgate.results/2", [](json& j) { j.erase("format"); }},
+      {"/format", "expected format \"stepgate.results/2\", found \"stepgate.results/3\"",
+       [](json& j) { j["format"] = "stepgate.results/3"; }},
+      {"/format", "written by stepgate 0.1: run the suite again", [](json& j) { j["format"] = "stepgate.results/1"; }},
+      {"/cases/0/error", "expected a string or null, found 3", [](json& j) { j["cases"][0]["error"] = 3; }},
+      {"", "expected an object, found an array", [](json& j) { j = json::array({1}); }},
+      {"/suite/name", "expected a string, found 5", [](json& j) { j["suite"]["name"] = 5; }},
+      {"/host/cores", "found -2", [](json& j) { j["host"]["cores"] = -2; }},
+      {"/cases", "expected an array, found an empty object", [](json& j) { j["cases"] = json::object(); }},
+      {"/cases/0/summary/edge", "found nothing (no such key)",
        [](json& j) { j["cases"][0]["summary"].erase("edge"); }},
       {"/cases/0/summary/edge_bracket", "a pair",
        [](json& j) { j["cases"][0]["summary"]["edge_bracket"] = {1.0}; }},
       {"/cases/0/summary/pinned_outcome", "expected a string",
        [](json& j) { j["cases"][0]["summary"]["pinned_outcome"] = 3; }},
-      {"/cases/1/summary/reference/source", "no such field",
-       [](json& j) { j["cases"][1]["summary"]["reference"] = {{"lre_min", 1.0}}; }},
+      {"/cases/1/summary/reference/source", "no such key",
+       [](json& j) { j["cases"][1]["summary"]["reference"] = {{"min_lre", 1.0}}; }},
       {"/cases/0/optimizer/kind", "an optimizer kind",
        [](json& j) { j["cases"][0]["optimizer"]["kind"] = "lbfgs"; }},
-      {"/cases/0/optimizer/schedule/every", "found number 1.5",
-       [](json& j) { j["cases"][0]["optimizer"]["schedule"]["every"] = 1.5; }},
-      {"/cases/0/runs/0/seed", "found number -1", [](json& j) { j["cases"][0]["runs"][0]["seed"] = -1; }},
-      {"/cases/0/runs/0/outcome", "found string \"exploded\"",
+      {"/cases/0/optimizer/schedule/warmup", "found 1.5",
+       [](json& j) { j["cases"][0]["optimizer"]["schedule"]["warmup"] = 1.5; }},
+      {"/cases/0/optimizer/schedule/floor", "expected a number or null, found \"low\"",
+       [](json& j) { j["cases"][0]["optimizer"]["schedule"]["floor"] = "low"; }},  // cosine's own parameter
+      {"/cases/0/optimizer/beta1", "found nothing (no such key)",
+       [](json& j) { j["cases"][0]["optimizer"].erase("beta1"); }},  // adam's, so required
+      {"/cases/0/runs/0/rng_seed", "found -1", [](json& j) { j["cases"][0]["runs"][0]["rng_seed"] = -1; }},
+      {"/cases/0/runs/0/outcome", "found \"exploded\"",
        [](json& j) { j["cases"][0]["runs"][0]["outcome"] = "exploded"; }},
       {"/cases/0/runs/1/role", "a run role",
        [](json& j) { j["cases"][0]["runs"][1]["role"] = "warmup"; }},
       {"/cases/0/runs/0/trace/3", "a pair [iteration, cost]",
        [](json& j) { j["cases"][0]["runs"][0]["trace"][3] = {3}; }},
-      {"/cases/0/runs/0/trace/2/1", "expected a number or null, found string \"x\"",
+      {"/cases/0/runs/0/trace/2/1", "expected a number or null, found \"x\"",
        [](json& j) { j["cases"][0]["runs"][0]["trace"][2][1] = "x"; }},
-      {"/cases/0/runs/0/iterations", "found boolean true",
-       [](json& j) { j["cases"][0]["runs"][0]["iterations"] = true; }},
+      {"/cases/0/runs/0/converged_at", "found true",
+       [](json& j) { j["cases"][0]["runs"][0]["converged_at"] = true; }},
   };
   for (const Bad& bad : table) {
     INFO(bad.pointer);
@@ -444,7 +449,7 @@ TEST_CASE("results: read_results reports unreadable files and syntax errors by p
     FAIL("no InputError");
   } catch (const InputError& e) {
     CHECK(e.where() == other + "#/format");
-    CHECK_THAT(e.message(), Catch::Contains("stepgate.results/1"));
+    CHECK_THAT(e.message(), Catch::Contains("stepgate.results/2"));
   }
 }
 
@@ -469,8 +474,13 @@ TEST_CASE("results: run roles and optimizer specs round-trip by name", "[results
   CHECK(back.beta == spec.beta);
   CHECK(back.beta1 == spec.beta1);
   CHECK(back.beta2 == spec.beta2);
-  CHECK(back.rho == spec.rho);
   CHECK(back.eps == spec.eps);
+  // An entry lists only what its kind uses: nesterov has no rho, a step schedule no decay.
+  const json written = to_json(spec);
+  CHECK(written.contains("beta"));
+  for (const char* key : {"rho", "beta1", "beta2", "eps"}) CHECK_FALSE(written.contains(key));
+  for (const char* key : {"decay", "floor"}) CHECK_FALSE(written["schedule"].contains(key));
+  CHECK(back.rho == OptimizerSpec{}.rho);  // what it was not given stays at the default
   CHECK(back.batch_size == spec.batch_size);
   CHECK(back.schedule.kind == spec.schedule.kind);
   CHECK(back.schedule.factor == spec.schedule.factor);

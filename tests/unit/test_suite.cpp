@@ -193,7 +193,7 @@ TEST_CASE("suite: a full suite reaches every field of the Suite value", "[suite]
     CHECK(ols.pinned == std::map<std::string, double>{{"gd", 0.02}});
     // gate: suite section, then defaults, then the problem.
     CHECK(ols.gate.edge_moved == 0.1);
-    CHECK(ols.gate.min_headroom == 2.0);
+    CHECK(ols.gate.pinned_headroom == 2.0);
     CHECK(ols.gate.case_added == Severity::fail);
     CHECK(ols.gate.floor_moved == 0.3);
     CHECK(ols.gate.data_changed == Severity::fail);
@@ -260,11 +260,11 @@ TEST_CASE("suite: a full suite reaches every field of the Suite value", "[suite]
   SECTION("suite gate section") {
     CHECK(s.gate.edge_moved == 0.07);
     CHECK(s.gate.floor_moved == 0.3);
-    CHECK(s.gate.best_moved_factor == 3.0);
-    CHECK(s.gate.min_headroom == 1.2);
-    CHECK(s.gate.iterations_grew == 0.5);
-    CHECK(s.gate.min_reference_digits == 4.0);
-    CHECK(s.gate.theory_factor == 1.5);
+    CHECK(s.gate.best_moved == 3.0);
+    CHECK(s.gate.pinned_headroom == 1.2);
+    CHECK(s.gate.pinned_iterations == 0.5);
+    CHECK(s.gate.min_lre == 4.0);
+    CHECK(s.gate.theory == 1.5);
     CHECK(s.gate.case_added == Severity::pass);
     CHECK(s.gate.case_missing == Severity::warn);
     CHECK(s.gate.data_changed == Severity::fail);
@@ -310,6 +310,14 @@ TEST_CASE("suite: malformed suites fail at the right pointer with a helpful mess
        "expected a whole number, found \"many\""},
       {"unknown key", [](Json& j) { j["problems"][0]["rates"]["preciison"] = 0.1; },
        "/problems/0/rates/preciison", "unknown key 'preciison' (did you mean 'precision'?)"},
+      {"gate key of 0.1, suite level", [](Json& j) { j["gate"]["min_headroom"] = 2; }, "/gate/min_headroom",
+       "'min_headroom' is now called 'pinned_headroom', as its rule is"},
+      {"gate key of 0.1, problem level", [](Json& j) { j["problems"][0]["gate"]["theory_factor"] = 2; },
+       "/problems/0/gate/theory_factor", "'theory_factor' is now called 'theory'"},
+      {"gate key named as its rule", [](Json& j) { j["gate"]["best_moved"] = "three"; }, "/gate/best_moved",
+       "expected a number, found \"three\""},
+      {"gate key named as its rule, out of range", [](Json& j) { j["gate"]["best_moved"] = 0.5; }, "/gate/best_moved",
+       "expected a number >= 1"},
       {"unknown top-level key", [](Json& j) { j["problem"] = Json::array(); }, "/problem",
        "(did you mean 'problems'?)"},
       {"missing problem name", [](Json& j) { j["problems"][1].erase("name"); }, "/problems/1",

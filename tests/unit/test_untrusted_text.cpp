@@ -15,7 +15,7 @@
 #include "stepgate/core/error.hpp"
 #include "stepgate/core/gate_tolerances.hpp"
 #include "stepgate/core/gate_tolerances_json.hpp"
-#include "stepgate/core/json_fields.hpp"
+#include "stepgate/core/json_node.hpp"
 #include "stepgate/core/json_text.hpp"
 #include "stepgate/core/quote_text.hpp"
 
@@ -100,10 +100,10 @@ TEST_CASE("gate tolerances read from results obey the same ranges as in a suite"
 
   CHECK(error_of({{"edge_moved", nullptr}}) == "r.json#/gate/edge_moved: expected a number >= 0, found null");
   CHECK(error_of({{"edge_moved", -1}}).rfind("r.json#/gate/edge_moved: expected a number >= 0", 0) == 0);
-  CHECK(error_of({{"min_headroom", 0.5}}).rfind("r.json#/gate/min_headroom: expected a number >= 1", 0) == 0);
+  CHECK(error_of({{"pinned_headroom", 0.5}}).rfind("r.json#/gate/pinned_headroom: expected a number >= 1", 0) == 0);
   CHECK(error_of({{"theory_slack", 2}}).rfind("r.json#/gate/theory_slack: expected a number in [0, 1]", 0) == 0);
-  CHECK(error_of({{"min_reference_digits", "6"}}).rfind("r.json#/gate/min_reference_digits:", 0) == 0);
+  CHECK(error_of({{"min_lre", "6"}}).rfind("r.json#/gate/min_lre:", 0) == 0);
   CHECK(error_of({{"case_added", "maybe"}}).rfind("r.json#/gate/case_added:", 0) == 0);
   // The bounds themselves are admitted.
-  CHECK(error_of({{"min_reference_digits", 17}, {"theory_slack", 0}, {"min_headroom", 1}}).empty());
+  CHECK(error_of({{"min_lre", 17}, {"theory_slack", 0}, {"pinned_headroom", 1}}).empty());
 }

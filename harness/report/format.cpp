@@ -1,0 +1,55 @@
+#include "stepgate/report/format.hpp"
+
+#include <cmath>
+#include <set>
+
+#include <fmt/format.h>
+
+namespace stepgate {
+
+std::string format_number(double v) { return std::isnan(v) ? std::string(kMissingMark) : fmt::format("{:.4g}", v); }
+
+std::string format_factor(double v) { return std::isnan(v) ? std::string(kMissingMark) : fmt::format("{:.3g}×", v); }
+
+std::string count_line(const GateReport& gate, const Results& results) {
+  std::set<std::string> cases;
+  for (const CaseResult& c : results.cases) cases.insert(c.id);
+  std::set<std::string> others;  // ids with findings that are not cases of these results
+  for (const Finding& f : gate.findings)
+    if (!cases.count(f.case_id)) others.insert(f.case_id);
+  int failing = 0, warning = 0, passing = 0, missing = 0;
+  std::string suite_level;
+  const auto count = [&](const std::string& id) {
+    const std::optional<Severity> w = gate.worst(id);
+    failing += w == Severity::fail;
+    warning += w == Severity::warn;
+    passing += !w || *w == Severity::pass;
+  };
+  for (const CaseResult& c : results.cases) count(c.id);
+  for (const std::string& id : others) {
+    bool is_case = false;  // a case of the baseline missing here has a case_presence finding
+    for (const Finding* f : gate.of_case(id)) is_case = is_case || f->rule == Rule::case_presence;
+    if (is_case) {
+      ++missing;
+      count(id);
+    } else if (const auto w = gate.worst(id); w && *w != Severity::pass) {
+      suite_level += id == kSuiteFindingId ? fmt::format("; the suite file changed ({})", to_string(*w))
+                                           : fmt::format("; {}: {}", id, to_string(*w));
+    }
+  }
+  const int total = static_cast<int>(results.cases.size()) + missing;
+  return fmt::format("verdict: {} — {} case{}: {} failing, {} with warnings, {} passing{}{}", gate.pass ? "pass" : "fail",
+                     total, total == 1 ? "" : "s", failing, warning, passing,
+                     missing ? fmt::format(" ({} missing from the results)", missing) : "", suite_level);
+}
+
+std::string baseline_free_note() {
+  std::string rules;
+  const auto& list = baseline_free_rules();
+  for (std::size_t i = 0; i < list.size(); ++i)
+    rules += (i == 0 ? "" : i + 1 == list.size() ? " and " : ", ") + std::string(to_string(list[i]));
+  return "no baseline: only the rules that need none were applied (" + rules +
+         ", and a case that could not be run fails)";
+}
+
+}  // namespace stepgate
