@@ -89,11 +89,14 @@ struct Measured {
   std::vector<double> rates, final_costs;
   std::vector<long> steps;
   std::vector<bool> diverged;
+  std::vector<bool> proven_slow;  // stopped before the budget by the proven slow verdict
+  long budget = 0;
   std::vector<Vec> starts;
 };
 
 Measured run_workload(const Workload& w) {
   Measured m;
+  m.budget = w.settings.budget;
   const auto t0 = Clock::now();
   std::vector<std::vector<RunRecord>> all;
   for (int s = 1; s <= w.seeds; ++s)
@@ -108,6 +111,7 @@ Measured run_workload(const Workload& w) {
       m.steps.push_back(r.steps);
       m.final_costs.push_back(r.trace.empty() ? NAN : r.trace.back().cost);
       m.diverged.push_back(r.outcome == Outcome::diverged);
+      m.proven_slow.push_back(r.outcome == Outcome::slow && r.steps < w.settings.budget);
       m.starts.push_back(start);
     }
   }
@@ -121,6 +125,10 @@ struct PeerResult {
   double seconds = NAN;  // scaled to all runs
   bool agreed = false;
   double worst_relative = 0;
+  // The peer runs to the budget where stepgate proved a run slow and stopped it (a loop without
+  // that proof cannot stop early); the same work per iteration is then also shown.
+  long peer_iterations = 0, our_iterations = 0;
+  int proven_slow = 0;
 };
 
 void write_doubles(const fs::path& path, const double* data, std::size_t n) {
@@ -169,15 +177,22 @@ std::vector<PeerResult> run_peers(const Options& opt, const Workload& w, const M
               {"X", (scratch / "X.f8").string()}, {"y", (scratch / "y.f8").string()},
               {"optimizer", {{"kind", w.optimizer.kind == OptimizerKind::momentum ? "momentum" : "gd"},
                              {"beta", w.optimizer.beta}}}};
-  long chosen_steps = 0;
+  long chosen_steps = 0, chosen_ours = 0;
+  int proven = 0;
   for (std::size_t i : chosen) {
     const Vec& s = m.starts[i];
     json start = s.isZero(0) ? json(nullptr) : json(std::vector<double>(s.data(), s.data() + s.size()));
-    job["runs"].push_back({{"rate", m.rates[i]}, {"start", start}, {"steps", m.steps[i]}});
-    chosen_steps += m.steps[i] + 1;
+    const long steps = m.proven_slow[i] ? m.budget : m.steps[i];
+    proven += m.proven_slow[i];
+    job["runs"].push_back({{"rate", m.rates[i]}, {"start", start}, {"steps", steps}});
+    chosen_steps += steps + 1;
+    chosen_ours += m.steps[i] + 1;
   }
   std::ofstream(scratch / "job.json") << job.dump();
-  const double scale = double(m.lane_iterations + long(m.final_costs.size())) / double(std::max(1L, chosen_steps));
+  // Scaled to all runs by stepgate's iterations (the subset's share of them).
+  long all_ours = 0;
+  for (long s : m.steps) all_ours += s + 1;
+  const double scale = double(all_ours) / double(std::max(1L, chosen_ours));
 
   std::vector<PeerResult> out;
   for (const std::string& peer : {"numpy_loop.py", "torch_loop.py"}) {
@@ -192,9 +207,13 @@ std::vector<PeerResult> run_peers(const Options& opt, const Workload& w, const M
     }
     r.name = res->at("peer").get<std::string>();
     r.seconds = res->at("seconds").get<double>() * scale;
+    r.peer_iterations = chosen_steps;
+    r.our_iterations = chosen_ours;
+    r.proven_slow = proven;
     const json& finals = res->at("final_costs");
     r.agreed = true;
     for (std::size_t k = 0; k < chosen.size(); ++k) {
+      if (m.proven_slow[chosen[k]]) continue;  // the peer ran on to the budget: another final cost
       const double ours = m.final_costs[chosen[k]];
       const double theirs = finals[k].is_null() ? INFINITY : finals[k].get<double>();
       if (!std::isfinite(ours) && !std::isfinite(theirs)) continue;
@@ -241,6 +260,15 @@ json report(const std::string& name, const Workload& w, const Measured& m, const
                   p.seconds, p.seconds / m.seconds, p.worst_relative, p.note.empty() ? "" : "; ", p.note.c_str());
       pj["seconds"] = p.seconds;
       pj["ratio"] = p.seconds / m.seconds;
+      if (p.proven_slow > 0) {
+        // The same runs at the same number of iterations: what the loop itself is worth.
+        const double same_work = p.seconds * double(p.our_iterations) / double(p.peer_iterations);
+        std::printf("  %-28s   %d runs proven slow were stopped by stepgate and run to the budget (%ld) by the peer, "
+                    "as a loop without the proof must; per iteration stepgate is %.1fx faster\n",
+                    "", p.proven_slow, m.budget, same_work / m.seconds);
+        pj["proven_slow_runs"] = p.proven_slow;
+        pj["ratio_per_iteration"] = same_work / m.seconds;
+      }
     }
     j["peers"].push_back(pj);
   }
@@ -432,7 +460,7 @@ int main(int argc, char** argv) {
     std::printf("\ngemm: dense %ld x %ld float64 on %u cores: Eigen %.1f GFLOP/s", long(n), long(n), threads, eigen_gflops);
     json j = {{"workload", "gemm"}, {"eigen_gflops", eigen_gflops}};
     if (numpy) {
-      std::printf(", OpenBLAS through numpy %.1f GFLOP/s", numpy->at("gflops").get<double>());
+      std::printf(", %s %.1f GFLOP/s", numpy->at("peer").get<std::string>().c_str(), numpy->at("gflops").get<double>());
       j["openblas_gflops"] = numpy->at("gflops");
     } else {
       std::printf(", numpy not run: %s", error.c_str());

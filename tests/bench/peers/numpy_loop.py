@@ -17,6 +17,8 @@ import time
 
 import numpy as np
 
+from blas_name import blas_name
+
 
 def main(path):
     job = json.load(open(path))
@@ -66,7 +68,7 @@ def main(path):
                     w = w - rate * g
             finals.append(float(cost_grad(w)[0]))
         seconds = time.perf_counter() - start
-    print(json.dumps({"peer": "numpy " + np.__version__, "seconds": seconds,
+    print(json.dumps({"peer": f"numpy {np.__version__} ({blas_name()})", "seconds": seconds,
                       "final_costs": [c if np.isfinite(c) else None for c in finals]}))
 
 
