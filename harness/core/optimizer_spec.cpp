@@ -1,6 +1,8 @@
 #include "stepgate/core/optimizer_spec.hpp"
 
+#include <algorithm>
 #include <cmath>
+#include <limits>
 #include <vector>
 
 #include <fmt/format.h>
@@ -24,26 +26,54 @@ std::string_view to_string(OptimizerKind k) {
   return "gd";
 }
 
+const std::vector<OptimizerKind>& optimizer_kinds() {
+  using K = OptimizerKind;
+  static const std::vector<K> kinds = {K::gd, K::sgd, K::momentum, K::nesterov, K::adagrad, K::rmsprop, K::adam};
+  return kinds;
+}
+
+const std::vector<std::string>& optimizer_kind_names() {
+  static const std::vector<std::string> names = [] {
+    std::vector<std::string> out;
+    for (OptimizerKind k : optimizer_kinds()) out.emplace_back(to_string(k));
+    return out;
+  }();
+  return names;
+}
+
 std::optional<OptimizerKind> optimizer_kind_from_string(std::string_view s) {
-  for (OptimizerKind k : {OptimizerKind::gd, OptimizerKind::sgd, OptimizerKind::momentum,
-                          OptimizerKind::nesterov, OptimizerKind::adagrad, OptimizerKind::rmsprop,
-                          OptimizerKind::adam})
+  for (OptimizerKind k : optimizer_kinds())
     if (to_string(k) == s) return k;
   return std::nullopt;
 }
 
-std::string validate(const OptimizerSpec& spec) {
-  // Comparisons are written so that NaN fails them.
-  std::vector<std::string> errors;
-  const auto in_unit = [&](const char* field, double v) {
-    if (!(v >= 0.0 && v < 1.0)) errors.push_back(fmt::format("{} = {} is outside [0, 1)", field, v));
+const std::vector<OptimizerParam>& optimizer_params() {
+  using K = OptimizerKind;
+  using S = OptimizerSpec;
+  constexpr double kInf = std::numeric_limits<double>::infinity();
+  static const std::vector<OptimizerParam> params = {
+      {"beta", &S::beta, 0.0, 1.0, false, true, "[0, 1)", {K::momentum, K::nesterov}},
+      {"beta1", &S::beta1, 0.0, 1.0, false, true, "[0, 1)", {K::adam}},
+      {"beta2", &S::beta2, 0.0, 1.0, false, true, "[0, 1)", {K::adam}},
+      {"rho", &S::rho, 0.0, 1.0, false, true, "[0, 1)", {K::rmsprop}},
+      {"eps", &S::eps, 0.0, kInf, true, true, "(0, ∞)", {K::adagrad, K::rmsprop, K::adam}},
   };
-  in_unit("beta", spec.beta);
-  in_unit("beta1", spec.beta1);
-  in_unit("beta2", spec.beta2);
-  in_unit("rho", spec.rho);
-  if (!(spec.eps > 0.0 && std::isfinite(spec.eps)))
-    errors.push_back(fmt::format("eps = {} must be finite and > 0", spec.eps));
+  return params;
+}
+
+bool OptimizerParam::used_by(OptimizerKind k) const { return std::find(kinds.begin(), kinds.end(), k) != kinds.end(); }
+
+bool OptimizerParam::admits(double v) const {
+  // Written so that NaN fails.
+  return (min_open ? v > min : v >= min) && (max_open ? v < max : v <= max);
+}
+
+std::string validate(const OptimizerSpec& spec) {
+  // Every parameter is checked whatever the kind (a value out of range would matter after a
+  // change of kind).
+  std::vector<std::string> errors;
+  for (const OptimizerParam& p : optimizer_params())
+    if (!p.admits(spec.*p.member)) errors.push_back(fmt::format("{} = {} is outside {}", p.key, spec.*p.member, p.range));
   if (spec.batch_size < 0)
     errors.push_back(fmt::format("batch_size = {} must be >= 0 (0 = full batch)", spec.batch_size));
   else if (spec.kind == OptimizerKind::sgd && spec.batch_size == 0)

@@ -4,6 +4,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "stepgate/core/schedule.hpp"
 
@@ -26,6 +27,26 @@ struct OptimizerSpec {
 
   std::string name() const;   ///< label, or the kind's name when there is no label
 };
+
+/// One numeric parameter of OptimizerSpec, declared once: its key (in suites and results), its
+/// member, its range, and the kinds that use it. The suite reader, the results writer and
+/// reader, and validate() all read this table; a new parameter is one more row.
+struct OptimizerParam {
+  std::string_view key;
+  double OptimizerSpec::*member;
+  double min, max;
+  bool min_open, max_open;      ///< the range excludes min / max
+  std::string_view range;       ///< the range in words, "[0, 1)"
+  std::vector<OptimizerKind> kinds;  ///< the kinds that use it (others ignore it)
+  bool used_by(OptimizerKind k) const;
+  bool admits(double v) const;  ///< false for NaN
+};
+/// beta, beta1, beta2, rho, eps (batch_size and schedule apply to every kind).
+const std::vector<OptimizerParam>& optimizer_params();
+/// Every kind, in the order of the enum.
+const std::vector<OptimizerKind>& optimizer_kinds();
+/// Their names: "gd", "sgd", ...
+const std::vector<std::string>& optimizer_kind_names();
 
 std::string_view to_string(OptimizerKind k);
 /// Parses the lower-case name (as printed by to_string); nullopt for anything else.

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <numbers>
 #include <vector>
 
@@ -49,24 +50,57 @@ std::string_view to_string(ScheduleKind k) {
   return "constant";
 }
 
+const std::vector<ScheduleKind>& schedule_kinds() {
+  using K = ScheduleKind;
+  static const std::vector<K> kinds = {K::constant, K::step, K::exponential, K::inverse_time, K::cosine};
+  return kinds;
+}
+
+const std::vector<std::string>& schedule_kind_names() {
+  static const std::vector<std::string> names = [] {
+    std::vector<std::string> out;
+    for (ScheduleKind k : schedule_kinds()) out.emplace_back(to_string(k));
+    return out;
+  }();
+  return names;
+}
+
 std::optional<ScheduleKind> schedule_kind_from_string(std::string_view s) {
-  for (ScheduleKind k : {ScheduleKind::constant, ScheduleKind::step, ScheduleKind::exponential,
-                         ScheduleKind::inverse_time, ScheduleKind::cosine})
+  for (ScheduleKind k : schedule_kinds())
     if (to_string(k) == s) return k;
   return std::nullopt;
 }
 
+const std::vector<ScheduleParam>& schedule_params() {
+  using K = ScheduleKind;
+  using S = Schedule;
+  constexpr double kInf = std::numeric_limits<double>::infinity();
+  static const std::vector<ScheduleParam> params = {
+      {"factor", &S::factor, nullptr, 0.0, 1.0, true, false, "(0, 1]", {K::step}},
+      {"every", nullptr, &S::every, 1.0, kInf, false, true, ">= 1", {K::step}},
+      {"decay", &S::decay, nullptr, 0.0, kInf, false, true, "[0, ∞)", {K::exponential, K::inverse_time}},
+      {"floor", &S::floor, nullptr, 0.0, 1.0, false, false, "[0, 1]", {K::cosine}},
+      {"warmup", nullptr, &S::warmup, 0.0, kInf, false, true, ">= 0", {}},
+  };
+  return params;
+}
+
+bool ScheduleParam::used_by(ScheduleKind k) const {
+  return kinds.empty() || std::find(kinds.begin(), kinds.end(), k) != kinds.end();
+}
+
+bool ScheduleParam::admits(double v) const {
+  return (min_open ? v > min : v >= min) && (max_open ? v < max : v <= max);
+}
+
 std::string validate(const Schedule& s) {
-  // Comparisons are written so that NaN fails them.
   std::vector<std::string> errors;
-  if (!(s.factor > 0.0 && s.factor <= 1.0))
-    errors.push_back(fmt::format("factor = {} is outside (0, 1]", s.factor));
-  if (s.every < 1) errors.push_back(fmt::format("every = {} must be >= 1", s.every));
-  if (!(s.decay >= 0.0 && std::isfinite(s.decay)))
-    errors.push_back(fmt::format("decay = {} must be finite and >= 0", s.decay));
-  if (!(s.floor >= 0.0 && s.floor <= 1.0))
-    errors.push_back(fmt::format("floor = {} is outside [0, 1]", s.floor));
-  if (s.warmup < 0) errors.push_back(fmt::format("warmup = {} must be >= 0", s.warmup));
+  for (const ScheduleParam& p : schedule_params()) {
+    const double v = p.number ? s.*p.number : static_cast<double>(s.*p.count);
+    if (!p.admits(v))
+      errors.push_back(p.number ? fmt::format("{} = {} is outside {}", p.key, v, p.range)
+                                : fmt::format("{} = {} must be {}", p.key, s.*p.count, p.range));
+  }
   return fmt::format("{}", fmt::join(errors, "; "));
 }
 

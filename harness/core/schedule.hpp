@@ -4,6 +4,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <vector>
 
 namespace stepgate {
 
@@ -30,6 +31,25 @@ struct Schedule {
   /// A negative t counts as 0.
   double multiplier(long t, long budget) const;
 };
+
+/// One parameter of Schedule, declared once: key, member (a number or a count), range, and the
+/// kinds that use it (warmup: every kind). Suite reader, results and validate() read this table.
+struct ScheduleParam {
+  std::string_view key;
+  double Schedule::*number = nullptr;  ///< one of number and count is set
+  long Schedule::*count = nullptr;
+  double min, max;
+  bool min_open, max_open;
+  std::string_view range;  ///< in words, "(0, 1]"
+  std::vector<ScheduleKind> kinds;  ///< empty: every kind
+  bool used_by(ScheduleKind k) const;
+  bool admits(double v) const;  ///< false for NaN
+};
+/// factor, every, decay, floor, warmup.
+const std::vector<ScheduleParam>& schedule_params();
+/// Every kind, in the order of the enum, and their names.
+const std::vector<ScheduleKind>& schedule_kinds();
+const std::vector<std::string>& schedule_kind_names();
 
 std::string_view to_string(ScheduleKind k);
 /// Parses the lower-case name (as printed by to_string); nullopt for anything else.

@@ -7,40 +7,31 @@
 namespace stepgate::suite_detail {
 namespace {
 
-const std::vector<std::string> kOptimizerKinds = {"gd",      "sgd",     "momentum", "nesterov",
-                                                  "adagrad", "rmsprop", "adam"};
-
 Schedule read_schedule(const Node& node) {
-  const ObjectNode o(node, {"kind", "factor", "every", "decay", "floor", "warmup"});
+  const ObjectNode o(node, schedule_keys());
   Schedule s;
-  if (auto n = o.find("kind"))
-    s.kind = *schedule_kind_from_string(
-        n->choice({"constant", "step", "exponential", "inverse_time", "cosine"}, "schedule kind"));
-  if (auto n = o.find("factor")) s.factor = n->number();
-  if (auto n = o.find("every")) s.every = n->integer();
-  if (auto n = o.find("decay")) s.decay = n->number();
-  if (auto n = o.find("floor")) s.floor = n->number();
-  if (auto n = o.find("warmup")) s.warmup = n->integer();
+  if (auto n = o.find("kind")) s.kind = *schedule_kind_from_string(n->choice(schedule_kind_names(), "schedule kind"));
+  for (const ScheduleParam& p : schedule_params())
+    if (auto n = o.find(p.key)) {
+      if (p.number) s.*p.number = n->number();
+      else s.*p.count = n->integer();
+    }
   return s;
 }
 
 OptimizerSpec read_optimizer(const Node& node, const std::string& name) {
   check_name(node, name, "optimizer name");
-  const ObjectNode o(node,
-                     {"kind", "beta", "beta1", "beta2", "rho", "eps", "batch_size", "schedule"});
+  const ObjectNode o(node, optimizer_keys());
   OptimizerSpec s;
   s.label = name;
   // An optimizer named like a kind may leave the kind out: {"adam": {"beta2": 0.99}}.
   const bool named_like_kind = optimizer_kind_from_string(name).has_value();
   if (auto n = named_like_kind ? o.find("kind") : std::optional<Node>(o.require("kind")))
-    s.kind = *optimizer_kind_from_string(n->choice(kOptimizerKinds, "optimizer kind"));
+    s.kind = *optimizer_kind_from_string(n->choice(optimizer_kind_names(), "optimizer kind"));
   else
     s.kind = *optimizer_kind_from_string(name);
-  if (auto n = o.find("beta")) s.beta = n->number();
-  if (auto n = o.find("beta1")) s.beta1 = n->number();
-  if (auto n = o.find("beta2")) s.beta2 = n->number();
-  if (auto n = o.find("rho")) s.rho = n->number();
-  if (auto n = o.find("eps")) s.eps = n->number();
+  for (const OptimizerParam& p : optimizer_params())
+    if (auto n = o.find(p.key)) s.*p.member = n->number();
   if (auto n = o.find("batch_size")) s.batch_size = n->integer();
   if (auto n = o.find("schedule")) s.schedule = read_schedule(*n);
   if (const std::string problems = validate(s); !problems.empty())
@@ -49,6 +40,25 @@ OptimizerSpec read_optimizer(const Node& node, const std::string& name) {
 }
 
 }  // namespace
+
+const std::vector<std::string>& optimizer_keys() {
+  static const std::vector<std::string> keys = [] {
+    std::vector<std::string> out = {"kind"};
+    for (const OptimizerParam& p : optimizer_params()) out.emplace_back(p.key);
+    out.insert(out.end(), {"batch_size", "schedule"});
+    return out;
+  }();
+  return keys;
+}
+
+const std::vector<std::string>& schedule_keys() {
+  static const std::vector<std::string> keys = [] {
+    std::vector<std::string> out = {"kind"};
+    for (const ScheduleParam& p : schedule_params()) out.emplace_back(p.key);
+    return out;
+  }();
+  return keys;
+}
 
 std::map<std::string, OptimizerSpec> read_optimizers(const std::optional<Node>& node) {
   std::map<std::string, OptimizerSpec> out;

@@ -63,7 +63,7 @@ void read_optimizer_names(const Layers& settings, Suite& suite, ProblemSpec& p) 
     return;
   }
   std::vector<std::string> defined = keys_of(suite.optimizers);
-  for (const char* kind : {"gd", "sgd", "momentum", "nesterov", "adagrad", "rmsprop", "adam"})
+  for (const std::string& kind : optimizer_kind_names())
     if (!suite.optimizers.count(kind)) defined.push_back(kind);
   p.optimizers = names_in(*node, "optimizer", defined);
   for (std::size_t i = 0; i < p.optimizers.size(); ++i) {

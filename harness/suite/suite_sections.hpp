@@ -36,6 +36,10 @@ GateTolerances read_gate(const Layers& levels);
 
 /// Keys that problem settings may have, in defaults and in problems.
 const std::vector<std::string>& settings_keys();
+/// Keys of an optimizer entry and of its schedule (from the tables in core/optimizer_spec.hpp
+/// and core/schedule.hpp).
+const std::vector<std::string>& optimizer_keys();
+const std::vector<std::string>& schedule_keys();
 /// Keys of a `rates` object and of an `outcome` object (the gate's: gate_keys() in core).
 const std::vector<std::string>& rate_keys();
 const std::vector<std::string>& outcome_keys();

@@ -40,6 +40,15 @@ TEST_CASE("schema: the keys of gate, settings, rates and outcome equal the reade
   CHECK(schema_keys(s, "settings_properties") == as_set(suite_detail::settings_keys()));
   CHECK(schema_keys(s, "rates") == as_set(suite_detail::rate_keys()));
   CHECK(schema_keys(s, "outcome") == as_set(suite_detail::outcome_keys()));
+  CHECK(schema_keys(s, "optimizer") == as_set(suite_detail::optimizer_keys()));
+  CHECK(schema_keys(s, "schedule") == as_set(suite_detail::schedule_keys()));
+  // The kinds the schema allows are the kinds the code knows.
+  std::set<std::string> kinds, schedule_kinds;
+  for (const auto& k : s.at("$defs").at("optimizer").at("properties").at("kind").at("enum")) kinds.insert(k.get<std::string>());
+  for (const auto& k : s.at("$defs").at("schedule").at("properties").at("kind").at("enum"))
+    schedule_kinds.insert(k.get<std::string>());
+  CHECK(kinds == as_set(optimizer_kind_names()));
+  CHECK(schedule_kinds == as_set(schedule_kind_names()));
   // Each gate tolerance is named as its rule, or is one of the documented pairs.
   for (const std::string& key : gate_keys()) {
     INFO(key);
