@@ -3,10 +3,12 @@
 // seeded start, mini-batch row gathering and the largest eigenvalue of XaugᵀXaug.
 #pragma once
 #include <mutex>
+#include <optional>
 #include <span>
 
 #include "stepgate/core/dataset.hpp"
 #include "stepgate/problems/linear_models.hpp"
+#include "stepgate/problems/newton.hpp"
 #include "stepgate/problems/problem.hpp"
 
 namespace stepgate::detail {
@@ -44,6 +46,29 @@ class LinearModel : public Problem {
   /// λ_max(XaugᵀXaug), computed on first use (thread-safe). Exact (dense symmetric eigen-
   /// solver) up to 4000 columns; beyond, a power-iteration estimate.
   double gram_lambda_max() const;
+  /// The Newton oracle of this model: cost and gradient by evaluate(), products by
+  /// hessian_vector(), the dense Hessian by `hessian` (the model's own); the rest is the caller's.
+  template <class Hessian>
+  NewtonOracle newton_oracle(Hessian hessian) const {
+    NewtonOracle oracle;
+    oracle.cost_grad = [this](const Vec& w, Vec& g) {
+      Evaluation e;
+      Scratch s;
+      evaluate(w, e, s);
+      g = e.grad.col(0);
+      return e.cost[0];
+    };
+    oracle.hessian = std::move(hessian);
+    oracle.hvp = [this](const Vec& w, const Vec& v, Vec& out) { hessian_vector(w, v, out); };
+    return oracle;
+  }
+  /// The optimum that solve() finds, solved on first use (thread-safe) and kept: the
+  /// optimum() of a model whose minimiser may not exist (logistic, softmax: nullopt).
+  template <class Solve>
+  std::optional<Optimum> solved_once(Solve solve) const {
+    std::call_once(solution_once_, [&] { solution_ = solve(); });
+    return solution_;
+  }
 
   Mat Xaug_;
   Vec y_;
@@ -56,6 +81,8 @@ class LinearModel : public Problem {
   double data_weight_;
   mutable std::once_flag gram_once_;
   mutable double gram_lambda_max_ = 0.0;
+  mutable std::once_flag solution_once_;
+  mutable std::optional<Optimum> solution_;
 };
 
 /// " in column 'y'" for a message about a label, or "" when the target column has no name.

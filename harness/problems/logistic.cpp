@@ -118,26 +118,14 @@ class Logistic final : public detail::LinearModel {
   /// Newton's method from w = 0. Without l2, separable data have no minimiser (the cost
   /// tends to 0 as ‖w‖ → ∞): then nullopt, noticed when the final w classifies every row
   /// strictly correctly or the Newton steps fail to shrink while ‖w‖ grows.
-  std::optional<Optimum> optimum() const override {
-    std::call_once(once_, [this] { solution_ = solve(); });
-    return solution_;
-  }
+  std::optional<Optimum> optimum() const override { return solved_once([this] { return solve(); }); }
 
   /// σ' ≤ 1/4, so ∇²J ⪯ s·XaugᵀXaug/4 + l2·I.
   double smoothness_bound() const override { return data_weight() * gram_lambda_max() / 4.0 + opt_.l2; }
 
  private:
   std::optional<Optimum> solve() const {
-    detail::NewtonOracle oracle;
-    oracle.cost_grad = [this](const Vec& w, Vec& g) {
-      Evaluation e;
-      Scratch s;
-      evaluate(w, e, s);
-      g = e.grad.col(0);
-      return e.cost[0];
-    };
-    oracle.hessian = [this](const Vec& w) { return hessian(w); };
-    oracle.hvp = [this](const Vec& w, const Vec& v, Vec& out) { hessian_vector(w, v, out); };
+    detail::NewtonOracle oracle = newton_oracle([this](const Vec& w) { return hessian(w); });
     const detail::NewtonResult r = detail::newton_minimise(oracle, Vec::Zero(dim()));
     if (opt_.l2 == 0.0) {
       const Vec z = Xaug_ * r.w;
@@ -149,8 +137,6 @@ class Logistic final : public detail::LinearModel {
   }
 
   Vec sign_;  ///< 1 − 2y: +1 for label 0, −1 for label 1
-  mutable std::once_flag once_;
-  mutable std::optional<Optimum> solution_;
 };
 
 }  // namespace

@@ -96,10 +96,7 @@ class Softmax final : public detail::LinearModel {
   /// Minimum-norm Newton steps keep the iterates in its range, giving the minimum-norm
   /// minimiser (intercepts summing to 0; without l2 also weights summing to 0 over classes). Without l2 a minimiser may not exist at all (a class
   /// separable from the rest): then nullopt, noticed when the Newton steps stop shrinking.
-  std::optional<Optimum> optimum() const override {
-    std::call_once(once_, [this] { solution_ = solve(); });
-    return solution_;
-  }
+  std::optional<Optimum> optimum() const override { return solved_once([this] { return solve(); }); }
 
   /// λ_max(diag(p) − ppᵀ) ≤ 1/2, so ∇²J ⪯ s·λ_max(XaugᵀXaug)/2 + l2.
   double smoothness_bound() const override { return data_weight() * gram_lambda_max() / 2.0 + opt_.l2; }
@@ -204,16 +201,7 @@ class Softmax final : public detail::LinearModel {
   }
 
   std::optional<Optimum> solve() const {
-    detail::NewtonOracle oracle;
-    oracle.cost_grad = [this](const Vec& w, Vec& g) {
-      Evaluation e;
-      Scratch s;
-      evaluate(w, e, s);
-      g = e.grad.col(0);
-      return e.cost[0];
-    };
-    oracle.hessian = [this](const Vec& w) { return hessian(w); };
-    oracle.hvp = [this](const Vec& w, const Vec& v, Vec& out) { hessian_vector(w, v, out); };
+    detail::NewtonOracle oracle = newton_oracle([this](const Vec& w) { return hessian(w); });
     // Newton-CG (p > 2000): the probabilities once per Newton step, for every product and the
     // preconditioner, not once per product.
     oracle.prepare = [this](const Vec& w) {
@@ -236,8 +224,6 @@ class Softmax final : public detail::LinearModel {
   }
 
   std::vector<Index> label_;
-  mutable std::once_flag once_;
-  mutable std::optional<Optimum> solution_;
 };
 
 }  // namespace

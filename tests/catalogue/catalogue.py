@@ -872,19 +872,23 @@ def catalogue():
                  [re.compile(rf"ref\.json:{line}:\d+")],
                  more={"plant.csv": plant_csv(), "ref.json": text}))
 
-    def raw_in_results(raw, path):
+    def raw_in(which, raw, path):
+        """The tiny results ("results") or baseline ("baseline") with `raw` written at `path`,
+        beside the other file untouched."""
         def files(ctx):
-            text, line = dump_raw(ctx.cache.tiny_results(), path, raw)
+            doc = ctx.cache.tiny_results() if which == "results" else ctx.cache.tiny_baseline()
+            text, line = dump_raw(doc, path, raw)
             ctx.state["line"] = line
-            return {"r.json": text, "base.json": ctx.cache.tiny()["baseline"]}
-        return files
-
-    def raw_in_baseline(raw, path):
-        def files(ctx):
-            text, line = dump_raw(ctx.cache.tiny_baseline(), path, raw)
-            ctx.state["line"] = line
+            if which == "results":
+                return {"r.json": text, "base.json": ctx.cache.tiny()["baseline"]}
             return {"b.json": text, "r.json": ctx.cache.tiny()["results"]}
         return files
+
+    def raw_in_results(raw, path):
+        return raw_in("results", raw, path)
+
+    def raw_in_baseline(raw, path):
+        return raw_in("baseline", raw, path)
 
     def at_line(name):
         def check(ctx, code):

@@ -156,13 +156,7 @@ TEST_CASE("no safe rate: edge, floor and best do not exist, the blow-up still do
 // outcomes alternate as the rate rises (converged, oscillating, ..., converged). The edge stays
 // the top of the contiguous safe range; the converged rates above it are the ragged zone.
 TEST_CASE("ragged zone: converged rates above the edge are recorded, the edge stays contiguous", "[search]") {
-  QuadraticOptions q;
-  q.dim = 20;
-  q.L = 1.0;
-  q.condition = 10.0;
-  q.spectrum = Spectrum::linear;
-  q.seed = 3;
-  const auto problem = make_quadratic(q);
+  const auto problem = make_quadratic({.dim = 20, .L = 1.0, .condition = 10.0, .spectrum = Spectrum::linear, .seed = 3});
   CaseSearchInput in;
   in.case_id = "q2/none/hb-0.95";
   in.optimizer.kind = OptimizerKind::momentum;

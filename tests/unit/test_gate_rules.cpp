@@ -105,12 +105,10 @@ namespace {
 // A case with a safe range [0.01, 1], pinned at 0.5 (headroom 2), best rate 0.3.
 CaseResult ranged_case() {
   CaseResult c = theory_case(1.0, kMissing, kMissing);
-  c.summary.floor = 0.01;
-  c.summary.best_rate = 0.3;
-  c.summary.pinned = 0.5;
-  c.summary.headroom = 2.0;
+  static_cast<SafeRange&>(c.summary) = SafeRange{.floor = 0.01, .edge = 1.0, .edge_lo = 1.0, .best_rate = 0.3,
+                                                 .pinned = 0.5, .pinned_iterations = 100, .headroom = 2.0,
+                                                 .precision = 0.01};
   c.summary.pinned_outcome = Outcome::converged;
-  c.summary.pinned_iterations = 100;
   return c;
 }
 

@@ -26,10 +26,16 @@ std::vector<double> geometric(double start, double ratio, int n) {
 
 }  // namespace
 
-TEST_CASE("gap criterion: converged at the first iteration of the holding stretch", "[outcome]") {
+// Settings that test a criterion alone: confirmation has tests of its own below.
+static OutcomeSettings criterion_alone() {
   OutcomeSettings s;
-  s.confirm_min = 0;  // the criterion alone: confirmation has tests of its own below
+  s.confirm_min = 0;
   s.confirm_factor = 0.0;
+  return s;
+}
+
+TEST_CASE("gap criterion: converged at the first iteration of the holding stretch", "[outcome]") {
+  OutcomeSettings s = criterion_alone();
   s.tol = 1e-3;
   s.hold = 2;
   // gap_k = 0.5^k: 0.5^10 = 9.77e-4 is the first value <= 1e-3.
@@ -104,9 +110,7 @@ TEST_CASE("oscillating even when the criterion is met, if overshoot is above the
 }
 
 TEST_CASE("converged with small overshoot under the limit", "[outcome]") {
-  OutcomeSettings s;
-  s.confirm_min = 0;  // the criterion alone: confirmation has tests of its own below
-  s.confirm_factor = 0.0;
+  OutcomeSettings s = criterion_alone();
   s.tol = 1e-2;
   s.hold = 1;
   s.overshoot_limit = 0.5;
@@ -126,9 +130,7 @@ TEST_CASE("slow: steady decrease that never reaches tol within the budget", "[ou
 }
 
 TEST_CASE("grad criterion: gradient norm relative to its start", "[outcome]") {
-  OutcomeSettings s;
-  s.confirm_min = 0;  // the criterion alone: confirmation has tests of its own below
-  s.confirm_factor = 0.0;
+  OutcomeSettings s = criterion_alone();
   s.criterion = Criterion::grad;
   s.tol = 1.5e-2;
   s.hold = 0;
@@ -152,9 +154,7 @@ TEST_CASE("cost criterion: first cost at or below the target", "[outcome]") {
 }
 
 TEST_CASE("plateau criterion: relative improvement over the window below tol", "[outcome]") {
-  OutcomeSettings s;
-  s.confirm_min = 0;  // the criterion alone: confirmation has tests of its own below
-  s.confirm_factor = 0.0;
+  OutcomeSettings s = criterion_alone();
   s.criterion = Criterion::plateau;
   s.tol = 1e-3;
   s.plateau_window = 2;

@@ -303,12 +303,16 @@ TEST_CASE("least squares reproduces the NIST StRD certified Longley coefficients
   }
 }
 
+static LinearModelOptions with_l2(double l2) {
+  LinearModelOptions opt;
+  opt.l2 = l2;
+  return opt;
+}
+
 TEST_CASE("logistic: derivatives, lanes, reductions, labels, separable data", "[problems]") {
   const Dataset data = synthetic("logistic", 21);
   for (double l2 : {0.0, 0.1}) {
-    LinearModelOptions opt;
-    opt.l2 = l2;
-    const auto p = make_logistic(data, opt);
+    const auto p = make_logistic(data, with_l2(l2));
     CHECK(p->kind() == "logistic");
     CHECK_FALSE(p->has_exact_gap());
     check_all(*p, lanes_around(p->optimum()->w, 0.5, 4));
@@ -370,9 +374,7 @@ TEST_CASE("logistic reproduces the Spector & Mazzeo logit estimates", "[problems
 TEST_CASE("softmax: derivatives, lanes, reductions, minimum-norm optimum", "[problems]") {
   const Dataset data = synthetic("softmax", 31);
   for (double l2 : {0.0, 0.1}) {
-    LinearModelOptions opt;
-    opt.l2 = l2;
-    const auto p = make_softmax(data, opt);
+    const auto p = make_softmax(data, with_l2(l2));
     CHECK(p->kind() == "softmax");
     CHECK(p->dim() == 12);
     REQUIRE(p->linear_layout()->outputs == 3);

@@ -286,14 +286,20 @@ TEST_CASE("registry: a suite entry of a registered kind reaches ProblemSpec", "[
   }
 }
 
+namespace {
+
+// A change to the base suite, where its error must be, and a fragment of its message.
+struct Case {
+  const char* what;
+  std::function<void(Json&)> change;
+  std::string where;
+  std::string fragment;
+};
+
+}  // namespace
+
 TEST_CASE("registry: malformed entries of registered kinds fail at the right pointer", "[registry]") {
   ensure_registered();
-  struct Case {
-    const char* what;
-    std::function<void(Json&)> change;
-    std::string where;
-    std::string fragment;
-  };
   const std::vector<Case> cases = {
       {"misspelled key", [](Json& j) { j["problems"][0]["curvatuers"] = Json::array({1}); },
        "/problems/0/curvatuers", "unknown key 'curvatuers' (did you mean 'curvatures'?)"},
@@ -347,12 +353,6 @@ TEST_CASE("registry: malformed entries of registered kinds fail at the right poi
 
 TEST_CASE("registry: a factory's exception is an input error at the entry or its key", "[registry]") {
   ensure_registered();
-  struct Case {
-    const char* what;
-    std::function<void(Json&)> change;
-    std::string where;
-    std::string fragment;
-  };
   const std::vector<Case> cases = {
       {"InputError naming a key", [](Json& j) { j["problems"][1]["scale"] = -1; }, "/problems/1/scale",
        "problem kind 'test_fit': expected a number >= 0"},

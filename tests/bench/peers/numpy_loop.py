@@ -13,11 +13,11 @@ holds the seconds spent in the loops (data loading excluded) and each run's fina
 """
 import json
 import sys
-import time
 
 import numpy as np
 
 from blas_name import blas_name
+from peer_loop import time_runs
 
 
 def main(path):
@@ -49,25 +49,11 @@ def main(path):
         G = s * (X.T @ (E / tot - onehot))
         return cost, G.T.reshape(-1)
 
-    opt = job["optimizer"]
-    finals = []
+    def vector(start):
+        return np.array(start, dtype=np.float64) if start else np.zeros(p * C)
+
     with np.errstate(over="ignore", invalid="ignore"):
-        start = time.perf_counter()
-        for run in job["runs"]:
-            w = np.array(run["start"], dtype=np.float64) if run.get("start") else np.zeros(p * C)
-            v = np.zeros_like(w)
-            rate = run["rate"]
-            for _ in range(run["steps"]):
-                cost, g = cost_grad(w)
-                if not np.isfinite(cost):
-                    break
-                if opt["kind"] == "momentum":
-                    v = opt["beta"] * v - rate * g
-                    w = w + v
-                else:
-                    w = w - rate * g
-            finals.append(float(cost_grad(w)[0]))
-        seconds = time.perf_counter() - start
+        seconds, finals = time_runs(job, cost_grad, vector)
     print(json.dumps({"peer": f"numpy {np.__version__} ({blas_name()})", "seconds": seconds,
                       "final_costs": [c if np.isfinite(c) else None for c in finals]}))
 

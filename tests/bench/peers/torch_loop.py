@@ -9,10 +9,11 @@ would only add work), an early stop on a non-finite cost. Threads: torch's defau
 """
 import json
 import sys
-import time
 
 import numpy as np
 import torch
+
+from peer_loop import time_runs
 
 
 def main(path):
@@ -43,25 +44,11 @@ def main(path):
         G = s * (X.T @ (torch.exp(Z - lse[:, None]) - onehot))
         return cost, G.T.reshape(-1)
 
-    opt = job["optimizer"]
-    finals = []
+    def vector(start):
+        return torch.tensor(start, dtype=torch.float64) if start else torch.zeros(p * C, dtype=torch.float64)
+
     with torch.no_grad():
-        start = time.perf_counter()
-        for run in job["runs"]:
-            w = torch.tensor(run["start"], dtype=torch.float64) if run.get("start") else torch.zeros(p * C, dtype=torch.float64)
-            v = torch.zeros_like(w)
-            rate = run["rate"]
-            for _ in range(run["steps"]):
-                cost, g = cost_grad(w)
-                if not np.isfinite(cost):
-                    break
-                if opt["kind"] == "momentum":
-                    v = opt["beta"] * v - rate * g
-                    w = w + v
-                else:
-                    w = w - rate * g
-            finals.append(cost_grad(w)[0])
-        seconds = time.perf_counter() - start
+        seconds, finals = time_runs(job, cost_grad, vector)
     print(json.dumps({"peer": "torch " + torch.__version__ + f" ({torch.get_num_threads()} threads)",
                       "seconds": seconds, "final_costs": [c if np.isfinite(c) else None for c in finals]}))
 
