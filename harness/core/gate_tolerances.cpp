@@ -1,6 +1,5 @@
 #include "stepgate/core/gate_tolerances.hpp"
 
-#include <limits>
 
 namespace stepgate {
 
@@ -11,22 +10,6 @@ std::string_view to_string(Severity s) {
     case Severity::fail: return "fail";
   }
   return "fail";
-}
-
-const std::array<ToleranceField, 8>& tolerance_fields() {
-  constexpr double kNoLimit = std::numeric_limits<double>::max();
-  using G = GateTolerances;
-  static const std::array<ToleranceField, 8> fields = {{
-      {"edge_moved", &G::edge_moved, 0.0, kNoLimit, "a number >= 0"},
-      {"floor_moved", &G::floor_moved, 0.0, kNoLimit, "a number >= 0"},
-      {"best_moved", &G::best_moved, 1.0, kNoLimit, "a number >= 1"},
-      {"pinned_headroom", &G::pinned_headroom, 1.0, kNoLimit, "a number >= 1"},
-      {"pinned_iterations", &G::pinned_iterations, 0.0, kNoLimit, "a number >= 0"},
-      {"min_lre", &G::min_lre, 0.0, 17.0, "a number in [0, 17]"},
-      {"theory", &G::theory, 1.0, kNoLimit, "a number >= 1"},
-      {"theory_slack", &G::theory_slack, 0.0, 1.0, "a number in [0, 1]"},
-  }};
-  return fields;
 }
 
 const std::array<SeverityField, 3>& severity_fields() {

@@ -3,6 +3,7 @@
 // practitioner would care about fails; gate/ documents the rules that use them.
 #pragma once
 #include <array>
+#include <limits>
 #include <string>
 #include <string_view>
 #include <utility>
@@ -59,9 +60,24 @@ struct SeverityField {
   Severity GateTolerances::*member;
 };
 
-/// The numeric tolerances and the severities, in the order results.json writes them: the one
-/// declaration of their keys and ranges.
-const std::array<ToleranceField, 8>& tolerance_fields();
+/// The numeric tolerances, in the order results.json writes them: the one declaration of their
+/// keys and ranges, beside the members (a new tolerance is a member and a row, in this file).
+inline const std::array<ToleranceField, 8>& tolerance_fields() {
+  constexpr double kNoLimit = std::numeric_limits<double>::max();
+  using G = GateTolerances;
+  static const std::array<ToleranceField, 8> fields = {{
+      {"edge_moved", &G::edge_moved, 0.0, kNoLimit, "a number >= 0"},
+      {"floor_moved", &G::floor_moved, 0.0, kNoLimit, "a number >= 0"},
+      {"best_moved", &G::best_moved, 1.0, kNoLimit, "a number >= 1"},
+      {"pinned_headroom", &G::pinned_headroom, 1.0, kNoLimit, "a number >= 1"},
+      {"pinned_iterations", &G::pinned_iterations, 0.0, kNoLimit, "a number >= 0"},
+      {"min_lre", &G::min_lre, 0.0, 17.0, "a number in [0, 17]"},
+      {"theory", &G::theory, 1.0, kNoLimit, "a number >= 1"},
+      {"theory_slack", &G::theory_slack, 0.0, 1.0, "a number in [0, 1]"},
+  }};
+  return fields;
+}
+/// The severities, in the order results.json writes them.
 const std::array<SeverityField, 3>& severity_fields();
 /// Every key of a `gate` object, numeric then severities.
 const std::vector<std::string>& gate_keys();
