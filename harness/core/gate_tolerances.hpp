@@ -3,11 +3,12 @@
 // practitioner would care about fails; gate/ documents the rules that use them.
 #pragma once
 #include <array>
-#include <limits>
 #include <string>
 #include <string_view>
 #include <utility>
 #include <vector>
+
+#include "stepgate/core/range.hpp"
 
 namespace stepgate {
 
@@ -45,13 +46,11 @@ struct GateTolerances {
 };
 
 /// One numeric tolerance as every reader and writer sees it (suite `gate` sections, results,
-/// baselines): its key, its member, and the closed range [min, max] it must lie in.
+/// baselines): its key, its member, and the range it must lie in.
 struct ToleranceField {
   std::string_view key;
   double GateTolerances::*member;
-  double min, max;
-  std::string_view expected;  ///< the range in words, for "expected ..., found ..."
-  bool admits(double v) const { return v >= min && v <= max; }  // false for NaN
+  Range range;
 };
 
 /// One severity key ("pass", "warn" or "fail").
@@ -63,17 +62,17 @@ struct SeverityField {
 /// The numeric tolerances, in the order results.json writes them: the one declaration of their
 /// keys and ranges, beside the members (a new tolerance is a member and a row, in this file).
 inline const std::array<ToleranceField, 8>& tolerance_fields() {
-  constexpr double kNoLimit = std::numeric_limits<double>::max();
   using G = GateTolerances;
+  using R = Range;
   static const std::array<ToleranceField, 8> fields = {{
-      {"edge_moved", &G::edge_moved, 0.0, kNoLimit, "a number >= 0"},
-      {"floor_moved", &G::floor_moved, 0.0, kNoLimit, "a number >= 0"},
-      {"best_moved", &G::best_moved, 1.0, kNoLimit, "a number >= 1"},
-      {"pinned_headroom", &G::pinned_headroom, 1.0, kNoLimit, "a number >= 1"},
-      {"pinned_iterations", &G::pinned_iterations, 0.0, kNoLimit, "a number >= 0"},
-      {"min_lre", &G::min_lre, 0.0, 17.0, "a number in [0, 17]"},
-      {"theory", &G::theory, 1.0, kNoLimit, "a number >= 1"},
-      {"theory_slack", &G::theory_slack, 0.0, 1.0, "a number in [0, 1]"},
+      {"edge_moved", &G::edge_moved, R::at_least(0)},
+      {"floor_moved", &G::floor_moved, R::at_least(0)},
+      {"best_moved", &G::best_moved, R::at_least(1)},
+      {"pinned_headroom", &G::pinned_headroom, R::at_least(1)},
+      {"pinned_iterations", &G::pinned_iterations, R::at_least(0)},
+      {"min_lre", &G::min_lre, R::closed(0, 17)},
+      {"theory", &G::theory, R::at_least(1)},
+      {"theory_slack", &G::theory_slack, R::closed(0, 1)},
   }};
   return fields;
 }

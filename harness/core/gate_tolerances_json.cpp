@@ -1,11 +1,12 @@
 #include "stepgate/core/gate_tolerances_json.hpp"
 
+#include "stepgate/core/names.hpp"
+
 namespace stepgate {
 
 std::optional<Severity> severity_from_string(std::string_view s) {
-  for (Severity v : {Severity::pass, Severity::warn, Severity::fail})
-    if (to_string(v) == s) return v;
-  return std::nullopt;
+  static const std::vector<Severity> all = {Severity::pass, Severity::warn, Severity::fail};
+  return value_named(all, s);
 }
 
 nlohmann::json to_json(const GateTolerances& g) {
@@ -23,7 +24,7 @@ GateTolerances gate_tolerances_from_json(const JsonField& f) {
     const JsonField v = f[std::string(t.key)];
     // The same ranges as in a suite: a results file whose gate a suite could not have set is
     // damaged, and its rules would compare against nothing (null) or pass everything (< 0).
-    if (v.is_null() || !v.json().is_number() || !t.admits(v.number_or_missing())) v.expected(t.expected);
+    if (v.is_null() || !v.json().is_number() || !t.range.admits(v.number_or_missing())) v.expected(t.range.expected());
     g.*t.member = v.number_or_missing();
   }
   for (const SeverityField& s : severity_fields()) {

@@ -2,10 +2,11 @@
 
 #include <algorithm>
 #include <cmath>
-#include <limits>
 #include <vector>
 
 #include <fmt/format.h>
+
+#include "stepgate/core/names.hpp"
 
 namespace stepgate {
 
@@ -33,49 +34,36 @@ const std::vector<OptimizerKind>& optimizer_kinds() {
 }
 
 const std::vector<std::string>& optimizer_kind_names() {
-  static const std::vector<std::string> names = [] {
-    std::vector<std::string> out;
-    for (OptimizerKind k : optimizer_kinds()) out.emplace_back(to_string(k));
-    return out;
-  }();
+  static const std::vector<std::string> names = names_of(optimizer_kinds());
   return names;
 }
 
-std::optional<OptimizerKind> optimizer_kind_from_string(std::string_view s) {
-  for (OptimizerKind k : optimizer_kinds())
-    if (to_string(k) == s) return k;
-  return std::nullopt;
-}
+std::optional<OptimizerKind> optimizer_kind_from_string(std::string_view s) { return value_named(optimizer_kinds(), s); }
 
 const std::vector<OptimizerParam>& optimizer_params() {
   using K = OptimizerKind;
   using S = OptimizerSpec;
-  constexpr double kInf = std::numeric_limits<double>::infinity();
   static const std::vector<OptimizerParam> params = {
-      {"beta", &S::beta, 0.0, 1.0, false, true, "[0, 1)", {K::momentum, K::nesterov}},
-      {"beta1", &S::beta1, 0.0, 1.0, false, true, "[0, 1)", {K::adam}},
-      {"beta2", &S::beta2, 0.0, 1.0, false, true, "[0, 1)", {K::adam}},
-      {"rho", &S::rho, 0.0, 1.0, false, true, "[0, 1)", {K::rmsprop}},
-      {"eps", &S::eps, 0.0, kInf, true, true, "(0, ∞)", {K::adagrad, K::rmsprop, K::adam}},
+      {"beta", &S::beta, Range::half_open(0, 1), {K::momentum, K::nesterov}},
+      {"beta1", &S::beta1, Range::half_open(0, 1), {K::adam}},
+      {"beta2", &S::beta2, Range::half_open(0, 1), {K::adam}},
+      {"rho", &S::rho, Range::half_open(0, 1), {K::rmsprop}},
+      {"eps", &S::eps, Range::above(0), {K::adagrad, K::rmsprop, K::adam}},
   };
   return params;
 }
 
 bool OptimizerParam::used_by(OptimizerKind k) const { return std::find(kinds.begin(), kinds.end(), k) != kinds.end(); }
 
-bool OptimizerParam::admits(double v) const {
-  // Written so that NaN fails.
-  return (min_open ? v > min : v >= min) && (max_open ? v < max : v <= max);
-}
-
 std::string validate(const OptimizerSpec& spec) {
   // Every parameter is checked whatever the kind (a value out of range would matter after a
   // change of kind).
   std::vector<std::string> errors;
   for (const OptimizerParam& p : optimizer_params())
-    if (!p.admits(spec.*p.member)) errors.push_back(fmt::format("{} = {} is outside {}", p.key, spec.*p.member, p.range));
+    if (!p.range.admits(spec.*p.member))
+      errors.push_back(fmt::format("{} = {}, expected {}", p.key, spec.*p.member, p.range.expected()));
   if (spec.batch_size < 0)
-    errors.push_back(fmt::format("batch_size = {} must be >= 0 (0 = full batch)", spec.batch_size));
+    errors.push_back(fmt::format("batch_size = {}, expected a whole number >= 0 (0 = full batch)", spec.batch_size));
   else if (spec.kind == OptimizerKind::sgd && spec.batch_size == 0)
     errors.push_back("sgd needs batch_size > 0 (use gd for full batch)");
   if (std::string s = validate(spec.schedule); !s.empty()) errors.push_back("schedule: " + s);

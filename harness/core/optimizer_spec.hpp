@@ -6,6 +6,7 @@
 #include <string_view>
 #include <vector>
 
+#include "stepgate/core/range.hpp"
 #include "stepgate/core/schedule.hpp"
 
 namespace stepgate {
@@ -34,12 +35,9 @@ struct OptimizerSpec {
 struct OptimizerParam {
   std::string_view key;
   double OptimizerSpec::*member;
-  double min, max;
-  bool min_open, max_open;      ///< the range excludes min / max
-  std::string_view range;       ///< the range in words, "[0, 1)"
+  Range range;
   std::vector<OptimizerKind> kinds;  ///< the kinds that use it (others ignore it)
   bool used_by(OptimizerKind k) const;
-  bool admits(double v) const;  ///< false for NaN
 };
 /// beta, beta1, beta2, rho, eps (batch_size and schedule apply to every kind).
 const std::vector<OptimizerParam>& optimizer_params();

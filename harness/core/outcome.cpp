@@ -1,5 +1,7 @@
 #include "stepgate/core/outcome.hpp"
 
+#include "stepgate/core/names.hpp"
+
 namespace stepgate {
 
 std::string_view to_string(Outcome o) {
@@ -13,11 +15,12 @@ std::string_view to_string(Outcome o) {
   return "failed";
 }
 
-std::optional<Outcome> outcome_from_string(std::string_view s) {
-  for (Outcome o : {Outcome::converged, Outcome::slow, Outcome::oscillating, Outcome::diverged,
-                    Outcome::failed})
-    if (to_string(o) == s) return o;
-  return std::nullopt;
+const std::vector<Outcome>& outcomes() {
+  using O = Outcome;
+  static const std::vector<O> all = {O::converged, O::slow, O::oscillating, O::diverged, O::failed};
+  return all;
 }
+
+std::optional<Outcome> outcome_from_string(std::string_view s) { return value_named(outcomes(), s); }
 
 }  // namespace stepgate

@@ -2,6 +2,8 @@
 
 #include <cmath>
 
+#include "stepgate/core/names.hpp"
+
 namespace stepgate {
 
 std::string_view to_string(Criterion c) {
@@ -15,11 +17,41 @@ std::string_view to_string(Criterion c) {
   return "auto";
 }
 
-std::optional<Criterion> criterion_from_string(std::string_view s) {
-  for (Criterion c : {Criterion::automatic, Criterion::gap, Criterion::grad, Criterion::cost,
-                      Criterion::plateau})
-    if (to_string(c) == s) return c;
-  return std::nullopt;
+const std::vector<Criterion>& criteria() {
+  using C = Criterion;
+  static const std::vector<C> all = {C::automatic, C::gap, C::grad, C::cost, C::plateau};
+  return all;
+}
+
+const std::vector<std::string>& criterion_names() {
+  static const std::vector<std::string> names = names_of(criteria());
+  return names;
+}
+
+std::optional<Criterion> criterion_from_string(std::string_view s) { return value_named(criteria(), s); }
+
+const std::vector<SettingField<OutcomeSettings>>& outcome_fields() {
+  using O = OutcomeSettings;
+  static const std::vector<SettingField<O>> fields = {
+      {"tol", &O::tol, Range::above(0), {}, true},
+      {"target", &O::target, Range::any(), {}, true},
+      {"plateau_window", &O::plateau_window, Range::count_at_least(1)},
+      {"blowup_factor", &O::blowup_factor, Range::above(1)},
+      {"overshoot_limit", &O::overshoot_limit, Range::at_least(0)},
+      {"hold", &O::hold, Range::count_at_least(0)},
+      {"confirm_factor", &O::confirm_factor, Range::closed(0, 100)},
+      {"confirm_min", &O::confirm_min, Range::count_at_least(0)},
+      {"probe", &O::probe},
+  };
+  return fields;
+}
+
+std::string validate(const OutcomeSettings& o) {
+  std::vector<std::string> errors;
+  check_fields(o, outcome_fields(), errors);
+  if (o.criterion == Criterion::cost && std::isnan(o.target))
+    errors.push_back("criterion 'cost' without a target, expected \"target\": the cost to reach");
+  return fmt::format("{}", fmt::join(errors, "; "));
 }
 
 double OutcomeSettings::tolerance(Criterion resolved) const {

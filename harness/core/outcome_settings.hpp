@@ -2,8 +2,11 @@
 // use them are analysis/outcome_rules.
 #pragma once
 #include <optional>
+#include <string>
 #include <string_view>
+#include <vector>
 
+#include "stepgate/core/setting_field.hpp"
 #include "stepgate/core/types.hpp"
 
 namespace stepgate {
@@ -18,6 +21,8 @@ enum class Criterion {
 
 std::string_view to_string(Criterion c);
 std::optional<Criterion> criterion_from_string(std::string_view s);
+/// "auto", "gap", "grad", "cost", "plateau".
+const std::vector<std::string>& criterion_names();
 
 /// Settings of classification. Defaults and why:
 struct OutcomeSettings {
@@ -61,5 +66,12 @@ struct OutcomeSettings {
   /// The tolerance in force for the given criterion (resolves NaN to the default).
   double tolerance(Criterion resolved) const;
 };
+
+/// The numeric and yes/no settings (tol, target, plateau_window, ...; `criterion` is a word).
+const std::vector<SettingField<OutcomeSettings>>& outcome_fields();
+
+/// Every problem with `o`, separated by "; "; empty when valid: each field in its range, and a
+/// target for the cost criterion.
+std::string validate(const OutcomeSettings& o);
 
 }  // namespace stepgate

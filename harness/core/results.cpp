@@ -7,7 +7,9 @@
 
 #include "stepgate/core/gate_tolerances_json.hpp"
 #include "stepgate/core/json_node.hpp"
+#include "stepgate/core/names.hpp"
 #include "stepgate/core/optimizer_spec_json.hpp"
+#include "stepgate/core/run_record_json.hpp"
 
 namespace stepgate {
 
@@ -26,10 +28,9 @@ std::string_view to_string(RunRole r) {
 }
 
 std::optional<RunRole> run_role_from_string(std::string_view s) {
-  for (RunRole r : {RunRole::grid, RunRole::fixed, RunRole::edge, RunRole::floor,
-                    RunRole::blowup, RunRole::refine})
-    if (to_string(r) == s) return r;
-  return std::nullopt;
+  using R = RunRole;
+  static const std::vector<R> roles = {R::grid, R::fixed, R::edge, R::floor, R::blowup, R::refine};
+  return value_named(roles, s);
 }
 
 std::vector<std::size_t> thinned_indices(const std::vector<TracePoint>& trace,
@@ -114,29 +115,15 @@ const std::vector<TextField<CaseTheory>>& theory_text_fields() {
 namespace {
 
 json to_json(const RunRecord& r, RunRole role, const TraceThinning& t) {
-  json trace = json::array();
-  for (std::size_t i : thinned_indices(r.trace, t))
-    trace.push_back(json::array({r.trace[i].iter, finite_or_null(r.trace[i].cost)}));
+  RunRecordStyle style;
+  style.thinning = t;
+  json j = to_json(r, style);
+  // Beside the record: why the run was made, and its last point's cost and gap.
   const TracePoint* last = r.last();
-  const bool converged = r.outcome == Outcome::converged && r.iterations.has_value();
-  return {{"rate", finite_or_null(r.rate)},
-          {"rng_seed", r.seed},
-          {"seed_index", r.seed_index},
-          {"role", to_string(role)},
-          {"outcome", to_string(r.outcome)},
-          {"reason", r.reason},
-          {"converged_at", converged ? json(*r.iterations) : json(nullptr)},
-          {"steps", r.steps},
-          {"final_cost", last ? finite_or_null(last->cost) : json(nullptr)},
-          {"gap", last ? finite_or_null(last->gap) : json(nullptr)},
-          {"overshoot", finite_or_null(r.overshoot)},
-          {"confirmation", r.confirmation ? json{{"method", r.confirmation->method},
-                                                 {"until", r.confirmation->until},
-                                                 {"probe_growth", finite_or_null(r.confirmation->probe_growth)}}
-                                          : json(nullptr)},
-          {"wall_seconds", finite_or_null(r.wall_seconds)},
-          {"log_lines", r.log_lines},
-          {"trace", std::move(trace)}};
+  j["role"] = to_string(role);
+  j["final_cost"] = last ? finite_or_null(last->cost) : json(nullptr);
+  j["gap"] = last ? finite_or_null(last->gap) : json(nullptr);
+  return j;
 }
 
 json numbers(const std::vector<double>& v) {

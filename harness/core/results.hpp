@@ -36,6 +36,12 @@ struct NumberField {
   std::string_view key;
   double S::*member;
 };
+/// A whole number of S (counts, iterations) as results and journals write it.
+template <class S>
+struct CountField {
+  std::string_view key;
+  long S::*member;
+};
 /// The same for a text that may be absent: "" is written as null and null read as "".
 template <class S>
 struct TextField {

@@ -8,6 +8,7 @@
 #include "stepgate/core/gate_tolerances_json.hpp"
 #include "stepgate/core/json_node.hpp"
 #include "stepgate/core/optimizer_spec_json.hpp"
+#include "stepgate/core/run_record_json.hpp"
 
 namespace stepgate {
 
@@ -41,38 +42,16 @@ Outcome read_outcome(const JsonField& f) {
 
 StoredRun read_run(const JsonField& f) {
   StoredRun run;
-  RunRecord& r = run.record;
-  r.rate = f["rate"].number_or_missing();
-  r.seed = f["rng_seed"].integer_as<std::uint64_t>();
-  r.seed_index = f["seed_index"].integer_as<long>();
+  run.record = run_record_from(f, RunRecordStyle{});
   const JsonField role = f["role"];
   const auto rr = run_role_from_string(role.string());
   if (!rr) role.expected("a run role (grid, fixed, edge, floor, blowup, refine)");
   run.role = *rr;
-  r.outcome = read_outcome(f["outcome"]);
-  r.reason = f["reason"].string();
-  if (const JsonField it = f["converged_at"]; !it.is_null()) r.iterations = it.integer_as<long>();
-  r.steps = f["steps"].integer_as<long>();
-  r.overshoot = f["overshoot"].number_or_missing();
-  if (const JsonField c = f["confirmation"]; !c.is_null())
-    r.confirmation = Confirmation{c["method"].string(), c["until"].integer_as<long>(),
-                                  c["probe_growth"].number_or_missing()};
-  r.wall_seconds = f["wall_seconds"].number_or_missing();
-  if (f.has("log_lines")) r.log_lines = f["log_lines"].integer_as<long>();
-
-  const JsonField trace = f["trace"];
-  r.trace.resize(trace.array_size());
-  for (std::size_t i = 0; i < r.trace.size(); ++i) {
-    const JsonField point = trace[i];
-    if (point.array_size() != 2) point.expected("a pair [iteration, cost]");
-    r.trace[i].iter = point[0].integer_as<long>();
-    r.trace[i].cost = point[1].number_or_missing();
-  }
   // final_cost is the last trace point's cost (checked for type, derived on output); the gap
   // is stored only at run level and goes back to the last point, where it came from.
   f["final_cost"].number_or_missing();
   const double gap = f["gap"].number_or_missing();
-  if (!r.trace.empty()) r.trace.back().gap = gap;
+  if (!run.record.trace.empty()) run.record.trace.back().gap = gap;
   return run;
 }
 

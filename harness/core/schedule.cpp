@@ -2,11 +2,12 @@
 
 #include <algorithm>
 #include <cmath>
-#include <limits>
 #include <numbers>
 #include <vector>
 
 #include <fmt/format.h>
+
+#include "stepgate/core/names.hpp"
 
 namespace stepgate {
 
@@ -57,30 +58,21 @@ const std::vector<ScheduleKind>& schedule_kinds() {
 }
 
 const std::vector<std::string>& schedule_kind_names() {
-  static const std::vector<std::string> names = [] {
-    std::vector<std::string> out;
-    for (ScheduleKind k : schedule_kinds()) out.emplace_back(to_string(k));
-    return out;
-  }();
+  static const std::vector<std::string> names = names_of(schedule_kinds());
   return names;
 }
 
-std::optional<ScheduleKind> schedule_kind_from_string(std::string_view s) {
-  for (ScheduleKind k : schedule_kinds())
-    if (to_string(k) == s) return k;
-  return std::nullopt;
-}
+std::optional<ScheduleKind> schedule_kind_from_string(std::string_view s) { return value_named(schedule_kinds(), s); }
 
 const std::vector<ScheduleParam>& schedule_params() {
   using K = ScheduleKind;
   using S = Schedule;
-  constexpr double kInf = std::numeric_limits<double>::infinity();
   static const std::vector<ScheduleParam> params = {
-      {"factor", &S::factor, nullptr, 0.0, 1.0, true, false, "(0, 1]", {K::step}},
-      {"every", nullptr, &S::every, 1.0, kInf, false, true, ">= 1", {K::step}},
-      {"decay", &S::decay, nullptr, 0.0, kInf, false, true, "[0, ∞)", {K::exponential, K::inverse_time}},
-      {"floor", &S::floor, nullptr, 0.0, 1.0, false, false, "[0, 1]", {K::cosine}},
-      {"warmup", nullptr, &S::warmup, 0.0, kInf, false, true, ">= 0", {}},
+      {"factor", &S::factor, nullptr, Range::open_closed(0, 1), {K::step}},
+      {"every", nullptr, &S::every, Range::count_at_least(1), {K::step}},
+      {"decay", &S::decay, nullptr, Range::at_least(0), {K::exponential, K::inverse_time}},
+      {"floor", &S::floor, nullptr, Range::closed(0, 1), {K::cosine}},
+      {"warmup", nullptr, &S::warmup, Range::count_at_least(0), {}},
   };
   return params;
 }
@@ -89,17 +81,13 @@ bool ScheduleParam::used_by(ScheduleKind k) const {
   return kinds.empty() || std::find(kinds.begin(), kinds.end(), k) != kinds.end();
 }
 
-bool ScheduleParam::admits(double v) const {
-  return (min_open ? v > min : v >= min) && (max_open ? v < max : v <= max);
-}
-
 std::string validate(const Schedule& s) {
   std::vector<std::string> errors;
   for (const ScheduleParam& p : schedule_params()) {
     const double v = p.number ? s.*p.number : static_cast<double>(s.*p.count);
-    if (!p.admits(v))
-      errors.push_back(p.number ? fmt::format("{} = {} is outside {}", p.key, v, p.range)
-                                : fmt::format("{} = {} must be {}", p.key, s.*p.count, p.range));
+    if (!p.range.admits(v))
+      errors.push_back(p.number ? fmt::format("{} = {}, expected {}", p.key, v, p.range.expected())
+                                : fmt::format("{} = {}, expected {}", p.key, s.*p.count, p.range.expected()));
   }
   return fmt::format("{}", fmt::join(errors, "; "));
 }

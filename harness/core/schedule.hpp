@@ -6,6 +6,8 @@
 #include <string_view>
 #include <vector>
 
+#include "stepgate/core/range.hpp"
+
 namespace stepgate {
 
 enum class ScheduleKind {
@@ -38,12 +40,9 @@ struct ScheduleParam {
   std::string_view key;
   double Schedule::*number = nullptr;  ///< one of number and count is set
   long Schedule::*count = nullptr;
-  double min, max;
-  bool min_open, max_open;
-  std::string_view range;  ///< in words, "(0, 1]"
+  Range range;                      ///< whole for the counts
   std::vector<ScheduleKind> kinds;  ///< empty: every kind
   bool used_by(ScheduleKind k) const;
-  bool admits(double v) const;  ///< false for NaN
 };
 /// factor, every, decay, floor, warmup.
 const std::vector<ScheduleParam>& schedule_params();

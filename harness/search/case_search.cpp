@@ -4,6 +4,7 @@
 #include <cmath>
 #include <map>
 #include <set>
+#include <stdexcept>
 
 #include <fmt/format.h>
 
@@ -272,16 +273,27 @@ void Searcher::compare_reference(CaseSearchOutput& out) const {
   out.summary.reference = std::move(ref);
 }
 
+// Settings built by a library caller get the checks a suite's get (suite/ reports them at their
+// JSON pointer before any of this runs).
+const CaseSearchInput& checked(const CaseSearchInput& in) {
+  std::vector<std::string> errors;
+  if (std::string e = validate(in.rates); !e.empty()) errors.push_back("rates: " + e);
+  if (std::string e = validate(in.run); !e.empty()) errors.push_back(e);
+  if (in.seeds.empty()) errors.push_back("no seeds, expected at least one");
+  if (!errors.empty()) throw std::invalid_argument(fmt::format("case '{}': {}", in.case_id, fmt::join(errors, "; ")));
+  return in;
+}
+
 }  // namespace
 
 CaseSearchOutput search_case(const Problem& problem, const CaseSearchInput& in, const BatchDone& on_batch) {
   const RunBatchFn none;
-  return Searcher(none, &problem, in, on_batch).search();
+  return Searcher(none, &problem, checked(in), on_batch).search();
 }
 
 CaseSearchOutput search_case_with(const RunBatchFn& run, const Problem* problem, const CaseSearchInput& in,
                                   const BatchDone& on_batch) {
-  return Searcher(run, problem, in, on_batch).search();
+  return Searcher(run, problem, checked(in), on_batch).search();
 }
 
 }  // namespace stepgate

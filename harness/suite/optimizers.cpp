@@ -13,8 +13,9 @@ Schedule read_schedule(const Node& node) {
   if (auto n = o.find("kind")) s.kind = *schedule_kind_from_string(n->choice(schedule_kind_names(), "schedule kind"));
   for (const ScheduleParam& p : schedule_params())
     if (auto n = o.find(p.key)) {
-      if (p.number) s.*p.number = n->number();
-      else s.*p.count = n->integer();
+      const auto admits = [&](auto v) { return p.range.admits(double(v)); };
+      if (p.number) s.*p.number = n->number_if(admits, p.range.expected());
+      else s.*p.count = n->integer_if(admits, p.range.expected());
     }
   return s;
 }
@@ -31,8 +32,9 @@ OptimizerSpec read_optimizer(const Node& node, const std::string& name) {
   else
     s.kind = *optimizer_kind_from_string(name);
   for (const OptimizerParam& p : optimizer_params())
-    if (auto n = o.find(p.key)) s.*p.member = n->number();
-  if (auto n = o.find("batch_size")) s.batch_size = n->integer();
+    if (auto n = o.find(p.key)) s.*p.member = n->number_if([&](double v) { return p.range.admits(v); }, p.range.expected());
+  if (auto n = o.find("batch_size"))
+    s.batch_size = n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0 (0 = full batch)");
   if (auto n = o.find("schedule")) s.schedule = read_schedule(*n);
   if (const std::string problems = validate(s); !problems.empty())
     node.fail(fmt::format("optimizer '{}' is out of range: {}", name, problems));

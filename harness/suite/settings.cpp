@@ -4,6 +4,8 @@
 #include <algorithm>
 #include <cmath>
 #include <set>
+#include <type_traits>
+#include <variant>
 
 #include <fmt/format.h>
 
@@ -11,20 +13,49 @@
 
 namespace stepgate::suite_detail {
 
+namespace {
+
+// `first`, then the keys of `fields`.
+template <class S>
+std::vector<std::string> keys_with(std::vector<std::string> first, const std::vector<SettingField<S>>& fields) {
+  for (std::string& k : field_keys(fields)) first.push_back(std::move(k));
+  return first;
+}
+
+}  // namespace
+
 const std::vector<std::string>& rate_keys() {
-  static const std::vector<std::string> keys = {"grid",         "fixed",         "precision",    "lanes",
-                                                "locate_edge",  "locate_floor",  "locate_blowup", "refine_points"};
+  static const std::vector<std::string> keys = keys_with({"grid", "fixed"}, rate_fields());
   return keys;
 }
 
 const std::vector<std::string>& outcome_keys() {
-  static const std::vector<std::string> keys = {"criterion",      "tol",         "target", "plateau_window",
-                                                "blowup_factor",  "overshoot_limit", "hold", "confirm_factor",
-                                                "confirm_min",    "probe"};
+  static const std::vector<std::string> keys = keys_with({"criterion"}, outcome_fields());
   return keys;
 }
 
 namespace {
+
+// Each field of `table` that `source` (Layers or an ObjectNode) has, read into `s` and checked
+// against its range where it is written.
+template <class Source, class S>
+void read_fields(const Source& source, const std::vector<SettingField<S>>& table, S& s) {
+  for (const SettingField<S>& f : table) {
+    const auto n = source.find(f.key);
+    if (!n) continue;
+    std::visit(
+        [&](auto member) {
+          using T = std::remove_reference_t<decltype(s.*member)>;
+          if constexpr (std::is_same_v<T, bool>)
+            s.*member = n->boolean();
+          else if constexpr (std::is_same_v<T, double>)
+            s.*member = n->number_if([&](double v) { return f.range.admits(v); }, f.expected());
+          else
+            s.*member = static_cast<T>(n->integer_if([&](long v) { return f.range.admits(double(v)); }, f.expected()));
+        },
+        f.member);
+  }
+}
 
 void check_levels(const Layers& layers, const std::vector<std::string>& keys) {
   for (const Node& level : layers.levels) ObjectNode(level, keys);
@@ -80,13 +111,9 @@ void read_optimizer_names(const Layers& settings, Suite& suite, ProblemSpec& p) 
 }
 
 RateGrid read_grid(const Node& node) {
-  const ObjectNode o(node, {"from", "to", "per_decade"});
+  const ObjectNode o(node, field_keys(grid_fields()));
   RateGrid g;
-  if (auto n = o.find("from")) g.from = n->number_if(positive, "a rate > 0");
-  if (auto n = o.find("to")) g.to = n->number_if(positive, "a rate > 0");
-  if (auto n = o.find("per_decade"))
-    g.per_decade =
-        int(n->integer_if([](long v) { return v >= 1 && v <= 1000; }, "a whole number in 1..1000"));
+  read_fields(o, grid_fields(), g);
   if (!(g.from < g.to))
     (o.has("to") ? o.require("to") : node)
         .fail(fmt::format("found a grid from {} to {}; expected from < to", g.from, g.to));
@@ -101,17 +128,7 @@ RatePolicy read_rates(const Layers& rates) {
   const auto fixed = rates.find("fixed");
   if (fixed)
     for (const Node& e : fixed->elements()) r.fixed.push_back(e.number_if(positive, "a rate > 0"));
-  if (auto n = rates.find("precision"))
-    r.precision = n->number_if([](double v) { return v > 0 && v <= 1; }, "a number in (0, 1]");
-  if (auto n = rates.find("lanes"))
-    r.lanes =
-        int(n->integer_if([](long v) { return v >= 1 && v <= 16; }, "a whole number in 1..16"));
-  if (auto n = rates.find("locate_edge")) r.locate_edge = n->boolean();
-  if (auto n = rates.find("locate_floor")) r.locate_floor = n->boolean();
-  if (auto n = rates.find("locate_blowup")) r.locate_blowup = n->boolean();
-  if (auto n = rates.find("refine_points"))
-    r.refine_points =
-        int(n->integer_if([](long v) { return v >= 0 && v <= 32; }, "a whole number in 0..32"));
+  read_fields(rates, rate_fields(), r);
   if (!r.grid && r.fixed.empty())
     (fixed ? *fixed : *grid)
         .fail("found no grid and no fixed rates; expected a grid, fixed rates, or both");
@@ -145,25 +162,9 @@ OutcomeSettings read_outcome(const Layers& outcome, OutcomeSettings o) {
   check_levels(outcome, outcome_keys());
   const auto criterion = outcome.find("criterion");
   if (criterion)
-    o.criterion = *criterion_from_string(
-        criterion->choice({"auto", "gap", "grad", "cost", "plateau"}, "criterion"));
-  if (auto n = outcome.find("tol")) o.tol = n->number_if(positive, "a number > 0");
-  const auto target = outcome.find("target");
-  if (target) o.target = target->number();
-  if (auto n = outcome.find("plateau_window"))
-    o.plateau_window = n->integer_if([](long v) { return v >= 1; }, "a whole number >= 1");
-  if (auto n = outcome.find("blowup_factor"))
-    o.blowup_factor = n->number_if([](double v) { return v > 1; }, "a number > 1");
-  if (auto n = outcome.find("overshoot_limit"))
-    o.overshoot_limit = n->number_if([](double v) { return v >= 0; }, "a number >= 0");
-  if (auto n = outcome.find("hold"))
-    o.hold = n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0");
-  if (auto n = outcome.find("confirm_factor"))
-    o.confirm_factor = n->number_if([](double v) { return v >= 0 && v <= 100; }, "a number in [0, 100]");
-  if (auto n = outcome.find("confirm_min"))
-    o.confirm_min = n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0");
-  if (auto n = outcome.find("probe")) o.probe = n->boolean();
-  if (o.criterion == Criterion::cost && !target)
+    o.criterion = *criterion_from_string(criterion->choice(criterion_names(), "criterion"));
+  read_fields(outcome, outcome_fields(), o);
+  if (o.criterion == Criterion::cost && !outcome.find("target"))
     criterion->fail(
         "found criterion 'cost' without a target; expected \"target\": the cost to reach");
   return o;
@@ -203,16 +204,18 @@ GateTolerances read_gate(const Layers& gate) {
   check_levels(gate, gate_keys());
   GateTolerances g;
   for (const ToleranceField& t : tolerance_fields())
-    if (auto n = gate.find(t.key)) g.*t.member = n->number_if([&](double v) { return t.admits(v); }, t.expected);
+    if (auto n = gate.find(t.key)) g.*t.member = n->number_if([&](double v) { return t.range.admits(v); }, t.range.expected());
   for (const SeverityField& s : severity_fields())
     if (auto n = gate.find(s.key)) g.*s.member = severity(*n);
   return g;
 }
 
 const std::vector<std::string>& settings_keys() {
-  static const std::vector<std::string> keys = {"scalings", "optimizers", "rates",
-                                                "seeds",    "budget",     "eval_every",
-                                                "outcome",  "pinned",     "gate"};
+  static const std::vector<std::string> keys = [] {
+    std::vector<std::string> k = keys_with({"scalings", "optimizers", "rates", "seeds"}, run_fields());
+    k.insert(k.end(), {"outcome", "pinned", "gate"});
+    return k;
+  }();
   return keys;
 }
 
@@ -227,12 +230,7 @@ void read_settings(const Layers& settings, const Layers& gate, Suite& suite, Pro
     p.seeds = read_seeds(*n);
   else
     p.seeds = {1, 2, 3};
-  if (auto n = settings.find("budget"))
-    p.run.budget = n->integer_if([](long v) { return v >= 1 && v <= kMaxBudget; },
-                                 "a whole number in 1..1000000000 (a larger budget is too large to run)");
-  if (auto n = settings.find("eval_every"))
-    p.run.eval_every =
-        n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0 (0 = automatic)");
+  read_fields(settings, run_fields(), p.run);
   if (auto n = settings.find("eval_every"); n && p.run.eval_every > p.run.budget)
     n->fail(fmt::format("found eval_every {} above the budget {}; expected at most the budget (no run would be "
                         "evaluated before its end)", p.run.eval_every, p.run.budget));

@@ -7,6 +7,7 @@
 
 #include "stepgate/data/file_io.hpp"
 #include "stepgate/data/sha256.hpp"
+#include "stepgate/core/names.hpp"
 #include "stepgate/core/placeholders.hpp"
 #include "stepgate/suite/suite_sections.hpp"
 
@@ -33,23 +34,18 @@ std::string_view to_string(ProblemKind k) {
 }
 
 namespace {
-constexpr ProblemKind kBuiltinKinds[] = {ProblemKind::least_squares, ProblemKind::logistic,
-                                         ProblemKind::softmax,       ProblemKind::quadratic,
-                                         ProblemKind::test_function, ProblemKind::command};
+const std::vector<ProblemKind>& builtin_kinds() {
+  using K = ProblemKind;
+  static const std::vector<K> kinds = {K::least_squares, K::logistic,      K::softmax,
+                                       K::quadratic,     K::test_function, K::command};
+  return kinds;
+}
 }  // namespace
 
-std::optional<ProblemKind> problem_kind_from_string(std::string_view s) {
-  for (ProblemKind k : kBuiltinKinds)
-    if (to_string(k) == s) return k;
-  return std::nullopt;
-}
+std::optional<ProblemKind> problem_kind_from_string(std::string_view s) { return value_named(builtin_kinds(), s); }
 
 const std::vector<std::string>& builtin_problem_kind_names() {
-  static const std::vector<std::string> names = [] {
-    std::vector<std::string> n;
-    for (ProblemKind k : kBuiltinKinds) n.emplace_back(to_string(k));
-    return n;
-  }();
+  static const std::vector<std::string> names = names_of(builtin_kinds());
   return names;
 }
 

@@ -16,91 +16,15 @@
 #include "stepgate/core/error.hpp"
 #include "stepgate/core/input_file.hpp"
 #include "stepgate/core/interrupt.hpp"
+#include "stepgate/core/json_node.hpp"
 #include "stepgate/core/json_text.hpp"
+#include "stepgate/core/run_record_json.hpp"
 
 namespace stepgate {
 
 using nlohmann::json;
 
 namespace {
-
-// Every double exactly: JSON numbers round-trip (nlohmann writes the shortest exact form);
-// JSON has no infinity, so the non-finite values are words.
-json number(double x) {
-  if (std::isnan(x)) return nullptr;
-  if (std::isinf(x)) return x > 0 ? "inf" : "-inf";
-  return x;
-}
-
-double number_from(const json& j) {
-  if (j.is_null()) return std::numeric_limits<double>::quiet_NaN();
-  if (j.is_string()) {
-    const std::string s = j.get<std::string>();
-    if (s == "inf") return std::numeric_limits<double>::infinity();
-    if (s == "-inf") return -std::numeric_limits<double>::infinity();
-    throw std::runtime_error(fmt::format("expected a number, null, \"inf\" or \"-inf\", found \"{}\"", s));
-  }
-  return j.get<double>();
-}
-
-json record_json(const RunRecord& r, bool keep_params) {
-  json trace = json::array();
-  for (std::size_t i : thinned_indices(r.trace)) {
-    const TracePoint& p = r.trace[i];
-    trace.push_back({p.iter, number(p.cost), number(p.gap), number(p.grad_norm)});
-  }
-  json j = {{"rate", number(r.rate)},
-            {"seed", r.seed},
-            {"seed_index", r.seed_index},
-            {"outcome", to_string(r.outcome)},
-            {"reason", r.reason},
-            {"iterations", r.iterations ? json(*r.iterations) : json(nullptr)},
-            {"steps", r.steps},
-            {"overshoot", number(r.overshoot)},
-            {"trace", std::move(trace)},
-            {"wall_seconds", number(r.wall_seconds)},
-            {"log_lines", r.log_lines}};
-  if (r.confirmation)
-    j["confirmation"] = {{"method", r.confirmation->method}, {"until", r.confirmation->until},
-                         {"probe_growth", number(r.confirmation->probe_growth)}};
-  if (keep_params) {
-    json params = json::array();
-    for (Index i = 0; i < r.final_params.size(); ++i) params.push_back(number(r.final_params[i]));
-    j["final_params"] = std::move(params);
-  }
-  return j;
-}
-
-RunRecord record_from(const json& j) {
-  RunRecord r;
-  r.rate = number_from(j.at("rate"));
-  r.seed = j.at("seed").get<std::uint64_t>();
-  r.seed_index = j.at("seed_index").get<long>();
-  const auto outcome = outcome_from_string(j.at("outcome").get<std::string>());
-  if (!outcome) throw std::runtime_error("expected an outcome word in \"outcome\"");
-  r.outcome = *outcome;
-  r.reason = j.at("reason").get<std::string>();
-  if (!j.at("iterations").is_null()) r.iterations = j.at("iterations").get<long>();
-  r.steps = j.at("steps").get<long>();
-  r.overshoot = number_from(j.at("overshoot"));
-  for (const json& p : j.at("trace")) {
-    if (!p.is_array() || p.size() != 4) throw std::runtime_error("expected trace points [iter, cost, gap, grad_norm]");
-    r.trace.push_back({p[0].get<long>(), number_from(p[1]), number_from(p[2]), number_from(p[3])});
-  }
-  r.wall_seconds = number_from(j.at("wall_seconds"));
-  r.log_lines = j.at("log_lines").get<long>();
-  if (j.contains("confirmation")) {
-    const json& c = j["confirmation"];
-    r.confirmation = Confirmation{c.at("method").get<std::string>(), c.at("until").get<long>(),
-                                  number_from(c.at("probe_growth"))};
-  }
-  if (j.contains("final_params")) {
-    const json& p = j["final_params"];
-    r.final_params.resize(static_cast<Index>(p.size()));
-    for (std::size_t i = 0; i < p.size(); ++i) r.final_params[static_cast<Index>(i)] = number_from(p[i]);
-  }
-  return r;
-}
 
 json identity_json(const JournalIdentity& id) {
   json datasets = json::array();
@@ -126,7 +50,9 @@ std::pair<long, bool> kill_point() {
 class CaseJournal final : public RunStore {
  public:
   CaseJournal(Journal& j, std::string case_id, bool keep_params)
-      : journal_(j), case_(std::move(case_id)), keep_params_(keep_params) {}
+      : journal_(j), case_(std::move(case_id)) {
+    style_.final_params = keep_params;
+  }
 
   std::optional<std::vector<RunRecord>> recall(long seed_index, std::span<const double> rates) override {
     stop_point();  // between batches: where Ctrl-C ends a sweep
@@ -135,11 +61,11 @@ class CaseJournal final : public RunStore {
 
   void keep(long seed_index, std::span<const double> rates, const std::vector<RunRecord>& records) override {
     json rate_list = json::array();
-    for (double r : rates) rate_list.push_back(number(r));
+    for (double r : rates) rate_list.push_back(number_json(r, kJournalStyle));
     std::string text;
     for (std::size_t lane = 0; lane < records.size(); ++lane)
       text += json{{"case", case_}, {"seed_index", seed_index}, {"rates", rate_list}, {"lane", lane},
-                   {"run", record_json(records[lane], keep_params_)}}
+                   {"run", to_json(records[lane], style_)}}
                   .dump(-1, ' ', false, json::error_handler_t::replace) +
               "\n";
     journal_.append(text, static_cast<int>(records.size()));
@@ -149,7 +75,7 @@ class CaseJournal final : public RunStore {
  private:
   Journal& journal_;
   std::string case_;
-  bool keep_params_;
+  RunRecordStyle style_ = kJournalStyle;
 };
 
 std::string differs(const json& found, const json& wanted) {
@@ -208,24 +134,26 @@ Journal::Journal(std::string path, bool resume) : path_(std::move(path)), resume
       header_ = std::move(j);
     } else {
       try {
-        const std::string case_id = j.at("case").get<std::string>();
-        const long seed_index = j.at("seed_index").get<long>();
+        const JsonField e(j, where);
+        const std::string case_id = e["case"].string();
+        const long seed_index = e["seed_index"].integer_as<long>();
         std::vector<double> rates;
-        for (const json& r : j.at("rates")) rates.push_back(number_from(r));
-        const std::size_t lane = j.at("lane").get<std::size_t>();
-        if (rates.empty() || lane >= rates.size()) throw std::runtime_error("\"lane\" is outside the batch's rates");
+        const JsonField rate_list = e["rates"];
+        for (std::size_t i = 0; i < rate_list.array_size(); ++i) rates.push_back(number_from_json(rate_list[i], kJournalStyle));
+        const auto lane = e["lane"].integer_as<std::size_t>();
+        if (rates.empty() || lane >= rates.size()) e["lane"].expected("a lane of the batch's rates");
         Partial& p = partial[batch_key(case_id, seed_index, rates)];
-        RunRecord record = record_from(j.at("run"));
+        RunRecord record = run_record_from(e["run"], kJournalStyle);
         const bool whole = !p.lanes.empty() && p.filled == p.lanes.size();  // a later copy changes nothing
         if (!whole) {
           if (p.lanes.empty() || p.lanes[lane]) p.lanes.assign(rates.size(), std::nullopt), p.filled = 0;  // run again after a cut
           p.lanes[lane] = std::move(record);
           ++p.filled;
         }
-      } catch (const std::exception& e) {
+      } catch (const InputError& e) {
         if (last) break;
-        throw InputError(where, fmt::format("found a damaged journal entry ({}); expected the runs stepgate wrote "
-                                            "(run again without --resume)", e.what()));
+        throw InputError(e.where(), fmt::format("{}; expected the runs stepgate wrote (the journal is damaged: run "
+                                                "again without --resume)", e.message()));
       }
     }
     at = end + 1;

@@ -23,7 +23,7 @@
 
 namespace stepgate {
 
-inline constexpr const char* kJournalFormat = "stepgate.journal/1";
+inline constexpr const char* kJournalFormat = "stepgate.journal/2";
 inline constexpr const char* kJournalFile = "journal.jsonl";
 
 /// What a journal's runs depend on: a journal is resumed only by the same suite file, tool

@@ -351,7 +351,7 @@ class Cache:
                 if lines:
                     return {"real": True, "lines": lines}
             text = (d / "suite.json").read_bytes()
-            header = {"format": "stepgate.journal/1", "suite": suite["name"],
+            header = {"format": "stepgate.journal/2", "suite": suite["name"],
                       "sha256": hashlib.sha256(text).hexdigest(), "tool": version()}
             return {"real": False, "lines": [json.dumps(header) + "\n"],
                     "why": f"run --resume exited {code}: {(err.strip().splitlines() or [''])[0]}"}

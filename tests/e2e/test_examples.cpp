@@ -77,7 +77,7 @@ TEST_CASE("examples: the scikit-learn SGDRegressor trainer gates", "[examples]")
   gate_example("sklearn", "--raw-features", "progression-sgd/none/sgd-epochs");
 }
 
-TEST_CASE("examples: the PyTorch trainer gates; serving and per-run mode agree", "[examples]") {
+TEST_CASE("examples: the PyTorch trainer gates, and serving and per-run mode agree", "[examples]") {
   gate_example("torch", "--sum-loss", "tiers-mlp/none/hb-0.9");
   // A few fixed rates in both modes: the same outcomes, iterations and traces.
   TempDir dir("example-torch-modes");
@@ -93,9 +93,11 @@ TEST_CASE("examples: the PyTorch trainer gates; serving and per-run mode agree",
   write_json(dir / "per-run.json", s);
   const CliResult a = e2e::stepgate("run serving.json --out s --jobs 2 --quiet", dir.path());
   const CliResult b = e2e::stepgate("run per-run.json --out p --jobs 2 --quiet", dir.path());
-  INFO(a.err << b.err);
-  REQUIRE(a.exit_code == 0);
-  REQUIRE(b.exit_code == 0);
+  INFO(a.out << a.err << b.out << b.err);
+  // Fixed rates only: no edge is located, so the baseline-free headroom rule may fail (exit 1)
+  // but must fail alike in both modes; anything else (2: bad input, 3: tool error) is a defect.
+  REQUIRE(a.exit_code <= 1);
+  REQUIRE(a.exit_code == b.exit_code);
   const json rs = read_json(dir / "s" / "results.json"), rp = read_json(dir / "p" / "results.json");
   const json& x = rs["cases"][0]["runs"];
   const json& y = rp["cases"][0]["runs"];

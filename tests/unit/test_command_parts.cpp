@@ -45,7 +45,7 @@ TEST_CASE("placeholders: whole arguments, inside arguments, literal braces, erro
   CHECK_THROWS_WITH(expand_placeholders("{rate", lookup), Catch::Contains("without a closing"));
 }
 
-TEST_CASE("child process: SIGTERM ignored, a grandchild in the group; both gone after stop", "[commands]") {
+TEST_CASE("child process: SIGTERM ignored and a grandchild in the group, both gone after stop", "[commands]") {
   const std::string script = std::string(STEPGATE_SOURCE_DIR) + "/tests/e2e/trainers/ignore_term.py";
   if (!std::filesystem::exists("/usr/bin/python3")) {
     WARN("python3 unavailable");

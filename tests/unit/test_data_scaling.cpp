@@ -175,7 +175,7 @@ TEST_CASE("scalings: constant columns, drop_constant, units and jitter", "[data]
   CHECK_FALSE(scaling_kind_from_string("MaxAbs").has_value());
 }
 
-TEST_CASE("generated data: same seed, same bytes; more rows keep the earlier ones", "[data]") {
+TEST_CASE("generated data: same seed, same bytes, and more rows keep the earlier ones", "[data]") {
   GeneratedSpec spec;
   spec.seed = 42;
   const Generated a = generate(spec, "g"), b = generate(spec, "g");

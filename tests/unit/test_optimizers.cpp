@@ -357,7 +357,7 @@ TEST_CASE("lanes: keep_lanes then continuing equals the uncompacted lanes contin
   }
 }
 
-TEST_CASE("lanes: reset restarts the state; shapes and keep indices are checked",
+TEST_CASE("lanes: reset restarts the state, and shapes and keep indices are checked",
           "[optimizers]") {
   const Mat A = test_matrix();
   const Index p = A.rows();

@@ -244,7 +244,7 @@ TEST_CASE("confirmation: the stretch is a multiple of the time first taken", "[o
   CHECK(c.confirmation->until == 1375 + 688);
 }
 
-TEST_CASE("confirmation: a probe that grew makes the run oscillating; one that decayed confirms it",
+TEST_CASE("confirmation: a probe that grew makes the run oscillating, one that decayed confirms it",
           "[outcome]") {
   OutcomeSettings s;
   s.tol = 1e-6;

@@ -426,8 +426,8 @@ TEST_CASE("suite: malformed suites fail at the right pointer with a helpful mess
          j["problems"][0]["outcome"] = {{"blowup_factor", 1}};
        },
        "/problems/0/outcome/blowup_factor", "expected a number > 1"},
-      {"beta 1.0", [](Json& j) { j["optimizers"]["hb"]["beta"] = 1.0; }, "/optimizers/hb",
-       "beta = 1 is outside [0, 1)"},
+      {"beta 1.0", [](Json& j) { j["optimizers"]["hb"]["beta"] = 1.0; }, "/optimizers/hb/beta",
+       "expected a number in [0, 1), found 1"},
       {"optimizer without kind", [](Json& j) { j["optimizers"]["hb"].erase("kind"); },
        "/optimizers/hb", "missing required key 'kind'"},
       {"predefined sgd has no batch size",
