@@ -82,3 +82,16 @@ def serve(run_one, default_beta=None):
         run_one(rate, seed, budget, beta, lambda obj: say({"run": rid, **obj}),
                 lambda: inbox.stop_requested(rid))
         say({"run": rid, "end": True})
+
+
+def run_or_serve(parser, args, run_one, beta=None):
+    """The trainer's main: serving mode with --serve, else one run from --lr, --seed and --steps
+    whose final parameters end the output. Returns the exit code."""
+    if args.serve:
+        return serve(run_one, default_beta=beta)
+    if args.lr is None or args.steps is None or args.steps < 0:
+        parser.error("per-run mode needs --lr and --steps >= 0 (or --serve)")
+    params = run_one(args.lr, args.seed, args.steps, beta, say, lambda: False)
+    if params is not None:
+        say({"params": [float(v) for v in params]})
+    return 0

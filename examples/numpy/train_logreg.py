@@ -29,7 +29,6 @@ Protocol (stepgate problem kind `command`):
   serving : train_logreg.py --serve   (requests on stdin, one JSON object per line)
 """
 import argparse
-import csv
 import math
 import os
 import signal
@@ -37,9 +36,11 @@ import sys
 
 import numpy as np
 
-# The command protocol (say, serve), shared by every example: examples/stepgate_command.py.
+# The command protocol (examples/stepgate_command.py) and the CSV helpers (examples/example_data.py),
+# shared by the examples.
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
-from stepgate_command import say, serve  # noqa: E402
+from example_data import load_csv, standardise  # noqa: E402
+from stepgate_command import run_or_serve  # noqa: E402
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 DEFAULT_DATA = os.path.join(HERE, "..", "..", "suites", "data", "breast_cancer.csv")
@@ -50,27 +51,10 @@ DEFAULT_DATA = os.path.join(HERE, "..", "..", "suites", "data", "breast_cancer.c
 # ---------------------------------------------------------------------------------------
 
 def load(path, target):
-    with open(path, newline="") as f:
-        rows = list(csv.reader(f))
-    header, body = rows[0], rows[1:]
-    if target not in header:
-        sys.exit(f"train_logreg: {path}: no column named {target!r}; columns are {header}")
-    t = header.index(target)
-    features = [name for j, name in enumerate(header) if j != t]
-    values = np.array(body, dtype=np.float64)
-    y = values[:, t]
-    X = np.delete(values, t, axis=1)
+    features, X, y = load_csv(path, target, "train_logreg")
     if not np.all((y == 0.0) | (y == 1.0)):
         sys.exit(f"train_logreg: {path}: column {target!r} must hold 0/1 labels")
     return features, X, y
-
-
-def standardise(X):
-    mean = X.mean(axis=0)
-    sd = np.sqrt(((X - mean) ** 2).sum(axis=0) / X.shape[0])  # population sd (ddof = 0)
-    if np.any(sd == 0.0):
-        sys.exit("train_logreg: a feature column is constant; cannot standardise it")
-    return (X - mean) / sd
 
 
 def softplus(z):
@@ -133,19 +117,12 @@ def main():
     signal.signal(signal.SIGPIPE, signal.SIG_DFL)  # reader gone: end quietly
 
     _, X, y = load(args.data, args.target)
-    model = Logistic(standardise(X), y, args.l2, args.sum_loss)
+    model = Logistic(standardise(X, "train_logreg"), y, args.l2, args.sum_loss)
 
     def run_one(rate, seed, budget, beta, emit, stopped):
         return train(model, rate, budget, emit, stopped)
 
-    if args.serve:
-        return serve(run_one)
-    if args.lr is None or args.steps is None or args.steps < 0:
-        p.error("per-run mode needs --lr and --steps >= 0 (or --serve)")
-    w = run_one(args.lr, args.seed, args.steps, None, say, lambda: False)
-    if w is not None:
-        say({"params": [float(v) for v in w]})
-    return 0
+    return run_or_serve(p, args, run_one)
 
 
 if __name__ == "__main__":

@@ -28,7 +28,6 @@ Protocol (stepgate problem kind `command`):
   serving : train_sgd.py --serve   (requests on stdin, one JSON object per line)
 """
 import argparse
-import csv
 import math
 import os
 import signal
@@ -39,9 +38,11 @@ import numpy as np
 from sklearn.exceptions import ConvergenceWarning
 from sklearn.linear_model import SGDRegressor
 
-# The command protocol (say, serve), shared by every example: examples/stepgate_command.py.
+# The command protocol (examples/stepgate_command.py) and the CSV helpers (examples/example_data.py),
+# shared by the examples.
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
-from stepgate_command import say, serve  # noqa: E402
+from example_data import load_csv, standardise  # noqa: E402
+from stepgate_command import run_or_serve  # noqa: E402
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 DEFAULT_DATA = os.path.join(HERE, "..", "..", "suites", "data", "diabetes.csv")
@@ -50,25 +51,6 @@ DEFAULT_DATA = os.path.join(HERE, "..", "..", "suites", "data", "diabetes.csv")
 # ---------------------------------------------------------------------------------------
 # The model
 # ---------------------------------------------------------------------------------------
-
-def load(path, target):
-    with open(path, newline="") as f:
-        rows = list(csv.reader(f))
-    header, body = rows[0], rows[1:]
-    if target not in header:
-        sys.exit(f"train_sgd: {path}: no column named {target!r}; columns are {header}")
-    t = header.index(target)
-    values = np.array(body, dtype=np.float64)
-    return np.delete(values, t, axis=1), values[:, t]
-
-
-def standardise(v):
-    mean = v.mean(axis=0)
-    sd = np.sqrt(((v - mean) ** 2).sum(axis=0) / v.shape[0])  # population sd (ddof = 0)
-    if np.any(sd == 0.0):
-        sys.exit("train_sgd: a column is constant; cannot standardise it")
-    return (v - mean) / sd
-
 
 def cost(X, y, coef, intercept, alpha):
     with np.errstate(all="ignore"):
@@ -121,21 +103,14 @@ def main():
     if not (args.alpha >= 0.0):
         p.error("--alpha must be >= 0")
 
-    X, y = load(args.data, args.target)
-    X = X if args.raw_features else standardise(X)
-    y = standardise(y)
+    _, X, y = load_csv(args.data, args.target, "train_sgd")
+    X = X if args.raw_features else standardise(X, "train_sgd")
+    y = standardise(y, "train_sgd")
 
     def run_one(rate, seed, budget, beta, emit, stopped):
         return train(X, y, args.alpha, rate, seed, budget, emit, stopped)
 
-    if args.serve:
-        return serve(run_one)
-    if args.lr is None or args.steps is None or args.steps < 0:
-        p.error("per-run mode needs --lr and --steps >= 0 (or --serve)")
-    params = run_one(args.lr, args.seed, args.steps, None, say, lambda: False)
-    if params is not None:
-        say({"params": params})
-    return 0
+    return run_or_serve(p, args, run_one)
 
 
 if __name__ == "__main__":

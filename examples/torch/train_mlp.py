@@ -32,9 +32,11 @@ import sys
 import numpy as np
 import torch
 
-# The command protocol (say, serve), shared by every example: examples/stepgate_command.py.
+# The command protocol (examples/stepgate_command.py) and the data helpers (examples/example_data.py),
+# shared by the examples.
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
-from stepgate_command import say, serve  # noqa: E402
+from example_data import standardise  # noqa: E402
+from stepgate_command import run_or_serve  # noqa: E402
 
 DATA_SEED = 2026
 ROWS, CLASSES = 1200, 3
@@ -64,12 +66,6 @@ def make_parcels(rows=ROWS, seed=DATA_SEED):
     urgency += rng.normal(scale=0.5, size=rows)
     y = np.digitize(urgency, np.quantile(urgency, [0.4, 0.75]))      # 40% / 35% / 25%
     return X, y
-
-
-def standardise(X):
-    mean = X.mean(axis=0)
-    sd = np.sqrt(((X - mean) ** 2).sum(axis=0) / X.shape[0])  # population sd (ddof = 0)
-    return (X - mean) / sd
 
 
 ACTIVATIONS = {"tanh": torch.nn.Tanh, "relu": torch.nn.ReLU}
@@ -125,21 +121,14 @@ def main():
     torch.use_deterministic_algorithms(True)
 
     X, y = make_parcels()
-    X = torch.from_numpy(X if args.no_normalize else standardise(X))
+    X = torch.from_numpy(X if args.no_normalize else standardise(X, "train_mlp"))
     y = torch.from_numpy(y).long()
     reduction = "sum" if args.sum_loss else "mean"
 
     def run_one(rate, seed, budget, beta, emit, stopped):
         return train(X, y, reduction, args.activation, rate, seed, budget, beta, emit, stopped)
 
-    if args.serve:
-        return serve(run_one, default_beta=args.beta)
-    if args.lr is None or args.steps is None or args.steps < 0:
-        p.error("per-run mode needs --lr and --steps >= 0 (or --serve)")
-    params = run_one(args.lr, args.seed, args.steps, args.beta, say, lambda: False)
-    if params is not None:
-        say({"params": params})
-    return 0
+    return run_or_serve(p, args, run_one, beta=args.beta)
 
 
 if __name__ == "__main__":

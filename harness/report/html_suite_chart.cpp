@@ -3,6 +3,8 @@
 // the measured blow-up marked, so that a reviewer sees in one look which cases moved.
 #include <algorithm>
 #include <cmath>
+#include <map>
+#include <set>
 #include <vector>
 
 #include <fmt/format.h>
@@ -47,16 +49,21 @@ void band(std::string& out, const svg::LogScale& x, double floor, double edge, d
 }  // namespace
 
 std::string suite_chart_html(const Results& results, const Baseline* baseline, const GateReport& gate) {
-  std::vector<Row> rows;
-  for (const CaseResult& c : results.cases)
-    rows.push_back({c.id, c.error.empty() ? &c.summary : nullptr, baseline ? baseline->find(c.id) : nullptr,
-                    gate.worst(c.id), !c.error.empty()});
+  // Looked up by id once each (a suite may have hundreds of cases).
+  std::map<std::string_view, const BaselineCase*> base;
   if (baseline)
-    for (const BaselineCase& b : baseline->cases) {
-      bool listed = false;
-      for (const CaseResult& c : results.cases) listed = listed || c.id == b.id;
-      if (!listed) rows.push_back({b.id, nullptr, &b, gate.worst(b.id), false});
-    }
+    for (const BaselineCase& b : baseline->cases) base.emplace(b.id, &b);
+  std::vector<Row> rows;
+  std::set<std::string_view> listed;
+  for (const CaseResult& c : results.cases) {
+    const auto b = base.find(c.id);
+    rows.push_back({c.id, c.error.empty() ? &c.summary : nullptr, b == base.end() ? nullptr : b->second,
+                    gate.worst(c.id), !c.error.empty()});
+    listed.insert(c.id);
+  }
+  if (baseline)  // cases only the baseline has, after the current ones
+    for (const BaselineCase& b : baseline->cases)
+      if (!listed.count(b.id)) rows.push_back({b.id, nullptr, &b, gate.worst(b.id), false});
   std::vector<double> rates;
   for (const Row& r : rows) {
     if (r.now)

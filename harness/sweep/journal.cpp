@@ -152,8 +152,7 @@ Journal::Journal(std::string path, bool resume) : path_(std::move(path)), resume
         }
       } catch (const InputError& e) {
         if (last) break;
-        throw InputError(e.where(), fmt::format("{}; expected the runs stepgate wrote (the journal is damaged: run "
-                                                "again without --resume)", e.message()));
+        throw InputError(e.where(), e.message() + " (the journal is damaged: run again without --resume)");
       }
     }
     at = end + 1;

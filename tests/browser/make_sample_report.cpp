@@ -8,6 +8,7 @@
 #include "stepgate/gate/baseline.hpp"
 #include "stepgate/gate/findings.hpp"
 #include "stepgate/report/reporter.hpp"
+#include "support/sample_runs.hpp"
 
 using namespace stepgate;
 
@@ -18,20 +19,18 @@ const std::string kScript = "<script>document.title='pwned'</script>";
 
 // A run whose gap shrinks (or grows, when diverged) geometrically, evaluated every 10 steps.
 StoredRun make_run(double rate, long seed_index, Outcome outcome, RunRole role) {
-  StoredRun s;
-  s.role = role;
-  s.record.rate = rate;
-  s.record.seed = 7 + static_cast<std::uint64_t>(seed_index);
-  s.record.seed_index = seed_index;
-  s.record.outcome = outcome;
-  s.record.reason = "reason " + kScript;
-  const double per_step = outcome == Outcome::diverged ? 1.3 : 1.0 - std::min(0.2, rate * 0.4);
-  double gap = 4.0;
-  for (long k = 0; k <= 400; k += 10) {
-    s.record.trace.push_back({k, 1.0 + gap, gap, kMissing});
-    if (outcome == Outcome::diverged && gap > 1e6) break;
-    gap *= std::pow(per_step, 10.0);
-  }
+  StoredRun s = test::sample_run({.rate = rate,
+                                  .rng_seed = 7 + static_cast<std::uint64_t>(seed_index),
+                                  .seed_index = seed_index,
+                                  .outcome = outcome,
+                                  .role = role,
+                                  .reason = "reason " + kScript,
+                                  .optimum = 1.0,
+                                  .gap = 4.0,
+                                  .per_step = outcome == Outcome::diverged ? 1.3 : 1.0 - std::min(0.2, rate * 0.4),
+                                  .every = 10,
+                                  .last = 400,
+                                  .gap_limit = outcome == Outcome::diverged ? 1e6 : HUGE_VAL});
   s.record.steps = s.record.trace.back().iter;
   if (outcome == Outcome::converged) s.record.iterations = s.record.steps / 2;
   return s;

@@ -1104,6 +1104,16 @@ def catalogue():
     add(Entry("resume-garbage-journal-line-2", resume, 2,
               err=[re.compile(r"journal\.jsonl(:2\b|.*line 2\b)")],
               files=journal_files("tiny", tiny_suite(), garbage)))
+
+    def steps_a_word(lines):
+        """Line 2's run with "steps": "many" (not the last line, which would count as torn)."""
+        entry = json.loads(lines[1])
+        entry["run"]["steps"] = "many"
+        return [lines[0], json.dumps(entry) + "\n"] + lines[2:]
+
+    add(Entry("resume-journal-entry-with-a-bad-field", resume, 2,
+              err=["journal.jsonl:2#/run/steps", "integer", "without --resume"],
+              files=journal_files("tiny", tiny_suite(), steps_a_word)))
     add(Entry("resume-binary-journal", resume, 2, err=["journal.jsonl"],
               files=lambda ctx: {"suite.json": tiny_suite(),
                                  "out/journal.jsonl": b"\x00\xff\xfe\x01junk\n\x89PNG\r\n"}))
@@ -1345,11 +1355,19 @@ def catalogue():
 
     # ---- results -----------------------------------------------------------------------------------------
     chk = ["check", "r.json", "--baseline", "base.json"]
-    add(Entry("results-wrong-format", chk, 2, err=["r.json#/format", "stepgate.results/2"],
-              files=with_results(lambda d: put(d, "format", "stepgate.results/0"))))
-    add(Entry("results-a-baseline-given-as-results", ["check", "base.json", "--baseline", "base.json"], 2,
-              err=["base.json#/format", "stepgate.results/2"],
-              files=lambda ctx: {"base.json": ctx.cache.tiny()["baseline"]}))
+    chkb = ["check", "r.json", "--baseline", "b.json"]
+    # The faults both files can have: another format, the other kind of file, a file cut short.
+    for kind, path, args, wrap, wanted, other, other_args, cut_at in (
+            ("results", "r.json", chk, with_results, "stepgate.results/2", ("baseline", "base.json"),
+             ["check", "base.json", "--baseline", "base.json"], 2000),
+            ("baseline", "b.json", chkb, with_baseline, "stepgate.baseline/2", ("results", "r.json"),
+             ["check", "r.json", "--baseline", "r.json"], 300)):
+        add(Entry(f"{kind}-wrong-format", args, 2, err=[f"{path}#/format", wanted],
+                  files=wrap(lambda d: put(d, "format", "stepgate.other/0"))))
+        add(Entry(f"{kind}-given-a-{other[0]}-file", other_args, 2, err=[f"{other[1]}#/format", wanted],
+                  files=lambda ctx, other=other: {other[1]: ctx.cache.tiny()[other[0]]}))
+        add(Entry(f"{kind}-truncated", args, 2, err=[re.compile(re.escape(path) + r":\d+:\d+")],
+                  files=wrap(lambda d, cut_at=cut_at: json.dumps(d, indent=1)[:cut_at])))
     add(Entry("results-missing-summary", chk, 2, err=["r.json#/cases/0/summary"],
               files=with_results(lambda d: drop(d, "cases/0/summary"))))
     add(Entry("results-rate-is-a-string", chk, 2, err=["r.json#/cases/0/runs/0/rate", "number"],
@@ -1368,8 +1386,6 @@ def catalogue():
               files=with_results(lambda d: put(d, "cases", {"a": 1}))))
     add(Entry("results-top-level-array", chk, 2, err=["r.json#", ("format", "object")],
               files=with_results(lambda d: [d])))
-    add(Entry("results-truncated", chk, 2, err=[re.compile(r"r\.json:\d+:\d+")],
-              files=with_results(lambda d: json.dumps(d, indent=1)[:2000])))
     add(Entry("results-empty-file", chk, 2, err=[re.compile(r"r\.json:1:\d+")],
               files=with_results(lambda d: "")))
     add(Entry("results-missing-file", ["check", "nope.json", "--baseline", "base.json"], 2,
@@ -1393,14 +1409,6 @@ def catalogue():
                                  baseline=False)))
 
     # ---- baselines ------------------------------------------------------------------------------------
-    chkb = ["check", "r.json", "--baseline", "b.json"]
-    add(Entry("baseline-wrong-format", chkb, 2, err=["b.json#/format", "stepgate.baseline/2"],
-              files=with_baseline(lambda d: put(d, "format", "stepgate.baseline/9"))))
-    add(Entry("baseline-results-given-as-baseline", ["check", "r.json", "--baseline", "r.json"], 2,
-              err=["r.json#/format", "stepgate.baseline/2"],
-              files=lambda ctx: {"r.json": ctx.cache.tiny()["results"]}))
-    add(Entry("baseline-truncated", chkb, 2, err=[re.compile(r"b\.json:\d+:\d+")],
-              files=with_baseline(lambda d: json.dumps(d, indent=1)[:300])))
     add(Entry("baseline-edge-bracket-of-three", chkb, 2, err=["b.json#/cases/0/edge_bracket"],
               files=with_baseline(lambda d: put(d, "cases/0/edge_bracket", [1, 2, 3]))))
     add(Entry("baseline-missing-cases", chkb, 2, err=["b.json#/cases"],

@@ -14,6 +14,7 @@
 #include "stepgate/report/html_escape.hpp"
 #include "stepgate/report/reporter.hpp"
 #include "stepgate/report/svg.hpp"
+#include "support/sample_runs.hpp"
 
 using namespace stepgate;
 
@@ -22,23 +23,18 @@ namespace {
 const std::string kEvilId = "<script>alert(1)</script>/none/gd";
 const std::string kEvilReason = "\"&'<b>";
 
+// Gap shrinks by a rate-dependent factor per step, or grows for a diverged run.
 StoredRun make_run(double rate, long seed_index, Outcome o, RunRole role, double optimum) {
-  StoredRun s;
-  s.role = role;
-  s.record.rate = rate;
-  s.record.seed = 100 + static_cast<std::uint64_t>(seed_index);
-  s.record.seed_index = seed_index;
-  s.record.outcome = o;
-  s.record.reason = kEvilReason;
+  StoredRun s = test::sample_run({.rate = rate,
+                                  .rng_seed = 100 + static_cast<std::uint64_t>(seed_index),
+                                  .seed_index = seed_index,
+                                  .outcome = o,
+                                  .role = role,
+                                  .reason = kEvilReason,
+                                  .optimum = optimum,
+                                  .per_step = o == Outcome::diverged ? 3.0 : 1.0 - std::min(0.9, rate)});
   if (o == Outcome::converged) s.record.iterations = 40;
   s.record.steps = 50;
-  // Gap shrinks by a rate-dependent factor per step, or grows for a diverged run.
-  const double factor = o == Outcome::diverged ? 3.0 : 1.0 - std::min(0.9, rate);
-  double gap = 1.0;
-  for (long k = 0; k <= 50; k += 5) {
-    s.record.trace.push_back({k, optimum + gap, gap, kMissing});
-    gap *= std::pow(factor, 5.0);
-  }
   return s;
 }
 
