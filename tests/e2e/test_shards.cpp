@@ -52,6 +52,18 @@ TEST_CASE("shards: two shards merged equal the unsharded run", "[e2e]") {
     CHECK(joined["cases"][i].at("summary") == full["cases"][i].at("summary"));
     CHECK(joined_core["cases"][i].at("runs") == full_core["cases"][i].at("runs"));
   }
+  // merge writes the reports run writes, and they count the same cases as the unsharded run's.
+  for (const char* report : {"report.md", "report.html", "junit.xml"}) {
+    INFO(report);
+    CHECK(fs::is_regular_file(merged / report));
+  }
+  const auto tests_attribute = [](const fs::path& junit) {
+    const std::string text = read_text(junit);
+    const std::size_t at = text.find("tests=\"");
+    return at == std::string::npos ? std::string() : text.substr(at, text.find('"', at + 7) - at);
+  };
+  CHECK_FALSE(tests_attribute(merged / "junit.xml").empty());
+  CHECK(tests_attribute(merged / "junit.xml") == tests_attribute(whole.out / "junit.xml"));
   // The merged results gate like the unsharded ones.
   expect_exit(
       "check " + quoted((merged / "results.json").string()) + " --baseline " + quoted(gate_small_baseline().string()),
