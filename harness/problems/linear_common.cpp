@@ -5,6 +5,10 @@
 #include <stdexcept>
 #include <string>
 
+#include <tbb/blocked_range.h>
+#include <tbb/parallel_for.h>
+#include <tbb/task_arena.h>
+
 #include "stepgate/problems/normal_draws.hpp"
 
 namespace stepgate::detail {
@@ -50,6 +54,32 @@ Vec LinearModel::start(std::uint64_t seed) const {
   if (opt_.init_scale == 0.0) return Vec::Zero(dim());
   std::mt19937_64 rng(seed);
   return opt_.init_scale * standard_normal(rng, dim());
+}
+
+void sum_over_row_chunks(Index n, double weight, Vec& cost, Eigen::Map<Mat> grad, std::vector<Scratch::Rows>& chunks,
+                         const std::function<void(Scratch::Rows&, Index, Index)>& body) {
+  const Index count = std::max<Index>(1, (n + kChunkRows - 1) / kChunkRows);
+  if (Index(chunks.size()) < count) chunks.resize(std::size_t(count));
+  auto one = [&](Index c) { body(chunks[std::size_t(c)], c * kChunkRows, std::min(kChunkRows, n - c * kChunkRows)); };
+  if (count == 1) {
+    one(0);
+  } else {
+    tbb::this_task_arena::isolate([&] {
+      tbb::parallel_for(tbb::blocked_range<Index>(0, count, 1),
+                        [&](const tbb::blocked_range<Index>& r) {
+                          for (Index c = r.begin(); c < r.end(); ++c) one(c);
+                        },
+                        tbb::simple_partitioner());
+    });
+  }
+  cost = chunks[0].cost;
+  grad = chunks[0].grad;
+  for (Index c = 1; c < count; ++c) {
+    cost += chunks[std::size_t(c)].cost;
+    grad += chunks[std::size_t(c)].grad;
+  }
+  cost *= weight;
+  grad *= weight;
 }
 
 void LinearModel::add_ridge(const Mat& W, Vec* cost, Mat& grad) const {

@@ -2,9 +2,11 @@
 // column for the intercept, the reduction weight, the ridge term that skips intercepts, the
 // seeded start, mini-batch row gathering and the largest eigenvalue of XaugᵀXaug.
 #pragma once
+#include <functional>
 #include <mutex>
 #include <optional>
 #include <span>
+#include <vector>
 
 #include "stepgate/core/dataset.hpp"
 #include "stepgate/problems/linear_models.hpp"
@@ -18,6 +20,19 @@ Mat augment_with_ones(const Mat& X, bool intercept);
 
 /// out = the rows `rows` of X, in that order (resized to |rows| x X.cols()).
 void gather_rows(const Mat& X, std::span<const Index> rows, Mat& out);
+
+/// Rows per chunk of a row-split evaluation. Fixed, so that the chunks, and the order in which
+/// their partial sums are added, never depend on the number of threads.
+inline constexpr Index kChunkRows = 4096;
+
+/// Splits n rows into chunks of kChunkRows and calls body(chunk scratch, first row, rows) for
+/// each, in parallel on the caller's task arena (isolated: a thread waiting for its chunks
+/// takes no unrelated task, so one inside a call_once never re-enters it). The body sets its
+/// chunk's `cost` (K) and `grad` (the shape of `grad`) to partial sums over its rows; they are
+/// then added in chunk order: cost = weight·Σ cost_c, grad = weight·Σ grad_c. The result is
+/// the same bits for any number of threads. One chunk (n ≤ kChunkRows) runs inline.
+void sum_over_row_chunks(Index n, double weight, Vec& cost, Eigen::Map<Mat> grad, std::vector<Scratch::Rows>& chunks,
+                         const std::function<void(Scratch::Rows&, Index, Index)>& body);
 
 /// Base of the three linear models. Parameters: a (d [+1]) x outputs matrix, column-major.
 class LinearModel : public Problem {

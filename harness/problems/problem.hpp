@@ -11,6 +11,7 @@
 #include <span>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "stepgate/core/types.hpp"
 
@@ -35,9 +36,16 @@ struct LinearLayout {
 /// Caller-owned working memory for evaluations. A problem resizes the members it needs;
 /// Eigen's resize to the same shape does not reallocate, so the steady state allocates nothing.
 struct Scratch {
+  /// Working memory of one chunk of rows, for problems that split their rows across threads.
+  struct Rows {
+    Mat z, t;   ///< a block of margins or logits, and element-wise temporaries
+    Mat grad;   ///< the chunk's partial gradient
+    Vec cost;   ///< the chunk's partial costs, one per lane
+  };
   Mat a, b, c;
   Vec v;
   std::vector<Index> rows;
+  std::vector<Rows> chunks;  ///< one per chunk of rows (see detail::sum_over_row_chunks)
 };
 
 /// Result buffers of a batched evaluation (sized by the problem to K lanes).

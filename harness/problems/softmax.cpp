@@ -40,30 +40,42 @@ class Softmax final : public detail::LinearModel {
   std::string_view kind() const override { return "softmax"; }
 
   void evaluate(const Mat& W, Evaluation& out, Scratch& s) const override {
-    const Index K = W.cols(), C = outputs_;
+    const Index K = W.cols(), C = outputs_, q = rows_per_output_, n = Xaug_.rows();
     out.cost.resize(K);
     out.grad.resize(dim(), K);
-    // All lanes at once: W viewed as (d+1) x (C·K), so one product gives every logit.
-    Eigen::Map<const Mat> Wv(W.data(), rows_per_output_, C * K);
-    s.a.resize(Xaug_.rows(), C * K);
-    s.a.noalias() = Xaug_ * Wv;
-    for (Index k = 0; k < K; ++k) out.cost[k] = data_weight() * residuals(s.a, k, Xaug_.rows(), nullptr, s);
-    Eigen::Map<Mat> Gv(out.grad.data(), rows_per_output_, C * K);
-    Gv.noalias() = data_weight() * (Xaug_.transpose() * s.a);
+    // All lanes at once: W viewed as q x (C·K), so one product gives every logit. Chunks of
+    // rows in parallel (sum_over_row_chunks); within a chunk, blocks of kBlock rows: the
+    // block's logits, its loss and residuals, then its share of the gradient while the block
+    // of X is still in cache.
+    Eigen::Map<const Mat> Wv(W.data(), q, C * K);
+    detail::sum_over_row_chunks(n, data_weight(), out.cost, Eigen::Map<Mat>(out.grad.data(), q, C * K), s.chunks,
+                                [&](Scratch::Rows& c, Index r0, Index rows) {
+      c.cost.setZero(K);
+      c.grad.setZero(q, C * K);
+      if (c.z.rows() != kBlock || c.z.cols() != C * K) c.z.resize(kBlock, C * K);
+      for (Index i0 = r0; i0 < r0 + rows; i0 += kBlock) {
+        const Index m = std::min(kBlock, r0 + rows - i0);
+        const auto X = Xaug_.middleRows(i0, m);
+        c.z.topRows(m).noalias() = X * Wv;
+        for (Index k = 0; k < K; ++k) c.cost[k] += residuals(c.z, 0, m, k, i0, nullptr, c.t);
+        c.grad.noalias() += X.transpose() * c.z.topRows(m);
+      }
+    });
     add_ridge(W, &out.cost, out.grad);
   }
 
   void gradient_rows(const Mat& W, std::span<const Index> rows, Mat& grad, Scratch& s) const override {
     if (rows.empty()) throw std::invalid_argument("softmax: empty mini-batch");
-    const Index K = W.cols(), C = outputs_;
+    const Index K = W.cols(), C = outputs_, n = Index(rows.size());
     detail::gather_rows(Xaug_, rows, s.c);
     Eigen::Map<const Mat> Wv(W.data(), rows_per_output_, C * K);
-    s.a.resize(s.c.rows(), C * K);
+    s.a.resize(n, C * K);
     s.a.noalias() = s.c * Wv;
-    for (Index k = 0; k < K; ++k) residuals(s.a, k, s.c.rows(), &rows, s);
+    for (Index k = 0; k < K; ++k)
+      for (Index i0 = 0; i0 < n; i0 += kBlock) residuals(s.a, i0, std::min(kBlock, n - i0), k, i0, &rows, s.b);
     grad.resize(dim(), K);
     Eigen::Map<Mat> Gv(grad.data(), rows_per_output_, C * K);
-    Gv.noalias() = batch_weight(Index(rows.size())) * (s.c.transpose() * s.a);
+    Gv.noalias() = batch_weight(n) * (s.c.transpose() * s.a);
     add_ridge(W, nullptr, grad);
   }
 
@@ -102,41 +114,40 @@ class Softmax final : public detail::LinearModel {
   double smoothness_bound() const override { return data_weight() * gram_lambda_max() / 2.0 + opt_.l2; }
 
  private:
-  /// Turns the logits of lane k in Z (columns k·C..k·C+C−1) into residuals softmax(z) − e_y and
-  /// returns the summed loss Σ logsumexp(z) − z_y. `rows` maps row i of Z to its sample.
-  /// Blocks of rows, so that a block's C columns stay in L1/L2 through the passes; within a
-  /// block each pass is a vectorised array expression down one column (Eigen's packet exp and
-  /// log). One exponentiation per logit: p_c = exp(z_c − top) / total, and
-  /// logsumexp = top + log(total). p_y − 1 is written as −Σ_{c≠y} p_c (of the rounded p_c),
-  /// which keeps its digits when p_y ≈ 1.
-  double residuals(Mat& Z, Index k, Index n, const std::span<const Index>* rows, Scratch& s) const {
+  /// Rows per block: a block's C columns of logits stay in L1/L2 through the passes below.
+  static constexpr Index kBlock = 1024;
+
+  /// Turns the logits of lane k in rows [z0, z0 + m) of Z (columns k·C..k·C+C−1) into
+  /// residuals softmax(z) − e_y and returns their summed loss Σ logsumexp(z) − z_y. Row z0 + i
+  /// holds sample first + i, or (*rows)[first + i] when `rows` is given. Each pass is a
+  /// vectorised array expression down one column (Eigen's packet exp and log). One
+  /// exponentiation per logit: p_c = exp(z_c − top) / total, and logsumexp = top + log(total).
+  /// p_y − 1 is written as −Σ_{c≠y} p_c (of the rounded p_c), which keeps its digits when
+  /// p_y ≈ 1. `tmp` is working memory (at least m x 2 after the call).
+  double residuals(Mat& Z, Index z0, Index m, Index k, Index first, const std::span<const Index>* rows, Mat& tmp) const {
     const Index C = outputs_;
-    constexpr Index kBlock = 1024;
-    s.b.resize(std::min(kBlock, n), 2);
+    if (tmp.rows() < m || tmp.cols() != 2) tmp.resize(std::max(m, kBlock), 2);
     double loss = 0.0;
-    for (Index i0 = 0; i0 < n; i0 += kBlock) {
-      const Index m = std::min(kBlock, n - i0);
-      auto block = Z.block(i0, k * C, m, C);
-      auto top = s.b.col(0).head(m).array();
-      auto total = s.b.col(1).head(m).array();
-      auto label = [&](Index i) { return label_[std::size_t(rows ? (*rows)[std::size_t(i0 + i)] : i0 + i)]; };
-      top = block.col(0).array();
-      for (Index c = 1; c < C; ++c) top = top.max(block.col(c).array());
-      for (Index i = 0; i < m; ++i) loss += top[i] - block(i, label(i));
-      total.setZero();
-      for (Index c = 0; c < C; ++c) {
-        block.col(c).array() = (block.col(c).array() - top).exp();
-        total += block.col(c).array();
-      }
-      loss += total.log().sum();
-      total = total.inverse();
-      for (Index c = 0; c < C; ++c) block.col(c).array() *= total;
-      for (Index i = 0; i < m; ++i) {
-        const Index y = label(i);
-        double sum = 0.0;
-        for (Index c = 0; c < C; ++c) sum += c == y ? 0.0 : block(i, c);
-        block(i, y) = -sum;
-      }
+    auto block = Z.block(z0, k * C, m, C);
+    auto top = tmp.col(0).head(m).array();
+    auto total = tmp.col(1).head(m).array();
+    auto label = [&](Index i) { return label_[std::size_t(rows ? (*rows)[std::size_t(first + i)] : first + i)]; };
+    top = block.col(0).array();
+    for (Index c = 1; c < C; ++c) top = top.max(block.col(c).array());
+    for (Index i = 0; i < m; ++i) loss += top[i] - block(i, label(i));
+    total.setZero();
+    for (Index c = 0; c < C; ++c) {
+      block.col(c).array() = (block.col(c).array() - top).exp();
+      total += block.col(c).array();
+    }
+    loss += total.log().sum();
+    total = total.inverse();
+    for (Index c = 0; c < C; ++c) block.col(c).array() *= total;
+    for (Index i = 0; i < m; ++i) {
+      const Index y = label(i);
+      double sum = 0.0;
+      for (Index c = 0; c < C; ++c) sum += c == y ? 0.0 : block(i, c);
+      block(i, y) = -sum;
     }
     return loss;
   }

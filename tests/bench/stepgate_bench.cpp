@@ -63,6 +63,7 @@ struct Options {
   std::string json_path;
   std::set<std::string> only;
   bool quick = false;
+  bool peers = true;  // --no-peers: stepgate's own figures only (no numpy or PyTorch loop)
   std::string python = "/usr/bin/python3";
   fs::path source = STEPGATE_SOURCE_DIR;
   bool wants(const std::string& name) const { return only.empty() || only.count(name) > 0; }
@@ -159,6 +160,7 @@ std::optional<json> run_python(const Options& opt, const std::vector<std::string
 // `subset`: how many runs the peer times (0 = all); spread over the rates.
 std::vector<PeerResult> run_peers(const Options& opt, const Workload& w, const Measured& m, std::size_t subset,
                                   const fs::path& scratch) {
+  if (!opt.peers) return {};
   std::vector<std::size_t> chosen;
   if (subset == 0 || subset >= m.final_costs.size()) {
     for (std::size_t i = 0; i < m.final_costs.size(); ++i) chosen.push_back(i);
@@ -377,11 +379,12 @@ int main(int argc, char** argv) {
     if (a == "--json") opt.json_path = value();
     else if (a == "--only") opt.only.insert(value());
     else if (a == "--quick") opt.quick = true;
+    else if (a == "--no-peers") opt.peers = false;
     else if (a == "--python") opt.python = value();
     else if (a == "--source") opt.source = value();
     else if (a == "-h" || a == "--help") {
       std::printf("stepgate-bench [--json FILE] [--only small|medium|large|search|growth|gemm]... [--quick] "
-                  "[--python PATH] [--source DIR]\n");
+                  "[--no-peers] [--python PATH] [--source DIR]\n");
       return 0;
     } else {
       std::fprintf(stderr, "stepgate-bench: unknown argument '%s'\n", a.c_str());
