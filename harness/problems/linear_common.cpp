@@ -56,11 +56,17 @@ Vec LinearModel::start(std::uint64_t seed) const {
   return opt_.init_scale * standard_normal(rng, dim());
 }
 
-void sum_over_row_chunks(Index n, double weight, Vec& cost, Eigen::Map<Mat> grad, std::vector<Scratch::Rows>& chunks,
-                         const std::function<void(Scratch::Rows&, Index, Index)>& body) {
+void sum_over_row_blocks(Index n, Index block, double weight, Vec& cost, Eigen::Map<Mat> grad,
+                         std::vector<Scratch::Rows>& chunks, const std::function<void(Scratch::Rows&, Index, Index)>& body) {
   const Index count = std::max<Index>(1, (n + kChunkRows - 1) / kChunkRows);
   if (Index(chunks.size()) < count) chunks.resize(std::size_t(count));
-  auto one = [&](Index c) { body(chunks[std::size_t(c)], c * kChunkRows, std::min(kChunkRows, n - c * kChunkRows)); };
+  auto one = [&](Index c) {
+    Scratch::Rows& rows = chunks[std::size_t(c)];
+    rows.cost.setZero(cost.size());
+    rows.grad.setZero(grad.rows(), grad.cols());
+    const Index end = std::min(n, (c + 1) * kChunkRows);
+    for (Index i0 = c * kChunkRows; i0 < end; i0 += block) body(rows, i0, std::min(block, end - i0));
+  };
   if (count == 1) {
     one(0);
   } else {

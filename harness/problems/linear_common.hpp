@@ -25,14 +25,16 @@ void gather_rows(const Mat& X, std::span<const Index> rows, Mat& out);
 /// their partial sums are added, never depend on the number of threads.
 inline constexpr Index kChunkRows = 4096;
 
-/// Splits n rows into chunks of kChunkRows and calls body(chunk scratch, first row, rows) for
-/// each, in parallel on the caller's task arena (isolated: a thread waiting for its chunks
-/// takes no unrelated task, so one inside a call_once never re-enters it). The body sets its
-/// chunk's `cost` (K) and `grad` (the shape of `grad`) to partial sums over its rows; they are
-/// then added in chunk order: cost = weight·Σ cost_c, grad = weight·Σ grad_c. The result is
-/// the same bits for any number of threads. One chunk (n ≤ kChunkRows) runs inline.
-void sum_over_row_chunks(Index n, double weight, Vec& cost, Eigen::Map<Mat> grad, std::vector<Scratch::Rows>& chunks,
-                         const std::function<void(Scratch::Rows&, Index, Index)>& body);
+/// Splits n rows into chunks of kChunkRows, and each chunk into blocks of at most `block` rows,
+/// and calls body(chunk scratch, first row, rows) for each block, the
+/// blocks of a chunk in order. The chunks run in parallel on the caller's task arena (isolated:
+/// a thread waiting for its chunks takes no unrelated task, so one inside a call_once never
+/// re-enters it). Each chunk's `cost` (K) and `grad` (the shape of `grad`) start at 0 and the
+/// body adds its block's share to them; the chunks' sums are then added in chunk order:
+/// cost = weight·Σ cost_c, grad = weight·Σ grad_c, the same bits for any number of threads.
+/// One chunk (n ≤ kChunkRows) runs inline.
+void sum_over_row_blocks(Index n, Index block, double weight, Vec& cost, Eigen::Map<Mat> grad,
+                         std::vector<Scratch::Rows>& chunks, const std::function<void(Scratch::Rows&, Index, Index)>& body);
 
 /// Base of the three linear models. Parameters: a (d [+1]) x outputs matrix, column-major.
 class LinearModel : public Problem {

@@ -41,7 +41,7 @@ class Logistic final : public detail::LinearModel {
     const Index K = W.cols(), n = Xaug_.rows(), p = dim();
     out.cost.resize(K);
     out.grad.resize(p, K);
-    // Chunks of rows in parallel (sum_over_row_chunks), and within a chunk blocks of kBlock
+    // Chunks of rows in parallel (sum_over_row_blocks), and within a chunk blocks of kBlock
     // rows: a block's margins for all lanes in one product, its loss and residuals, then its
     // share of the gradient, while the block of X is still in cache, so X is read from memory
     // once per evaluation. Per lane and block, in vectorised array expressions (Eigen's
@@ -55,31 +55,26 @@ class Logistic final : public detail::LinearModel {
     // log(u) − ((u − 1) − e)/u with u = 1 + e, which corrects the rounding of u (exact to
     // O(eps²)), since Eigen vectorises log but not log1p for doubles.
     constexpr Index kBlock = 512;  // rows per block: its X (512 x p), z, t, E1 and E3 stay in L2
-    detail::sum_over_row_chunks(n, data_weight(), out.cost, Eigen::Map<Mat>(out.grad.data(), p, K), s.chunks,
-                                [&](Scratch::Rows& c, Index r0, Index rows) {
-      c.cost.setZero(K);
-      c.grad.setZero(p, K);
-      if (c.z.rows() != kBlock || c.z.cols() != K) c.z.resize(kBlock, K);
-      if (c.t.rows() != kBlock || c.t.cols() != 3) c.t.resize(kBlock, 3);
-      for (Index i0 = r0; i0 < r0 + rows; i0 += kBlock) {
-        const Index m = std::min(kBlock, r0 + rows - i0);
-        const auto X = Xaug_.middleRows(i0, m);
-        auto Z = c.z.topRows(m);
-        Z.noalias() = X * W;
-        const auto sign = sign_.segment(i0, m).array();
-        auto t = c.t.col(0).head(m).array();
-        auto e1 = c.t.col(1).head(m).array();
-        auto e3 = c.t.col(2).head(m).array();
-        for (Index k = 0; k < K; ++k) {
-          auto z = Z.col(k).array();
-          t = sign * z;
-          e1 = t.min(0.0).exp();
-          e3 = (-t.max(0.0)).exp();
-          c.cost[k] += (t.max(0.0) + (e1 + e3).log() - (((e1 + e3) - 1.0) - e1 * e3) / (e1 + e3)).sum();
-          z = sign * e1 / (e1 + e3);
-        }
-        c.grad.noalias() += X.transpose() * Z;
+    detail::sum_over_row_blocks(n, kBlock, data_weight(), out.cost, Eigen::Map<Mat>(out.grad.data(), p, K), s.chunks,
+                                [&](Scratch::Rows& c, Index i0, Index m) {
+      c.z.resize(kBlock, K);  // the same shape after the first call: no reallocation
+      c.t.resize(kBlock, 3);
+      const auto X = Xaug_.middleRows(i0, m);
+      auto Z = c.z.topRows(m);
+      Z.noalias() = X * W;
+      const auto sign = sign_.segment(i0, m).array();
+      auto t = c.t.col(0).head(m).array();
+      auto e1 = c.t.col(1).head(m).array();
+      auto e3 = c.t.col(2).head(m).array();
+      for (Index k = 0; k < K; ++k) {
+        auto z = Z.col(k).array();
+        t = sign * z;
+        e1 = t.min(0.0).exp();
+        e3 = (-t.max(0.0)).exp();
+        c.cost[k] += (t.max(0.0) + (e1 + e3).log() - (((e1 + e3) - 1.0) - e1 * e3) / (e1 + e3)).sum();
+        z = sign * e1 / (e1 + e3);
       }
+      c.grad.noalias() += X.transpose() * Z;
     });
     add_ridge(W, &out.cost, out.grad);
   }

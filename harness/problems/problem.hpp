@@ -45,7 +45,7 @@ struct Scratch {
   Mat a, b, c;
   Vec v;
   std::vector<Index> rows;
-  std::vector<Rows> chunks;  ///< one per chunk of rows (see detail::sum_over_row_chunks)
+  std::vector<Rows> chunks;  ///< one per chunk of rows (see detail::sum_over_row_blocks)
 };
 
 /// Result buffers of a batched evaluation (sized by the problem to K lanes).

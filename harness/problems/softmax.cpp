@@ -44,22 +44,17 @@ class Softmax final : public detail::LinearModel {
     out.cost.resize(K);
     out.grad.resize(dim(), K);
     // All lanes at once: W viewed as q x (C·K), so one product gives every logit. Chunks of
-    // rows in parallel (sum_over_row_chunks); within a chunk, blocks of kBlock rows: the
+    // rows in parallel (sum_over_row_blocks); within a chunk, blocks of kBlock rows: the
     // block's logits, its loss and residuals, then its share of the gradient while the block
     // of X is still in cache.
     Eigen::Map<const Mat> Wv(W.data(), q, C * K);
-    detail::sum_over_row_chunks(n, data_weight(), out.cost, Eigen::Map<Mat>(out.grad.data(), q, C * K), s.chunks,
-                                [&](Scratch::Rows& c, Index r0, Index rows) {
-      c.cost.setZero(K);
-      c.grad.setZero(q, C * K);
-      if (c.z.rows() != kBlock || c.z.cols() != C * K) c.z.resize(kBlock, C * K);
-      for (Index i0 = r0; i0 < r0 + rows; i0 += kBlock) {
-        const Index m = std::min(kBlock, r0 + rows - i0);
-        const auto X = Xaug_.middleRows(i0, m);
-        c.z.topRows(m).noalias() = X * Wv;
-        for (Index k = 0; k < K; ++k) c.cost[k] += residuals(c.z, 0, m, k, i0, nullptr, c.t);
-        c.grad.noalias() += X.transpose() * c.z.topRows(m);
-      }
+    detail::sum_over_row_blocks(n, kBlock, data_weight(), out.cost, Eigen::Map<Mat>(out.grad.data(), q, C * K), s.chunks,
+                                [&](Scratch::Rows& c, Index i0, Index m) {
+      c.z.resize(kBlock, C * K);  // the same shape after the first call: no reallocation
+      const auto X = Xaug_.middleRows(i0, m);
+      c.z.topRows(m).noalias() = X * Wv;
+      for (Index k = 0; k < K; ++k) c.cost[k] += residuals(c.z, 0, m, k, i0, nullptr, c.t);
+      c.grad.noalias() += X.transpose() * c.z.topRows(m);
     });
     add_ridge(W, &out.cost, out.grad);
   }
@@ -123,10 +118,10 @@ class Softmax final : public detail::LinearModel {
   /// vectorised array expression down one column (Eigen's packet exp and log). One
   /// exponentiation per logit: p_c = exp(z_c − top) / total, and logsumexp = top + log(total).
   /// p_y − 1 is written as −Σ_{c≠y} p_c (of the rounded p_c), which keeps its digits when
-  /// p_y ≈ 1. `tmp` is working memory (at least m x 2 after the call).
+  /// p_y ≈ 1. `tmp` is working memory (kBlock x 2 after the call); m <= kBlock.
   double residuals(Mat& Z, Index z0, Index m, Index k, Index first, const std::span<const Index>* rows, Mat& tmp) const {
     const Index C = outputs_;
-    if (tmp.rows() < m || tmp.cols() != 2) tmp.resize(std::max(m, kBlock), 2);
+    tmp.resize(kBlock, 2);  // m <= kBlock; the same shape after the first call
     double loss = 0.0;
     auto block = Z.block(z0, k * C, m, C);
     auto top = tmp.col(0).head(m).array();

@@ -1,4 +1,4 @@
-// Row-split evaluation (problems/linear_common: sum_over_row_chunks): logistic and softmax
+// Row-split evaluation (problems/linear_common: sum_over_row_blocks): logistic and softmax
 // split their rows into fixed chunks summed in parallel. Checked here on data of several chunks
 // and a ragged last one: the sums equal the textbook formula summed plainly in long double, the
 // bits do not depend on the number of threads, and a shared problem whose optimum is solved
