@@ -43,7 +43,11 @@ Theory theory_for(const Problem& problem, const Vec& start, StepRule rule, doubl
     t.mu = t.at_start.lambda_min;
   }
   t.predicted_blowup = predicted_blowup(rule, beta, t.L);
-  if (!std::isnan(t.predicted_blowup)) t.rule = rule_text(rule);
+  if (!std::isnan(t.predicted_blowup)) {
+    t.rule = rule_text(rule);
+    // A convex quadratic's Hessian is the same everywhere: the limit then predicts the blow-up too.
+    t.threshold = std::isnan(problem.quadratic_curvature_bound()) ? "local" : "quadratic";
+  }
   return t;
 }
 

@@ -22,6 +22,7 @@ struct Theory {
   double mu = kMissing;          ///< λ_min at the same point
   double predicted_blowup = kMissing;
   std::string rule;              ///< e.g. "2/L", "2(1+beta)/L"; "" when theory gives none
+  std::string threshold;         ///< CaseTheory::threshold: "quadratic", "local", "mean_square" or ""
 };
 
 /// Computes the Theory of a problem for a step rule. `start` is the runs' starting point.

@@ -108,7 +108,7 @@ const std::vector<NumberField<SeedSummary>>& seed_number_fields() {
 }
 
 const std::vector<TextField<CaseTheory>>& theory_text_fields() {
-  static const std::vector<TextField<CaseTheory>> fields = {{"rule", &CaseTheory::rule}, {"method", &CaseTheory::method}};
+  static const std::vector<TextField<CaseTheory>> fields = {{"rule", &CaseTheory::rule}, {"method", &CaseTheory::method}, {"threshold", &CaseTheory::threshold}};
   return fields;
 }
 

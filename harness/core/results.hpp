@@ -58,6 +58,12 @@ struct CaseTheory {
   double predicted_blowup = kMissing;  ///< NaN where theory gives no threshold
   std::string rule;                    ///< "2/L", "2(1+beta)/L", ... ; "" when none
   std::string method;                  ///< how λ was computed
+  /// What kind of threshold predicted_blowup is ("" when none): "quadratic" (the linear
+  /// stability limit of a convex quadratic: it bounds the edge and predicts the blow-up),
+  /// "local" (linearised at the optimum of a nonlinear loss: it bounds the edge only; such
+  /// losses may orbit rather than blow up above it), "mean_square" (a mini-batch method's
+  /// mean-square stability limit: a lower bound on the blow-up).
+  std::string threshold;
 };
 
 /// L, mu, predicted_blowup and the four λ of CaseTheory; and its rule and method.
