@@ -4,6 +4,9 @@
 #include <cmath>
 #include <fmt/format.h>
 
+#include "stepgate/analysis/noise.hpp"
+#include "stepgate/analysis/noisy_outcome.hpp"
+
 namespace stepgate {
 
 OutcomeMonitor::OutcomeMonitor(const OutcomeSettings& settings, bool has_optimum, long budget)
@@ -11,6 +14,13 @@ OutcomeMonitor::OutcomeMonitor(const OutcomeSettings& settings, bool has_optimum
   criterion_ = settings.criterion;
   if (criterion_ == Criterion::automatic) criterion_ = has_optimum ? Criterion::gap : Criterion::plateau;
   tol_ = settings.tolerance(criterion_);
+  whole_trace_ = criterion_ == Criterion::settled;
+}
+
+void OutcomeMonitor::read_as_noisy() {
+  noisy_ = whole_trace_ = true;
+  if (settings_.criterion == Criterion::automatic) criterion_ = Criterion::settled;
+  tol_ = settings_.tolerance(criterion_);
 }
 
 double OutcomeMonitor::progress_value(const TracePoint& p) const {
@@ -123,6 +133,24 @@ bool OutcomeMonitor::observe(const TracePoint& p) {
     if (value < min_value_) min_value_ = value;
     prev_value_ = value;
   }
+  if (whole_trace_) {
+    kept_.push_back(p);
+    // A network that blew up: its cost stays far above its start (a median of 5 ignores the
+    // single-step spikes of a minibatch loss).
+    if (!has_optimum_ && start > 0.0 && kept_.size() >= 5) {
+      double last[5];
+      for (std::size_t i = 0; i < 5; ++i) last[i] = kept_[kept_.size() - 5 + i].cost;
+      const double med = median_of(last);
+      if (med > settings_.rise_factor * start) {
+        decided_ = Classification{
+            Outcome::diverged, std::nullopt, overshoot(),
+            fmt::format("cost {:.3g} (median of the last 5 evaluations) > {:g} x its start {:.3g} at iteration {}",
+                        med, settings_.rise_factor, start, p.iter), std::nullopt};
+        return true;
+      }
+    }
+    return false;
+  }
   if (criterion_met(p)) {
     if (!stretch_start_) stretch_start_ = p.iter, stretch_length_ = 0;
     else ++stretch_length_;
@@ -181,7 +209,16 @@ bool OutcomeMonitor::observe(const TracePoint& p) {
 }
 
 Classification OutcomeMonitor::result() const {
-  if (decided_) return *decided_;
+  if (decided_) {
+    Classification c = *decided_;
+    if (noisy_ && c.outcome != Outcome::failed) {
+      std::vector<double> v;
+      for (const TracePoint& q : kept_) v.push_back(has_optimum_ ? q.gap : q.cost);
+      c.noise = noise_level_of(v);  // of the evaluations before the decision
+    }
+    return c;
+  }
+  if (whole_trace_) return classify_whole_trace(kept_, settings_, has_optimum_, criterion_, noisy_);
   std::string note;
   if (confirming_)
     note = fmt::format("; met from iteration {}, too late to confirm within the budget (needs {} more iterations)",
@@ -197,9 +234,19 @@ Classification OutcomeMonitor::result() const {
           fmt::format("budget used without a confirmed {} criterion{}", to_string(criterion_), note), std::nullopt};
 }
 
+void record_classification(const Classification& c, RunRecord& r) {
+  r.outcome = c.outcome;
+  r.iterations = c.iterations;
+  r.overshoot = c.overshoot;
+  r.noise = c.noise;
+  r.reason = c.reason;
+  r.confirmation = c.confirmation;
+}
+
 Classification classify(std::span<const TracePoint> trace, const OutcomeSettings& settings,
-                        bool has_optimum) {
+                        bool has_optimum, bool noisy) {
   OutcomeMonitor monitor(settings, has_optimum, trace.empty() ? -1 : trace.back().iter);
+  if (noisy) monitor.read_as_noisy();
   for (const TracePoint& p : trace)
     if (monitor.observe(p)) break;
   return monitor.result();

@@ -8,6 +8,7 @@
 #include <span>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "stepgate/core/outcome.hpp"
 #include "stepgate/core/outcome_settings.hpp"
@@ -22,6 +23,7 @@ struct Classification {
   double overshoot = 0.0;
   std::string reason;
   std::optional<Confirmation> confirmation;  ///< converged only
+  double noise = kMissing;  ///< the trace's noise level when read as noisy; NaN otherwise
 };
 
 /// Watches a run evaluation by evaluation and says when it is decided.
@@ -36,6 +38,13 @@ class OutcomeMonitor {
   /// `has_optimum`: J* is known, so gaps are given (criterion automatic → gap).
   /// `budget`: the run's last iteration; negative = not known (confirmation then never caps).
   OutcomeMonitor(const OutcomeSettings& settings, bool has_optimum, long budget = -1);
+
+  /// Reads the run as noisy (docs/design.md, "Noisy runs"); call before the first observe().
+  /// Only divergence is then decided live (non-finite, blowup_factor, and without J* a median of
+  /// the last 5 costs above rise_factor × the start); everything else is decided by
+  /// classify_whole_trace when the budget is used. The automatic criterion becomes `settled`.
+  /// The `settled` criterion is read this way even when the run is not noisy (noise level 0).
+  void read_as_noisy();
 
   /// Feeds one evaluation; returns true when the outcome is decided (diverged, or converged and
   /// confirmed, or the probe grew) and the run should stop.
@@ -88,12 +97,20 @@ class OutcomeMonitor {
   double proof_prev_ = kMissing;   // the criterion value at the previous evaluation
   long proof_prev_iter_ = -1;
   std::deque<double> window_;  // plateau: last w+1 costs
+  bool noisy_ = false;         // read_as_noisy()
+  bool whole_trace_ = false;   // decided at the end from kept_ (noisy, or the settled criterion)
+  std::vector<TracePoint> kept_;
   std::optional<Classification> decided_;
 };
 
+/// Writes a classification into its run's record (outcome, iterations, overshoot, noise,
+/// reason, confirmation).
+void record_classification(const Classification& c, RunRecord& r);
+
 /// Classifies a finished trace (the run is taken to have used its budget, the trace's last
-/// iteration, unless decided earlier). No probe: confirmation by the stretch alone.
+/// iteration, unless decided earlier). No probe: confirmation by the stretch alone. `noisy`:
+/// as OutcomeMonitor::read_as_noisy.
 Classification classify(std::span<const TracePoint> trace, const OutcomeSettings& settings,
-                        bool has_optimum);
+                        bool has_optimum, bool noisy = false);
 
 }  // namespace stepgate

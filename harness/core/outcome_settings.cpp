@@ -13,13 +13,14 @@ std::string_view to_string(Criterion c) {
     case Criterion::grad: return "grad";
     case Criterion::cost: return "cost";
     case Criterion::plateau: return "plateau";
+    case Criterion::settled: return "settled";
   }
   return "auto";
 }
 
 const std::vector<Criterion>& criteria() {
   using C = Criterion;
-  static const std::vector<C> all = {C::automatic, C::gap, C::grad, C::cost, C::plateau};
+  static const std::vector<C> all = {C::automatic, C::gap, C::grad, C::cost, C::plateau, C::settled};
   return all;
 }
 
@@ -29,6 +30,27 @@ const std::vector<std::string>& criterion_names() {
 }
 
 std::optional<Criterion> criterion_from_string(std::string_view s) { return value_named(criteria(), s); }
+
+std::string_view to_string(NoiseMode m) {
+  switch (m) {
+    case NoiseMode::automatic: return "auto";
+    case NoiseMode::on: return "on";
+    case NoiseMode::off: return "off";
+  }
+  return "auto";
+}
+
+const std::vector<NoiseMode>& noise_modes() {
+  static const std::vector<NoiseMode> all = {NoiseMode::automatic, NoiseMode::on, NoiseMode::off};
+  return all;
+}
+
+const std::vector<std::string>& noise_mode_names() {
+  static const std::vector<std::string> names = names_of(noise_modes());
+  return names;
+}
+
+std::optional<NoiseMode> noise_mode_from_string(std::string_view s) { return value_named(noise_modes(), s); }
 
 const std::vector<SettingField<OutcomeSettings>>& outcome_fields() {
   using O = OutcomeSettings;
@@ -42,6 +64,7 @@ const std::vector<SettingField<OutcomeSettings>>& outcome_fields() {
       {"confirm_factor", &O::confirm_factor, Range::closed(0, 100)},
       {"confirm_min", &O::confirm_min, Range::count_at_least(0)},
       {"probe", &O::probe},
+      {"rise_factor", &O::rise_factor, Range::above(1)},
   };
   return fields;
 }
@@ -59,6 +82,7 @@ double OutcomeSettings::tolerance(Criterion resolved) const {
   switch (resolved) {
     case Criterion::grad: return 1e-3;
     case Criterion::plateau: return 1e-8;
+    case Criterion::settled: return 0.1;
     default: return 1e-6;
   }
 }

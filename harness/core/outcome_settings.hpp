@@ -12,16 +12,36 @@
 namespace stepgate {
 
 enum class Criterion {
-  automatic,  ///< gap when J* is known, otherwise plateau
+  automatic,  ///< noisy runs: settled; otherwise gap when J* is known, else plateau
   gap,        ///< gap_k ≤ tol · gap_0
   grad,       ///< ‖g_k‖ ≤ tol · ‖g_0‖
   cost,       ///< J_k ≤ target
   plateau,    ///< (J_{k−w} − J_k) / |J_{k−w}| < tol over the last w evaluations
+  /// Noisy runs (docs/design.md, "Noisy runs"): the smoothed progress improved over the last
+  /// quarter of the run by at most tol · its whole improvement, and ends near its best.
+  settled,
 };
+
+/// Whether a run's trace is read as noisy (docs/design.md, "Noisy runs"): its noise level is
+/// estimated and the outcome rules read the smoothed trace.
+enum class NoiseMode {
+  automatic,  ///< on for mini-batch runs of built-in problems and for every command problem
+  on,
+  off,        ///< the deterministic rules of "Runs and outcomes"
+};
+std::string_view to_string(NoiseMode m);
+/// Whether a run is read as noisy: `on`, or `automatic` for a run that draws minibatches or
+/// comes from an external command (`stochastic`).
+inline bool reads_as_noisy(NoiseMode m, bool stochastic) {
+  return m == NoiseMode::on || (m == NoiseMode::automatic && stochastic);
+}
+std::optional<NoiseMode> noise_mode_from_string(std::string_view s);
+/// "auto", "on", "off".
+const std::vector<std::string>& noise_mode_names();
 
 std::string_view to_string(Criterion c);
 std::optional<Criterion> criterion_from_string(std::string_view s);
-/// "auto", "gap", "grad", "cost", "plateau".
+/// "auto", "gap", "grad", "cost", "plateau", "settled".
 const std::vector<std::string>& criterion_names();
 
 /// Settings of classification. Defaults and why:
@@ -29,7 +49,9 @@ struct OutcomeSettings {
   Criterion criterion = Criterion::automatic;
   /// Tolerance of the criterion; NaN = the criterion's default: gap 1e-6 (six decades below the
   /// starting gap, so slow modes must be resolved too, not just the stiff ones), grad 1e-3
-  /// (near a minimum gap ∝ ‖g‖², so 1e-3 in the gradient is about 1e-6 in the gap), plateau 1e-8.
+  /// (near a minimum gap ∝ ‖g‖², so 1e-3 in the gradient is about 1e-6 in the gap), plateau 1e-8,
+  /// settled 0.1 (an exponential approach to its level gains under 10% of its drop in the last
+  /// quarter once the run is at least two time constants long: 86% of the way there).
   double tol = kMissing;
   double target = kMissing;    ///< cost criterion: the cost to reach (required for it)
   long plateau_window = 10;    ///< plateau: evaluations compared (w)
@@ -62,12 +84,20 @@ struct OutcomeSettings {
   /// leaves nearly empty, exactly as a quadratic's start excites it. true by default; false
   /// leaves the stretch alone (cheaper, weaker).
   bool probe = true;
+  /// Noise handling (docs/design.md, "Noisy runs"); automatic by default.
+  NoiseMode noise = NoiseMode::automatic;
+  /// Noisy runs without a known optimum: a smoothed cost above rise_factor times its start has
+  /// diverged (a network that blew up). 10: a loss ten times its value at initialisation means
+  /// the weights were thrown far from any useful region; minibatch spikes are single steps,
+  /// which the smoothing removes.
+  double rise_factor = 10.0;
 
   /// The tolerance in force for the given criterion (resolves NaN to the default).
   double tolerance(Criterion resolved) const;
 };
 
-/// The numeric and yes/no settings (tol, target, plateau_window, ...; `criterion` is a word).
+/// The numeric and yes/no settings (tol, target, plateau_window, ...; `criterion` and `noise`
+/// are words).
 const std::vector<SettingField<OutcomeSettings>>& outcome_fields();
 
 /// Every problem with `o`, separated by "; "; empty when valid: each field in its range, and a

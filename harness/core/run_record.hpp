@@ -37,6 +37,9 @@ struct RunRecord {
   std::optional<Confirmation> confirmation;  ///< converged only: how it was confirmed
   long steps = 0;                 ///< iterations actually run (early exit makes it < budget)
   double overshoot = kMissing;    ///< Σ max(0, J_{k+1} − J_k) / (J_0 − min J) over the trace
+  /// The noise level of the progress values (gap, or cost without J*) when the run was read as
+  /// noisy (docs/design.md, "Noisy runs"), in the cost's units; NaN when it was not.
+  double noise = kMissing;
   std::vector<TracePoint> trace;  ///< every evaluation, in order
   Vec final_params;               ///< parameters at the last evaluation
   double wall_seconds = 0.0;      ///< not part of any comparison: timing only

@@ -26,7 +26,7 @@ double number_from_json(const JsonField& f, const RunRecordStyle& style) {
 const std::vector<NumberField<RunRecord>>& run_number_fields() {
   using R = RunRecord;
   static const std::vector<NumberField<R>> fields = {
-      {"rate", &R::rate}, {"overshoot", &R::overshoot}, {"wall_seconds", &R::wall_seconds}};
+      {"rate", &R::rate}, {"overshoot", &R::overshoot}, {"noise", &R::noise}, {"wall_seconds", &R::wall_seconds}};
   return fields;
 }
 

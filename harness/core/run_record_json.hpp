@@ -27,7 +27,7 @@ inline constexpr RunRecordStyle kJournalStyle{true, true, true, {}};
 nlohmann::json number_json(double x, const RunRecordStyle& style);
 double number_from_json(const JsonField& f, const RunRecordStyle& style);
 
-/// rate, overshoot, wall_seconds: the numbers of a run.
+/// rate, overshoot, noise, wall_seconds: the numbers of a run.
 const std::vector<NumberField<RunRecord>>& run_number_fields();
 /// seed_index, steps, log_lines: its counts. rng_seed (64 bits), outcome, reason,
 /// converged_at, confirmation, trace and final_params have their own shapes.

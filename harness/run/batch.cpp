@@ -67,6 +67,8 @@ std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& sp
 
   std::vector<OutcomeMonitor> monitors(rates.size(),
                                        OutcomeMonitor(settings.outcome, has_optimum, settings.budget));
+  if (reads_as_noisy(settings.outcome.noise, minibatch && spec.batch_size < problem.samples()))
+    for (OutcomeMonitor& m : monitors) m.read_as_noisy();
   if (settings.prove_slow && slow_proof_holds(spec)) {
     const double bound = problem.quadratic_curvature_bound();  // NaN: not a convex quadratic
     for (Index j = 0; j < K; ++j)
@@ -213,12 +215,7 @@ std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& sp
 
   for (std::size_t j = 0; j < records.size(); ++j) {
     if (failed[j]) continue;
-    const Classification c = monitors[j].result();
-    records[j].outcome = c.outcome;
-    records[j].iterations = c.iterations;
-    records[j].overshoot = c.overshoot;
-    records[j].reason = c.reason;
-    records[j].confirmation = c.confirmation;
+    record_classification(monitors[j].result(), records[j]);
   }
   return records;
 }

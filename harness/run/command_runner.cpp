@@ -155,6 +155,8 @@ struct CommandSession::Impl {
     s.index = index;
     s.id = next_id++;
     s.monitor = std::make_unique<OutcomeMonitor>(settings.outcome, has_optimum, settings.budget);
+    // A training program's log may be noisy (minibatch losses): docs/design.md, "Noisy runs".
+    if (reads_as_noisy(settings.outcome.noise, true)) s.monitor->read_as_noisy();
     s.started = Clock::now();
     return s;
   }
@@ -238,12 +240,7 @@ struct CommandSession::Impl {
       r.outcome = Outcome::failed;
       r.reason = fault + (stderr_tail.empty() ? std::string() : "; stderr: " + stderr_tail);
     } else {
-      const Classification cl = s.monitor->result();
-      r.outcome = cl.outcome;
-      r.iterations = cl.iterations;
-      r.overshoot = cl.overshoot;
-      r.reason = cl.reason;
-      r.confirmation = cl.confirmation;
+      record_classification(s.monitor->result(), r);
     }
     if (!s.out_dir.empty()) {
       std::error_code ec;

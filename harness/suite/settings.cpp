@@ -30,7 +30,7 @@ const std::vector<std::string>& rate_keys() {
 }
 
 const std::vector<std::string>& outcome_keys() {
-  static const std::vector<std::string> keys = keys_with({"criterion"}, outcome_fields());
+  static const std::vector<std::string> keys = keys_with({"criterion", "noise"}, outcome_fields());
   return keys;
 }
 
@@ -163,6 +163,8 @@ OutcomeSettings read_outcome(const Layers& outcome, OutcomeSettings o) {
   const auto criterion = outcome.find("criterion");
   if (criterion)
     o.criterion = *criterion_from_string(criterion->choice(criterion_names(), "criterion"));
+  if (const auto noise = outcome.find("noise"))
+    o.noise = *noise_mode_from_string(noise->choice(noise_mode_names(), "noise mode"));
   read_fields(outcome, outcome_fields(), o);
   if (o.criterion == Criterion::cost && !outcome.find("target"))
     criterion->fail(
