@@ -52,7 +52,13 @@ double noise_level(std::span<const double> v, std::span<const double> smoothed, 
   if (lag0 > 0.0 && lag1 < -0.8 * lag0) return 0.0;
   const double mad = median_of(dev);
   // 1.4826 = 1/Φ⁻¹(3/4): the MAD of a normal sample estimates its sd this way (Hampel 1974).
-  return std::isfinite(mad) ? 1.4826 * mad : 0.0;
+  const double sigma = std::isfinite(mad) ? 1.4826 * mad : 0.0;
+  // Scatter below 1e-9 of the trace's size is rounding (a converged deterministic run sitting at
+  // its last bits), not sampling: minibatch noise is many decades larger.
+  double size = 0.0;
+  for (double x : v)
+    if (std::isfinite(x)) size = std::max(size, std::abs(x));
+  return sigma > 1e-9 * size ? sigma : 0.0;
 }
 
 double noise_level_of(std::span<const double> v) {

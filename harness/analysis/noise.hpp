@@ -25,7 +25,8 @@ double median_of(std::span<const double> v);
 /// [h, n−1−h] (the MAD scaled to a normal's sd; robust to spikes). 0 when there are fewer than
 /// 5 interior points, and 0 for a trace whose interior is mostly monotone (no scatter to
 /// explain) or whose residuals alternate in sign (lag-1 correlation below −0.8: a 2-cycle of
-/// the iteration, which the rules must see as the swing it is).
+/// the iteration, which the rules must see as the swing it is), or at most 1e-9 of the largest
+/// |v| (rounding at a converged run's last bits, not sampling).
 double noise_level(std::span<const double> v, std::span<const double> smoothed, int h);
 
 /// noise_level of v against its running median of half-width smoothing_half_width(v.size()).

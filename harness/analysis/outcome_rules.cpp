@@ -218,7 +218,26 @@ Classification OutcomeMonitor::result() const {
     }
     return c;
   }
-  if (whole_trace_) return classify_whole_trace(kept_, settings_, has_optimum_, criterion_, noisy_);
+  if (whole_trace_) {
+    // A noisy run whose log shows no scatter, with a criterion the live rules can read (any but
+    // settled, and the automatic one only with J*), is classified by the live rules: a noise
+    // level of 0 changes nothing (docs/design.md, "Noisy runs").
+    const bool live_can_read = settings_.criterion != Criterion::settled &&
+                               (has_optimum_ || settings_.criterion != Criterion::automatic);
+    if (noisy_ && live_can_read) {
+      std::vector<double> v;
+      for (const TracePoint& q : kept_) v.push_back(has_optimum_ ? q.gap : q.cost);
+      if (noise_level_of(v) == 0.0) {
+        OutcomeMonitor live(settings_, has_optimum_, budget_);
+        for (const TracePoint& q : kept_)
+          if (live.observe(q)) break;
+        Classification c = live.result();
+        c.noise = 0.0;
+        return c;
+      }
+    }
+    return classify_whole_trace(kept_, settings_, has_optimum_, criterion_, noisy_);
+  }
   std::string note;
   if (confirming_)
     note = fmt::format("; met from iteration {}, too late to confirm within the budget (needs {} more iterations)",

@@ -58,7 +58,7 @@ double fall(double x) { return 0.45 + 1.85 * std::exp(-12.0 * x); }  // 2.3 to a
 
 }  // namespace
 
-TEST_CASE("running median: monotone stretches pass through; a 2-cycle is not taken for noise", "[noise]") {
+TEST_CASE("running median: monotone stretches pass through - a 2-cycle is not taken for noise", "[noise]") {
   std::vector<double> out;
   const std::vector<double> mono = {9, 7, 6, 4, 3, 3, 2, 1};
   running_median(mono, 2, out);
@@ -103,7 +103,7 @@ TEST_CASE("noise level: 0 for deterministic decay, close to the scatter's sd oth
   }
 }
 
-TEST_CASE("gated rises: gate 0 is the sum of rises; rises within the gate count for nothing", "[noise]") {
+TEST_CASE("gated rises: gate 0 is the sum of rises - rises within the gate count for nothing", "[noise]") {
   const std::vector<double> v = {5, 4, 4.5, 3, 3.2, 3.1, 6, 2};
   CHECK(gated_rises(v, 0.0) == Approx(0.5 + 0.2 + 2.9));
   CHECK(gated_rises(v, 0.3) == Approx(0.5 + 3.0));  // 3 -> 3.2 is within the gate
@@ -113,7 +113,7 @@ TEST_CASE("gated rises: gate 0 is the sum of rises; rises within the gate count 
   CHECK(gated_rises(creep, 0.25) == Approx(0.3));
 }
 
-TEST_CASE("noisy: a minibatch loss that falls to a level converges (settled); read raw it oscillates", "[noise]") {
+TEST_CASE("noisy: a minibatch loss that falls to a level converges (settled) - read raw it oscillates", "[noise]") {
   const auto t = noisy_trace(fall, 0.15, 240, 11);
   const Classification raw = classify(t, OutcomeSettings{}, false, false);
   CHECK(raw.outcome == Outcome::oscillating);  // the overshoot of scatter alone, as before noise handling
@@ -174,7 +174,7 @@ TEST_CASE("noisy: a loss that degrades after its best oscillates", "[noise]") {
   CHECK(c.outcome == Outcome::oscillating);
 }
 
-TEST_CASE("noisy: non-finite and far rises diverge live; nothing else stops the run early", "[noise]") {
+TEST_CASE("noisy: non-finite and far rises diverge live - nothing else stops the run early", "[noise]") {
   OutcomeSettings s;
   OutcomeMonitor m(s, false, 239);
   m.read_as_noisy();
@@ -237,4 +237,23 @@ TEST_CASE("noise off and deterministic traces: the live rules, unchanged", "[noi
   CHECK(as_noisy.noise == 0.0);
   CHECK(as_noisy.outcome == Outcome::converged);
   CHECK(as_noisy.overshoot == before.overshoot);
+}
+
+TEST_CASE("noisy with J* and no scatter: the live rules decide, reason and iterations alike", "[noise]") {
+  OutcomeSettings s;
+  s.confirm_min = 20;
+  for (double ratio : {0.9, 0.99, 0.999}) {
+    std::vector<TracePoint> t;
+    for (int k = 0; k <= 3000; ++k) {
+      const double g = std::pow(ratio, k);
+      t.push_back({k, 1.0 + g, g, std::sqrt(g)});
+    }
+    const Classification live = classify(t, s, true, false);
+    const Classification read_noisy = classify(t, s, true, true);
+    INFO(live.reason);
+    CHECK(read_noisy.outcome == live.outcome);
+    CHECK(read_noisy.iterations == live.iterations);
+    CHECK(read_noisy.reason == live.reason);
+    CHECK(read_noisy.noise == 0.0);
+  }
 }
