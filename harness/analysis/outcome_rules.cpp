@@ -17,8 +17,27 @@ OutcomeMonitor::OutcomeMonitor(const OutcomeSettings& settings, bool has_optimum
   whole_trace_ = criterion_ == Criterion::settled;
 }
 
+namespace {
+
+// The live rules can judge a run by any criterion but settled, and by the automatic one only
+// with J* (gap): without J* it would mean a relative plateau of 1e-8, which no log meets.
+bool live_rules_can_judge(const OutcomeSettings& s, bool has_optimum) {
+  return s.criterion != Criterion::settled && (has_optimum || s.criterion != Criterion::automatic);
+}
+
+double noise_of_progress(const std::vector<TracePoint>& points, bool has_optimum) {
+  std::vector<double> v;
+  v.reserve(points.size());
+  for (const TracePoint& q : points) v.push_back(has_optimum ? q.gap : q.cost);
+  return noise_level_of(v);
+}
+
+}  // namespace
+
 void OutcomeMonitor::read_as_noisy() {
   noisy_ = whole_trace_ = true;
+  if (live_rules_can_judge(settings_, has_optimum_))
+    live_ = std::make_shared<OutcomeMonitor>(settings_, has_optimum_, budget_);
   if (settings_.criterion == Criterion::automatic) criterion_ = Criterion::settled;
   tol_ = settings_.tolerance(criterion_);
 }
@@ -135,6 +154,14 @@ bool OutcomeMonitor::observe(const TracePoint& p) {
   }
   if (whole_trace_) {
     kept_.push_back(p);
+    if (live_ && live_->observe(p)) {
+      if (noise_of_progress(kept_, has_optimum_) == 0.0) {
+        decided_ = live_->result();
+        decided_->noise = 0.0;
+        return true;
+      }
+      live_.reset();  // scatter: the noisy rules decide at the end
+    }
     // A network that blew up: its cost stays far above its start (a median of 5 ignores the
     // single-step spikes of a minibatch loss).
     if (!has_optimum_ && start > 0.0 && kept_.size() >= 5) {
@@ -211,23 +238,15 @@ bool OutcomeMonitor::observe(const TracePoint& p) {
 Classification OutcomeMonitor::result() const {
   if (decided_) {
     Classification c = *decided_;
-    if (noisy_ && c.outcome != Outcome::failed) {
-      std::vector<double> v;
-      for (const TracePoint& q : kept_) v.push_back(has_optimum_ ? q.gap : q.cost);
-      c.noise = noise_level_of(v);  // of the evaluations before the decision
-    }
+    if (noisy_ && c.outcome != Outcome::failed) c.noise = noise_of_progress(kept_, has_optimum_);
     return c;
   }
   if (whole_trace_) {
     // A noisy run whose log shows no scatter, with a criterion the live rules can read (any but
     // settled, and the automatic one only with J*), is classified by the live rules: a noise
     // level of 0 changes nothing (docs/design.md, "Noisy runs").
-    const bool live_can_read = settings_.criterion != Criterion::settled &&
-                               (has_optimum_ || settings_.criterion != Criterion::automatic);
-    if (noisy_ && live_can_read) {
-      std::vector<double> v;
-      for (const TracePoint& q : kept_) v.push_back(has_optimum_ ? q.gap : q.cost);
-      if (noise_level_of(v) == 0.0) {
+    if (noisy_ && live_rules_can_judge(settings_, has_optimum_)) {
+      if (noise_of_progress(kept_, has_optimum_) == 0.0) {
         OutcomeMonitor live(settings_, has_optimum_, budget_);
         for (const TracePoint& q : kept_)
           if (live.observe(q)) break;

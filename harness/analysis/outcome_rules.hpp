@@ -4,6 +4,7 @@
 #pragma once
 #include <cstddef>
 #include <deque>
+#include <memory>
 #include <optional>
 #include <span>
 #include <string>
@@ -98,6 +99,9 @@ class OutcomeMonitor {
   long proof_prev_iter_ = -1;
   std::deque<double> window_;  // plateau: last w+1 costs
   bool noisy_ = false;         // read_as_noisy()
+  // Noisy runs that the live rules can judge: they run beside, and their decision stands when
+  // the log has shown no scatter up to it (the run then stops as early as it always did).
+  std::shared_ptr<OutcomeMonitor> live_;
   bool whole_trace_ = false;   // decided at the end from kept_ (noisy, or the settled criterion)
   std::vector<TracePoint> kept_;
   std::optional<Classification> decided_;
