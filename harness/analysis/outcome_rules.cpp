@@ -34,9 +34,10 @@ double noise_of_progress(const std::vector<TracePoint>& points, bool has_optimum
 
 }  // namespace
 
-void OutcomeMonitor::read_as_noisy() {
+void OutcomeMonitor::read_as_noisy(bool may_be_deterministic) {
   noisy_ = whole_trace_ = true;
-  if (live_rules_can_judge(settings_, has_optimum_))
+  zero_noise_is_live_ = may_be_deterministic && live_rules_can_judge(settings_, has_optimum_);
+  if (zero_noise_is_live_)
     live_ = std::make_shared<OutcomeMonitor>(settings_, has_optimum_, budget_);
   if (settings_.criterion == Criterion::automatic) criterion_ = Criterion::settled;
   tol_ = settings_.tolerance(criterion_);
@@ -245,7 +246,7 @@ Classification OutcomeMonitor::result() const {
     // A noisy run whose log shows no scatter, with a criterion the live rules can read (any but
     // settled, and the automatic one only with J*), is classified by the live rules: a noise
     // level of 0 changes nothing (docs/design.md, "Noisy runs").
-    if (noisy_ && live_rules_can_judge(settings_, has_optimum_)) {
+    if (zero_noise_is_live_) {
       if (noise_of_progress(kept_, has_optimum_) == 0.0) {
         OutcomeMonitor live(settings_, has_optimum_, budget_);
         for (const TracePoint& q : kept_)

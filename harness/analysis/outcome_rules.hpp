@@ -45,7 +45,10 @@ class OutcomeMonitor {
   /// the last 5 costs above rise_factor × the start); everything else is decided by
   /// classify_whole_trace when the budget is used. The automatic criterion becomes `settled`.
   /// The `settled` criterion is read this way even when the run is not noisy (noise level 0).
-  void read_as_noisy();
+  /// `may_be_deterministic`: the log may have no scatter at all (a command: a full-batch
+  /// trainer); then, where the live rules can judge it, a noise level of 0 leaves the decision
+  /// to them. A built-in minibatch run is stochastic by construction: false.
+  void read_as_noisy(bool may_be_deterministic = true);
 
   /// Feeds one evaluation; returns true when the outcome is decided (diverged, or converged and
   /// confirmed, or the probe grew) and the run should stop.
@@ -99,6 +102,7 @@ class OutcomeMonitor {
   long proof_prev_iter_ = -1;
   std::deque<double> window_;  // plateau: last w+1 costs
   bool noisy_ = false;         // read_as_noisy()
+  bool zero_noise_is_live_ = false;  // read_as_noisy(may_be_deterministic)
   // Noisy runs that the live rules can judge: they run beside, and their decision stands when
   // the log has shown no scatter up to it (the run then stops as early as it always did).
   std::shared_ptr<OutcomeMonitor> live_;

@@ -68,7 +68,7 @@ std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& sp
   std::vector<OutcomeMonitor> monitors(rates.size(),
                                        OutcomeMonitor(settings.outcome, has_optimum, settings.budget));
   if (reads_as_noisy(settings.outcome.noise, minibatch && spec.batch_size < problem.samples()))
-    for (OutcomeMonitor& m : monitors) m.read_as_noisy();
+    for (OutcomeMonitor& m : monitors) m.read_as_noisy(false);  // minibatches: stochastic by construction
   if (settings.prove_slow && slow_proof_holds(spec)) {
     const double bound = problem.quadratic_curvature_bound();  // NaN: not a convex quadratic
     for (Index j = 0; j < K; ++j)
