@@ -130,9 +130,10 @@ void Gate::compare_range(const CaseResult& c, const BaselineCase& b) {
   }
   if (!std::isnan(b.best_rate) && !std::isnan(s.best_rate)) {
     // best_moved is a factor already. A move by the factor itself warns: the rate may move by
-    // less (the 1e-12 absorbs the rounding of a ratio such as 0.6 / 0.3).
-    const double allowed = std::log(g.best_moved);
-    const bool moved = log_move(b.best_rate, s.best_rate) >= allowed - 1e-12;
+    // less (the 1e-12 absorbs the rounding of a ratio such as 0.6 / 0.3). An unchanged rate never
+    // warns, even at best_moved 1.
+    const double allowed = std::log(g.best_moved), move = log_move(b.best_rate, s.best_rate);
+    const bool moved = move > 0.0 && move >= allowed - 1e-12;
     add(c.id, Rule::best_moved, moved ? Severity::warn : Severity::pass,
         fmt::format("best rate {} -> {} ({}; allowed less than {} = best_moved {})", num(b.best_rate), num(s.best_rate),
                     factor_text(b.best_rate, s.best_rate), either_way_text(allowed), num(g.best_moved)),

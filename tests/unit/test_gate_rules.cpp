@@ -165,6 +165,12 @@ TEST_CASE("best_moved: warns when the best rate moved by the factor or more, eit
   c.summary.best_rate = 0.8;  // factor 2.67
   c.gate.best_moved = 3.0;
   CHECK(severity_of(c, Rule::best_moved, &b) == Severity::pass);
+  // At best_moved 1 any move warns, and an unchanged best rate still passes.
+  c.gate.best_moved = 1.0;
+  CHECK(severity_of(c, Rule::best_moved, &b) == Severity::warn);
+  CaseResult same = ranged_case();
+  same.gate.best_moved = 1.0;
+  CHECK(severity_of(same, Rule::best_moved, &b) == Severity::pass);
 }
 
 TEST_CASE("pinned_headroom: unsafe, no range, below the floor, or too close to the edge", "[gate]") {
