@@ -16,12 +16,15 @@ enum class Severity { pass, warn, fail };
 std::string_view to_string(Severity s);
 
 struct GateTolerances {
-  /// Edge moved: |edge/edge_base − 1| beyond this, plus the search precision and the seed
-  /// spread of both runs, fails. 0.05: a 5% move of the divergence edge is a real change.
+  /// Edge moved: a move by more than the factor (1 + edge_moved)(1 + search precision), either
+  /// way (|log(edge/edge_base)| against its log), fails; seed spreads add nothing (the seeds are
+  /// the same in both runs). 0.05: a 5% move of the divergence edge is a real change.
   double edge_moved = 0.05;
-  /// Floor moved (relative, plus precision): warns. Floors are softer (budget-dependent).
+  /// Floor moved by more than the factor (1 + floor_moved)(1 + precision), either way: warns.
+  /// Floors are softer (budget-dependent).
   double floor_moved = 0.25;
-  /// Best rate moved by more than this factor (either way) warns. 2: beyond one grid step.
+  /// Best rate moved by this factor or more (either way) warns. 2: a halving or a doubling; the
+  /// best rate is refined between grid neighbours, so an unchanged case moves by less.
   double best_moved = 2.0;
   /// Required headroom: the pinned rate must satisfy floor <= pinned <= edge / pinned_headroom.
   /// 1.5: common practice keeps a shipped rate well below the divergence edge.
@@ -30,8 +33,8 @@ struct GateTolerances {
   double pinned_iterations = 0.25;
   /// Minimum LRE (significant digits) required against published reference values. 6.
   double min_lre = 6.0;
-  /// Predicted and measured blow-up disagree by more than this factor on a built-in problem:
-  /// fails (often a gradient scaled wrongly). 1.25.
+  /// Predicted threshold and measured edge (gd) or blow-up (convex quadratics) disagree by more
+  /// than this factor, either way: fails (often a gradient scaled wrongly). 1.25.
   double theory = 1.25;
   /// One-sided theory rule: where theory gives a threshold, an edge above
   /// predicted × (1 + precision + theory_slack) fails, because no rate above the local

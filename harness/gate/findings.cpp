@@ -6,6 +6,9 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/gate/moves.hpp"
+#include "stepgate/gate/theory_rule.hpp"
+
 namespace stepgate {
 
 std::string_view to_string(Rule r) {
@@ -50,16 +53,6 @@ std::string change(double base, double now) {
   return fmt::format("{} -> {} ({:+.1f}%)", num(base), num(now), 100.0 * (now / base - 1.0));
 }
 
-}  // namespace
-
-double ragged_move(double base_lo, double base_hi, double now_lo, double now_hi) {
-  if (now_lo > base_hi) return now_lo / base_hi - 1.0;
-  if (now_hi < base_lo) return 1.0 - now_hi / base_lo;
-  return 0.0;
-}
-
-namespace {
-
 class Gate {
  public:
   Gate(const Results& r, const Baseline* b) : results_(r), baseline_(b) {}
@@ -80,13 +73,20 @@ class Gate {
   GateReport report_;
 };
 
-// A relative move of a located boundary, allowing for the search precision and the seed
-// spread of both runs: a re-run with the same seeds moves by 0; other seeds move within the spread.
+// Moves of a located rate as factors (gate/moves.hpp), against allowances that are factors too,
+// so that a halving and a doubling are the same size (docs/design.md, "Gate").
+//
+// The edge's allowance is the user's tolerance times the search's precision and nothing more:
+// each edge is the lower end of a bracket at most 1 + precision wide that holds the true edge,
+// so two searches of an unchanged edge differ by less than that factor. The seed spread widens
+// nothing: the edge is the minimum over the suite's seeds, the same seeds in both runs (they are
+// coordinates of the suite), so an unchanged case moves by 0 whatever the spread. The spread is
+// shown beside the move.
 void Gate::compare_range(const CaseResult& c, const BaselineCase& b) {
   const CaseSummary& s = c.summary;
   const GateTolerances& g = c.gate;
-  const double precision = std::isnan(s.precision) ? 0.0 : s.precision;
-  auto spread = [](double v) { return std::isnan(v) ? 0.0 : std::max(0.0, v - 1.0); };
+  const double precision = std::max(std::isnan(s.precision) ? 0.0 : s.precision, std::isnan(b.precision) ? 0.0 : b.precision);
+  const std::string with_precision = precision > 0.0 ? fmt::format(" with precision {}", num(precision)) : "";
   if (std::isnan(b.edge) && std::isnan(s.edge)) {
     add(c.id, Rule::edge_moved, Severity::pass, "no safe rate, as in the baseline");
   } else if (std::isnan(s.edge)) {
@@ -96,7 +96,7 @@ void Gate::compare_range(const CaseResult& c, const BaselineCase& b) {
     add(c.id, Rule::edge_moved, Severity::warn,
         fmt::format("a safe range appeared (edge {}); the baseline had none", num(s.edge)), b.edge, s.edge);
   } else {
-    const double allowed = g.edge_moved + precision + spread(s.edge_spread) + spread(b.edge_spread);
+    const double allowed = tolerance_log(g.edge_moved) + tolerance_log(precision);
     // Ragged zones: where outcomes alternate above the edge, an edge anywhere in [edge,
     // ragged_top] of either side is the same picture, so the move is measured between the zones.
     const double b_top = std::isnan(b.ragged_top) ? b.edge : std::max(b.edge, b.ragged_top);
@@ -105,22 +105,38 @@ void Gate::compare_range(const CaseResult& c, const BaselineCase& b) {
     const bool ragged = b_top > b.edge || s_top > s.edge;
     std::string zones;
     if (ragged)
-      zones = fmt::format("; ragged zones: baseline [{}, {}], current [{}, {}], {} apart", num(b.edge), num(b_top),
-                          num(s.edge), num(s_top), moved == 0.0 ? "overlapping" : fmt::format("{:.1f}%", 100.0 * moved));
+      zones = fmt::format("; ragged zones: baseline [{}, {}], current [{}, {}], {}", num(b.edge), num(b_top), num(s.edge),
+                          num(s_top), moved == 0.0 ? "overlapping" : fmt::format("a factor {:.4g} apart", std::exp(moved)));
+    auto spread_of = [](double v) { return std::isnan(v) ? 1.0 : v; };
+    std::string spreads;
+    if (spread_of(b.edge_spread) > 1.0 || spread_of(s.edge_spread) > 1.0)
+      spreads = fmt::format("; seed spread ×{:.4g} in the baseline, ×{:.4g} now: no allowance, the seeds are the same",
+                            spread_of(b.edge_spread), spread_of(s.edge_spread));
     add(c.id, Rule::edge_moved, moved > allowed ? Severity::fail : Severity::pass,
-        fmt::format("edge {} (allowed +-{:.1f}%){}", change(b.edge, s.edge), 100.0 * allowed, zones), b.edge, s.edge);
+        fmt::format("edge {} -> {} ({}{}; allowed {} = edge_moved {}{}{})", num(b.edge), num(s.edge),
+                    factor_text(b.edge, s.edge), zones, either_way_text(allowed), num(g.edge_moved), with_precision,
+                    spreads),
+        b.edge, s.edge);
   }
   if (!std::isnan(b.floor) && !std::isnan(s.floor)) {
-    const double allowed = g.floor_moved + precision;
-    const double moved = std::abs(s.floor / b.floor - 1.0);
+    // Floors are located to the same precision as edges; they are softer (budget-dependent), so
+    // a move only warns.
+    const double allowed = tolerance_log(g.floor_moved) + tolerance_log(precision);
+    const double moved = log_move(b.floor, s.floor);
     add(c.id, Rule::floor_moved, moved > allowed ? Severity::warn : Severity::pass,
-        fmt::format("floor {} (allowed +-{:.1f}%)", change(b.floor, s.floor), 100.0 * allowed), b.floor, s.floor);
+        fmt::format("floor {} -> {} ({}; allowed {} = floor_moved {}{})", num(b.floor), num(s.floor),
+                    factor_text(b.floor, s.floor), either_way_text(allowed), num(g.floor_moved), with_precision),
+        b.floor, s.floor);
   }
   if (!std::isnan(b.best_rate) && !std::isnan(s.best_rate)) {
-    const double factor = std::max(s.best_rate / b.best_rate, b.best_rate / s.best_rate);
-    add(c.id, Rule::best_moved, factor > g.best_moved ? Severity::warn : Severity::pass,
-        fmt::format("best rate {} (factor {:.2f}, allowed {:.2f})", change(b.best_rate, s.best_rate), factor,
-                    g.best_moved),
+    // best_moved is a factor already. A move by the factor itself warns: the rate may move by
+    // less (the 1e-12 absorbs the rounding of a ratio such as 0.6 / 0.3). An unchanged rate never
+    // warns, even at best_moved 1.
+    const double allowed = std::log(g.best_moved), move = log_move(b.best_rate, s.best_rate);
+    const bool moved = move > 0.0 && move >= allowed - 1e-12;
+    add(c.id, Rule::best_moved, moved ? Severity::warn : Severity::pass,
+        fmt::format("best rate {} -> {} ({}; allowed less than {} = best_moved {})", num(b.best_rate), num(s.best_rate),
+                    factor_text(b.best_rate, s.best_rate), either_way_text(allowed), num(g.best_moved)),
         b.best_rate, s.best_rate);
   }
   if (b.data_sha256 != c.data_sha256)
@@ -176,50 +192,7 @@ void Gate::reference(const CaseResult& c) {
 }
 
 void Gate::theory(const CaseResult& c) {
-  const double predicted = c.theory.predicted_blowup, measured = c.summary.blowup;
-  if (std::isnan(predicted)) return;
-  // One-sided: no rate above the local stability limit can converge, so an edge above it is
-  // wrong whatever the blow-up says.
-  const double precision = std::isnan(c.summary.precision) ? 0.0 : c.summary.precision;
-  const double limit = predicted * (1.0 + precision + c.gate.theory_slack);
-  if (!std::isnan(c.summary.edge) && c.summary.edge > limit) {
-    add(c.id, Rule::theory, Severity::fail,
-        fmt::format("edge {} lies above the stability limit {} by {} ({:+.1f}%; allowed up to {}): no rate above it "
-                    "can converge, so runs stopped before they showed their instability, or a gradient or the "
-                    "curvature is scaled wrongly",
-                    num(c.summary.edge), num(predicted), c.theory.rule, 100.0 * (c.summary.edge / predicted - 1.0),
-                    num(limit)),
-        predicted, c.summary.edge);
-    return;
-  }
-  double top = 0.0;
-  for (const StoredRun& r : c.runs) top = std::max(top, r.record.rate);
-  if (std::isnan(measured)) {
-    // Losses that grow only linearly far from the optimum (logistic, softmax) do not blow up
-    // above the threshold: the iteration orbits instead. There the threshold bounds the edge.
-    const double edge = c.summary.edge;
-    if (!std::isnan(edge)) {
-      const double factor = std::max(edge / predicted, predicted / edge);
-      add(c.id, Rule::theory, factor > c.gate.theory ? Severity::fail : Severity::pass,
-          fmt::format("no run diverged up to {}; edge {} vs predicted threshold {} by {} (factor {:.3f}, allowed {:.2f})",
-                      num(top), num(edge), num(predicted), c.theory.rule, factor, c.gate.theory),
-          predicted, edge);
-      return;
-    }
-    const bool reachable = predicted * c.gate.theory <= top;
-    add(c.id, Rule::theory, reachable ? Severity::fail : Severity::pass,
-        reachable ? fmt::format("theory ({}) predicts blow-up at {}, but no run diverged up to {} and none converged",
-                                c.theory.rule, num(predicted), num(top))
-                  : fmt::format("theory ({}) predicts blow-up at {}, above the highest rate run ({})", c.theory.rule,
-                                num(predicted), num(top)),
-        predicted, measured);
-    return;
-  }
-  const double factor = std::max(measured / predicted, predicted / measured);
-  add(c.id, Rule::theory, factor > c.gate.theory ? Severity::fail : Severity::pass,
-      fmt::format("blow-up measured {} vs predicted {} by {} (factor {:.3f}, allowed {:.2f})", num(measured),
-                  num(predicted), c.theory.rule, factor, c.gate.theory),
-      predicted, measured);
+  if (std::optional<Finding> f = theory_finding(c)) report_.findings.push_back(std::move(*f));
 }
 
 GateReport Gate::apply() {

@@ -8,18 +8,19 @@
 #include "stepgate/core/gate_tolerances.hpp"
 #include "stepgate/core/results.hpp"
 #include "stepgate/gate/baseline.hpp"
+#include "stepgate/gate/moves.hpp"
 
 namespace stepgate {
 
 /// The rules, by the names reports and JUnit use.
 enum class Rule {
-  edge_moved,          ///< edge moved beyond tolerance + precision + seed spread       (fail)
-  floor_moved,         ///< floor moved beyond tolerance + precision                     (warn)
-  best_moved,          ///< best rate moved by more than a factor                         (warn)
+  edge_moved,          ///< edge moved by more than a factor (1+edge_moved)(1+precision)   (fail)
+  floor_moved,         ///< floor moved by more than a factor (1+floor_moved)(1+precision) (warn)
+  best_moved,          ///< best rate moved by a factor best_moved or more                 (warn)
   pinned_headroom,     ///< pinned rate outside [floor, edge / pinned_headroom] or unsafe    (fail)
   pinned_iterations,   ///< iterations at the pinned rate grew beyond tolerance           (fail)
   min_lre,    ///< min LRE below the requirement                                 (fail)
-  theory,              ///< predicted and measured blow-up (or edge, when nothing blew up) disagree (fail)
+  theory,              ///< predicted threshold and measured edge or blow-up disagree, by threshold kind (fail)
   case_presence,       ///< case added (warn) or missing (fail); also "could not be run"
   data_changed,        ///< data or suite SHA-256 differs from the baseline              (warn)
 };
@@ -36,7 +37,7 @@ struct Finding {
   std::string case_id;
   Rule rule = Rule::edge_moved;
   Severity severity = Severity::pass;
-  std::string message;              ///< plain words with both values, e.g. "edge 0.5 -> 0.05 (-90%)"
+  std::string message;              ///< plain words with both values, e.g. "edge 0.5 -> 0.05 (÷10; allowed ...)"
   double baseline = kMissing;       ///< the value compared, when there is one
   double current = kMissing;
 };
@@ -54,12 +55,6 @@ struct GateReport {
 
 /// Applies every rule. `baseline` may be null: then only the baseline-free rules run.
 /// Tolerances come from each case's `gate` (the suite's, merged per problem).
-/// How far apart two ragged zones [lo, hi] of the edge are, relative: 0 when they overlap,
-/// else the gap between them relative to the lower zone's end (now above: now_lo/base_hi − 1;
-/// now below: 1 − now_hi/base_lo). Without a ragged zone lo = hi = the edge, and this is the
-/// plain relative move.
-double ragged_move(double base_lo, double base_hi, double now_lo, double now_hi);
-
 GateReport apply_gate(const Results& results, const Baseline* baseline);
 
 }  // namespace stepgate
