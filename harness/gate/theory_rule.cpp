@@ -88,7 +88,17 @@ Finding mean_square_finding(const CaseResult& c, double precision) {
 Part edge_part(const CaseResult& c) {
   const CaseSummary& s = c.summary;
   const double predicted = c.theory.predicted_blowup;
-  if (std::isnan(s.edge)) return {Severity::pass, "no safe rate, so no edge to compare"};
+  if (std::isnan(s.edge)) {
+    double lowest = kMissing;
+    for (const StoredRun& r : c.runs)
+      if (std::isnan(lowest) || r.record.rate < lowest) lowest = r.record.rate;
+    const std::string above = !std::isnan(lowest) && lowest > predicted
+                                  ? fmt::format(" (the lowest rate run, {}, lies above the threshold {}: theory expects "
+                                                "none to converge)",
+                                                num(lowest), num(predicted))
+                                  : "";
+    return {Severity::pass, "no safe rate, so no edge to compare" + above};
+  }
   if (c.optimizer.kind != OptimizerKind::gd)
     return {Severity::pass,
             fmt::format("edge {} not above the threshold {} by {} (with momentum the edge is where the ringing "

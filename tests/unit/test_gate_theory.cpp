@@ -57,7 +57,16 @@ TEST_CASE("theory: a local threshold bounds the edge and leaves the blow-up alon
   // And the one-sided part stays: an edge above the limit by more than precision + slack.
   CHECK(theory_of(case_of("local", 2.689 * 1.03, 2.689, kMissing)).severity == Severity::fail);
   CHECK(theory_of(case_of("local", 2.689 * 1.019, 2.689, kMissing)).severity == Severity::pass);
-  // No safe rate: nothing to compare on a local threshold.
+  // No safe rate: nothing to compare on a local threshold (softmax orbits above it rather than
+  // blowing up; before, this failed as "predicts blow-up ... but no run diverged").
+  CaseResult none = case_of("local", kMissing, 4e-4, kMissing);
+  for (double rate : {0.01, 0.1, 1.0}) {
+    none.runs.push_back({});
+    none.runs.back().record.rate = rate;
+  }
+  const Finding n = theory_of(none);
+  CHECK(n.severity == Severity::pass);
+  CHECK(n.message.find("the lowest rate run, 0.01, lies above the threshold 0.0004") != std::string::npos);
   CHECK(theory_of(case_of("local", kMissing, 2.689, 3.948)).severity == Severity::pass);
 }
 
