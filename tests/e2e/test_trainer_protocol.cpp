@@ -66,7 +66,7 @@ TEST_CASE("trainer protocol: serving requests carry exactly the optimizer's and 
                                 "schedule": {"kind": "cosine", "floor": 0.0, "warmup": 5}, "scaling": "none"})"));
 }
 
-TEST_CASE("trainer protocol: placeholders expand to the kind's fields; no {out} folder unless asked", "[commands]") {
+TEST_CASE("trainer protocol: placeholders expand to the kind's fields, and no {out} folder unless asked", "[commands]") {
   TempDir dir("protocol-argv");
   const std::string record = (dir.path() / "argv.jsonl").string();
   const json problem = {

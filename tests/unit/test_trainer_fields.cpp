@@ -273,7 +273,7 @@ std::pair<RunRecord, int> run_with_tmpdir(const std::vector<std::string>& argv, 
 
 }  // namespace
 
-TEST_CASE("trainer fields: {out} folders only when argv uses {out}; a failed run keeps its own", "[commands]") {
+TEST_CASE("trainer fields: {out} folders only when argv uses {out}, kept for a failed run", "[commands]") {
   if (!fs::exists("/usr/bin/python3")) {
     WARN("python3 unavailable");
     return;
