@@ -1,9 +1,25 @@
 """stepgate's `command` protocol for a Python trainer (README, "Gating your own training code").
 
-One run prints one JSON line per iteration, {"iter": k, "cost": J, ...}; in serving mode
-(`--serve`) the program reads requests {"run", "rate", "seed", "budget", ...} from stdin and
-answers each with its lines tagged {"run": id, ...} and a last {"run": id, "end": true}; a
-{"stop": id} line asks it to end that run early. Every example under examples/ uses this file;
+One run prints one JSON line per iteration, {"iter": k, "cost": J, ...}, for k = 0 (before any
+update) up to the budget; `budget` counts what the trainer reports as "iter" (optimizer steps,
+or epochs if it reports once per epoch). In serving mode (`--serve`) the program reads one
+request per line from stdin, for example
+
+  {"run": 7, "rate": 0.05, "seed": 1, "budget": 500, "optimizer": "hb-0.9",
+   "kind": "momentum", "beta": 0.9,
+   "schedule": {"kind": "cosine", "floor": 0.0, "warmup": 50}, "scaling": "none"}
+
+  {"run": 8, "rate": 0.001, "seed": 1, "budget": 500, "optimizer": "adam-64",
+   "kind": "adam", "beta1": 0.9, "beta2": 0.999, "eps": 1e-08, "batch_size": 64,
+   "schedule": {"kind": "constant", "warmup": 0}, "scaling": "none"}
+
+with exactly the fields of the optimizer's kind (momentum, nesterov: beta; adam: beta1, beta2,
+eps; rmsprop: rho, eps; adagrad: eps; gd, sgd: none), "batch_size" only when the suite sets one,
+and the schedule's kind, its own parameters (step: factor, every; exponential, inverse_time:
+decay; cosine: floor) and warmup. It answers each with its lines tagged {"run": id, ...} and a
+last {"run": id, "end": true}; a {"stop": id} line asks it to end that run early. In per-run mode
+the same values reach argv through placeholders ({rate}, {optimizer.beta},
+{optimizer.batch_size}, {schedule.warmup}, ...). Every example under examples/ uses this file;
 copy it beside your own trainer.
 """
 import collections

@@ -37,6 +37,7 @@ int check_command(const Args& args) {
   const Baseline baseline = read_baseline(p.vm["baseline"].as<std::string>());
   require_same_suite(results, baseline, p.vm["baseline"].as<std::string>());
   const GateReport gate = apply_gate(results, &baseline);
+  print_run_failures(results);
   print_findings(gate, results);
   return gate.pass ? kExitPass : kExitFail;
 }

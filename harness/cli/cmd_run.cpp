@@ -77,7 +77,7 @@ int run_command(const Args& args) {
       ("shard", po::value<std::string>(),
        "run only shard K of N of the cases (K/N), or 'slurm': K and N from the job array's environment")
       ("resume", po::bool_switch(), "continue from OUT/journal.jsonl: finished runs are not run again")
-      ("quiet,q", po::bool_switch(), "no progress line, no summary table and no scope note");
+      ("quiet,q", po::bool_switch(), "no progress line, no summary table and no scope note (why runs failed is still shown)");
   po::positional_options_description pos;
   pos.add("suite", 1);
   const Parsed p = parse_options(
@@ -122,6 +122,8 @@ int run_command(const Args& args) {
                              run.results_path, fmt::join(run.reports, ", "));
     std::cout << scope_warning(run.results) << "\n";
   }
+  // Why runs failed, also under --quiet: a trainer that cannot start must be seen at once.
+  print_run_failures(run.results);
   // With or without a baseline, the verdict is the gate's: without one, the baseline-free
   // rules decide (exit 1 when one fails), as `check` would.
   if (!quiet || run.baseline || !run.gate.pass) print_findings(run.gate, run.results);

@@ -10,4 +10,7 @@ namespace stepgate::cli {
 /// Prints the warn/fail findings and the verdict's count line to stdout (findings_text).
 void print_findings(const GateReport& gate, const Results& results);
 
+/// Prints why runs failed (run_failures_text) to stdout; nothing when no run failed.
+void print_run_failures(const Results& results);
+
 }  // namespace stepgate::cli

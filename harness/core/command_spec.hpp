@@ -15,7 +15,10 @@ inline constexpr double kCommandConfirmFactor = 4.0;
 
 struct CommandSpec {
   /// argv[0] is looked up on PATH; never given to a shell. Placeholders, whole or inside an
-  /// argument: {rate} {seed} {budget} {optimizer} {optimizer.FIELD} {scaling} {case} {out}.
+  /// argument: {rate} {seed} {budget} {optimizer} {optimizer.kind} {optimizer.FIELD}
+  /// {schedule.kind} {schedule.FIELD} {scaling} {case} {out} (FIELD: only the fields of the
+  /// optimizer's kind and schedule's kind, core/trainer_fields.hpp). {out} is a fresh folder
+  /// per run, made only when argv uses it.
   std::vector<std::string> argv;
   std::string cwd;                          ///< resolved against the suite's folder; "" = it
   std::map<std::string, std::string> env;   ///< added to (or replacing in) the tool's environment

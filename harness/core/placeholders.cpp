@@ -27,8 +27,9 @@ std::string expand_placeholders(std::string_view arg,
     const std::optional<std::string> value = lookup(name);
     if (!value)
       throw std::invalid_argument(fmt::format("unknown placeholder {{{}}} in \"{}\"; expected one of {{rate}}, "
-                                              "{{seed}}, {{budget}}, {{optimizer}}, {{optimizer.FIELD}}, "
-                                              "{{scaling}}, {{case}}, {{out}}",
+                                              "{{seed}}, {{budget}}, {{optimizer}}, {{optimizer.kind}}, "
+                                              "{{optimizer.FIELD}}, {{schedule.kind}}, {{schedule.FIELD}}, {{scaling}}, "
+                                              "{{case}}, {{out}}",
                                               name, arg));
     out += *value;
     i = end;
@@ -46,11 +47,26 @@ std::optional<std::string> placeholder_value(std::string_view name, const Placeh
   if (name == "scaling") return v.scaling;
   if (name == "case") return v.case_id;
   if (name == "out") return v.out;
-  if (name.starts_with("optimizer.") && v.optimizer_fields) {
-    const auto it = v.optimizer_fields->find(std::string(name.substr(10)));
-    if (it != v.optimizer_fields->end()) return it->second;
+  if (v.fields && (name.starts_with("optimizer.") || name.starts_with("schedule."))) {
+    const auto it = v.fields->find(std::string(name));
+    if (it != v.fields->end()) return it->second;
   }
   return std::nullopt;
+}
+
+bool uses_placeholder(const std::vector<std::string>& argv, std::string_view name) {
+  bool used = false;
+  for (const std::string& arg : argv) {
+    try {
+      expand_placeholders(arg, [&](std::string_view n) -> std::optional<std::string> {
+        used = used || n == name;
+        return std::string();
+      });
+    } catch (const std::invalid_argument&) {
+      // validation reports it; here it only does not count
+    }
+  }
+  return used;
 }
 
 }  // namespace stepgate

@@ -1,11 +1,12 @@
-// Placeholders in a command's argv ("{rate}", "{optimizer.beta}", ...): one expansion used by
-// suite validation (which names exist) and by run/ (their values).
+// Placeholders in a command's argv ("{rate}", "{optimizer.beta}", "{schedule.warmup}", ...): one
+// expansion used by suite validation (which names exist) and by run/ (their values).
 #pragma once
 #include <functional>
 #include <map>
 #include <optional>
 #include <string>
 #include <string_view>
+#include <vector>
 
 namespace stepgate {
 
@@ -19,11 +20,17 @@ std::string expand_placeholders(std::string_view arg,
 /// commands"): the one list of their names.
 struct PlaceholderValues {
   std::string rate, seed, budget, optimizer, scaling, case_id, out;
-  const std::map<std::string, std::string>* optimizer_fields = nullptr;  ///< {optimizer.FIELD}
+  /// {optimizer.FIELD} and {schedule.FIELD}: "optimizer.beta" -> "0.9", ... (trainer_placeholders,
+  /// core/trainer_fields.hpp): exactly the fields of the optimizer's kind and schedule's kind.
+  const std::map<std::string, std::string>* fields = nullptr;
 };
 
 /// The value of placeholder `name`, or nullopt when there is no such placeholder.
 std::optional<std::string> placeholder_value(std::string_view name, const PlaceholderValues& v);
+
+/// True when some element of `argv` uses placeholder `name` (as a whole argument or inside one).
+/// Malformed elements (a '{' without '}') count as not using it.
+bool uses_placeholder(const std::vector<std::string>& argv, std::string_view name);
 
 /// Placeholders that differ from run to run, so a serving program (started once for many runs)
 /// cannot take them in its argv.

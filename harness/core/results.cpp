@@ -63,6 +63,30 @@ std::vector<std::size_t> thinned_indices(const std::vector<TracePoint>& trace,
   return keep;
 }
 
+std::vector<FailureReason> failure_reasons(const CaseResult& c) {
+  std::vector<FailureReason> out;
+  for (const StoredRun& run : c.runs) {
+    const RunRecord& r = run.record;
+    if (r.outcome != Outcome::failed) continue;
+    const auto same = std::find_if(out.begin(), out.end(), [&](const FailureReason& f) { return f.reason == r.reason; });
+    if (same != out.end()) {
+      ++same->runs;
+      continue;
+    }
+    FailureReason f;
+    f.reason = r.reason;
+    f.runs = 1;
+    f.rate = r.rate;
+    if (r.seed_index >= 0 && static_cast<std::size_t>(r.seed_index) < c.summary.seeds.size())
+      f.seed = c.summary.seeds[static_cast<std::size_t>(r.seed_index)].seed;
+    f.stderr_tail = r.stderr_tail;
+    f.command = r.command;
+    f.request = r.request;
+    out.push_back(std::move(f));
+  }
+  return out;
+}
+
 void thin_traces(Results& results, const TraceThinning& t) {
   for (CaseResult& c : results.cases)
     for (StoredRun& run : c.runs) {
@@ -170,6 +194,20 @@ json to_json(const CaseTheory& t) {
   return out;
 }
 
+// Derived from the runs (and not read back): why runs failed, for readers of the file.
+json failures_json(const CaseResult& c) {
+  json out = json::array();
+  for (const FailureReason& f : failure_reasons(c))
+    out.push_back({{"reason", f.reason},
+                   {"runs", f.runs},
+                   {"first", {{"rate", finite_or_null(f.rate)},
+                              {"seed", f.seed},
+                              {"stderr", text_or_null(f.stderr_tail)},
+                              {"command", f.command},
+                              {"request", text_or_null(f.request)}}}});
+  return out;
+}
+
 json to_json(const CaseResult& c, const TraceThinning& t) {
   json runs = json::array();
   for (const StoredRun& run : c.runs) runs.push_back(to_json(run.record, run.role, t));
@@ -184,6 +222,7 @@ json to_json(const CaseResult& c, const TraceThinning& t) {
           {"error", text_or_null(c.error)},
           {"theory", to_json(c.theory)},
           {"summary", to_json(c.summary)},
+          {"failures", failures_json(c)},
           {"runs", std::move(runs)},
           {"gate", to_json(c.gate)},
           {"wall_seconds", finite_or_null(c.wall_seconds)}};

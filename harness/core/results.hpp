@@ -147,6 +147,23 @@ struct CaseResult {
   double wall_seconds = kMissing;
 };
 
+/// One reason why runs of a case failed (outcome `failed`), with the evidence of the first run
+/// that failed for it, so that every report can say why (README, "Gating your own training
+/// code"). Derived from the case's runs; results.json writes it as the case's "failures".
+struct FailureReason {
+  std::string reason;                ///< the runs' reason ("the program exited with status 1")
+  int runs = 0;                      ///< how many of the case's runs failed for it
+  // The first of them, in the order of the case's runs:
+  double rate = kMissing;
+  std::uint64_t seed = 0;            ///< the suite's seed number (summary.seeds), 0 when unknown
+  std::string stderr_tail;           ///< the last lines of its stderr ("" for built-in runs)
+  std::vector<std::string> command;  ///< its argv, placeholders expanded (empty for built-in runs)
+  std::string request;               ///< serving mode: the request line it was answering
+};
+/// The distinct reasons of a case's failed runs, in order of first occurrence; empty when no
+/// run failed.
+std::vector<FailureReason> failure_reasons(const CaseResult& c);
+
 /// A data set as loaded (before scaling): where it came from and what it held.
 struct DatasetInfo {
   struct Column {

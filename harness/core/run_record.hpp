@@ -44,6 +44,12 @@ struct RunRecord {
   Vec final_params;               ///< parameters at the last evaluation
   double wall_seconds = 0.0;      ///< not part of any comparison: timing only
   long log_lines = 0;             ///< command runs: output lines that were not protocol lines
+  /// Command runs that failed (empty otherwise): the last lines of the program's stderr (at
+  /// most 20 lines, 4096 bytes), the argv it was started with (placeholders expanded) and, in
+  /// serving mode, the request line it was answering. `reason` says what went wrong.
+  std::string stderr_tail;
+  std::vector<std::string> command;
+  std::string request;
 
   const TracePoint* last() const { return trace.empty() ? nullptr : &trace.back(); }
 };

@@ -58,6 +58,10 @@ json to_json(const RunRecord& r, const RunRecordStyle& style) {
                                      : json::array({p.iter, number_json(p.cost, style)}));
   }
   j["trace"] = std::move(trace);
+  // A failed command run's evidence: only where there is some (most runs have none).
+  if (!r.stderr_tail.empty()) j["stderr"] = r.stderr_tail;
+  if (!r.command.empty()) j["command"] = r.command;
+  if (!r.request.empty()) j["request"] = r.request;
   if (style.final_params && r.final_params.size() > 0) {
     json params = json::array();
     for (Index i = 0; i < r.final_params.size(); ++i) params.push_back(number_json(r.final_params[i], style));
@@ -92,6 +96,10 @@ RunRecord run_record_from(const JsonField& f, const RunRecordStyle& style) {
     p.cost = number_from_json(point[1], style);
     if (style.full_trace) p.gap = number_from_json(point[2], style), p.grad_norm = number_from_json(point[3], style);
   }
+  if (const JsonField e = f["stderr"]; e.exists() && !e.is_null()) r.stderr_tail = e.string();
+  if (const JsonField cmd = f["command"]; cmd.exists() && !cmd.is_null())
+    for (std::size_t i = 0; i < cmd.array_size(); ++i) r.command.push_back(cmd[i].string());
+  if (const JsonField q = f["request"]; q.exists() && !q.is_null()) r.request = q.string();
   if (const JsonField params = f["final_params"]; params.exists() && !params.is_null()) {
     r.final_params.resize(static_cast<Index>(params.array_size()));
     for (std::size_t i = 0; i < params.array_size(); ++i) r.final_params[static_cast<Index>(i)] = number_from_json(params[i], style);

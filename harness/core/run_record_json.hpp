@@ -30,7 +30,8 @@ double number_from_json(const JsonField& f, const RunRecordStyle& style);
 /// rate, overshoot, noise, wall_seconds: the numbers of a run.
 const std::vector<NumberField<RunRecord>>& run_number_fields();
 /// seed_index, steps, log_lines: its counts. rng_seed (64 bits), outcome, reason,
-/// converged_at, confirmation, trace and final_params have their own shapes.
+/// converged_at, confirmation, trace and final_params have their own shapes; a failed command
+/// run's "stderr", "command" (argv) and "request" are written only when not empty.
 const std::vector<CountField<RunRecord>>& run_count_fields();
 
 /// The record's keys. final_params only with style.final_params (and when kept).

@@ -8,6 +8,7 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/report/failures.hpp"
 #include "stepgate/report/format.hpp"
 #include "stepgate/report/html_case_plots.hpp"
 #include "stepgate/report/html_escape.hpp"
@@ -170,6 +171,8 @@ std::string case_section(const ReportInput& in, std::size_t index) {
   out += "</dl>\n";
   if (!c.error.empty()) out += "<p class=\"error\">Could not be run: " + esc(c.error) + "</p>\n";
   out += "<h3>Findings</h3>\n" + findings_list(fs, false);
+  if (const std::string failures = failures_text(c); !failures.empty())
+    out += "<h3>Runs that failed</h3>\n<pre class=\"failures\">" + esc(failures) + "</pre>\n";
   out += "<h3>Safe range</h3>\n" + range_bar_html(c, b);
   out += cost_plot_html(c);  // with its own heading: it says what the y axis shows
   out += "<h3>Outcome of every run</h3>\n" + outcome_map_html(c);

@@ -42,6 +42,8 @@ details summary { cursor:pointer; color:var(--muted); padding:6px 0; }
 dl.facts { display:grid; grid-template-columns:max-content 1fr max-content 1fr; gap:2px 14px; margin:0; }
 dl.facts dt { color:var(--muted); } dl.facts dd { margin:0; overflow-wrap:anywhere; }
 .error { color:var(--fail); font-weight:600; }
+pre.failures { font-family:"DejaVu Sans Mono", Menlo, Consolas, monospace; font-size:12px; white-space:pre-wrap;
+  overflow-wrap:anywhere; background:var(--bg); border:1px solid var(--line); padding:8px; margin:4px 0 10px; }
 .note { color:var(--muted); font-size:12.5px; margin:4px 0; }
 figure { margin:4px 0 10px; }
 .scroll { overflow-x:auto; }

@@ -6,6 +6,10 @@
 // - a warn finding passes but carries <system-out>warning: message</system-out>, so the build
 //   stays green while the warning is still visible beside the test;
 // - a case that could not be run carries <error> instead of <failure> (counted in "errors");
+// - a case with failed runs carries why (report/failures.hpp: each distinct reason with the
+//   first failed run's command and stderr tail) in <system-err> of its first testcase and
+//   after the message in the text of each of its <failure> and <error> elements, where CI
+//   panels show it;
 // - a case that got no finding at all (no baseline, no pinned rate, no reference, no theory)
 //   gets one <testcase name="no_rule_applied"> with <skipped>, so that it does not vanish;
 // - a testcase's "time" is its case's own elapsed time, given to the case's first testcase (its
@@ -23,6 +27,7 @@
 #include <pugixml.hpp>
 
 #include "stepgate/core/quote_text.hpp"
+#include "stepgate/report/failures.hpp"
 #include "stepgate/report/reporter.hpp"
 
 namespace stepgate {
@@ -66,13 +71,14 @@ pugi::xml_node add_testcase(pugi::xml_node suite, const std::string& case_id, co
   return tc;
 }
 
-void add_finding(pugi::xml_node tc, const Finding& f, bool not_run, Counts& n) {
+// `failures`: failures_text of the case ("" when no run failed).
+void add_finding(pugi::xml_node tc, const Finding& f, bool not_run, const std::string& failures, Counts& n) {
   const std::string rule(to_string(f.rule));
   if (f.severity == Severity::fail) {
     pugi::xml_node child = tc.append_child(not_run ? "error" : "failure");
     attr(child, "message", f.message);
     attr(child, "type", rule);
-    child.text().set(xml_safe(f.message).c_str());
+    child.text().set(xml_safe(failures.empty() ? f.message : f.message + "\n\nRuns that failed:\n" + failures).c_str());
     ++(not_run ? n.errors : n.failures);
   } else if (f.severity == Severity::warn) {
     tc.append_child("system-out").text().set(xml_safe("warning: " + f.message).c_str());
@@ -97,22 +103,24 @@ Counts add_suite(pugi::xml_node root, const ReportInput& in) {
   Counts n;
   auto emit = [&](const std::string& id, const CaseResult* c) {
     const bool not_run = c && !c->error.empty();
+    const std::string failures = c ? failures_text(*c) : "";
     double time = c ? known(c->wall_seconds) : 0.0;
-    bool any = false;
+    pugi::xml_node first;
     for (const Finding& f : in.gate.findings) {
       if (f.case_id != id) continue;
-      any = true;
       pugi::xml_node tc = add_testcase(suite, id, std::string(to_string(f.rule)), time);
+      if (!first) first = tc;
       time = 0.0;
       ++n.tests;
-      add_finding(tc, f, not_run && f.rule == Rule::case_presence, n);
+      add_finding(tc, f, not_run && f.rule == Rule::case_presence, failures, n);
     }
-    if (!any) {
-      pugi::xml_node tc = add_testcase(suite, id, "no_rule_applied", time);
-      attr(tc.append_child("skipped"), "message", "no gate rule applied to this case");
+    if (!first) {
+      first = add_testcase(suite, id, "no_rule_applied", time);
+      attr(first.append_child("skipped"), "message", "no gate rule applied to this case");
       ++n.tests;
       ++n.skipped;
     }
+    if (!failures.empty()) first.append_child("system-err").text().set(xml_safe("Runs that failed:\n" + failures).c_str());
   };
   // The order of the findings: ids that are not cases of these results and come before them
   // (the suite itself), then the cases in order, then ids after them (only in the baseline).

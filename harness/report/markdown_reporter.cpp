@@ -1,6 +1,7 @@
 // report.md: sized for a pull-request comment. The verdict comes first, then only the cases
 // with warn or fail findings (baseline beside current, and the findings' messages), then one
 // compact row per case, then the scope warning.
+#include <algorithm>
 #include <cmath>
 #include <map>
 #include <set>
@@ -10,6 +11,7 @@
 
 #include "stepgate/core/quote_text.hpp"
 
+#include "stepgate/report/failures.hpp"
 #include "stepgate/report/format.hpp"
 #include "stepgate/report/reporter.hpp"
 
@@ -67,6 +69,23 @@ std::string code(const std::string& s) {
   return "`" + out + "`";
 }
 
+// A fenced code block of many lines (a program's stderr): the fence is longer than any run of
+// backticks inside, so no line can close it; control bytes but tab as visible \xNN. Inside a
+// code block nothing is markup.
+std::string code_block(const std::string& s) {
+  std::string body;
+  std::size_t run = 0, longest = 0;
+  for (std::size_t i = 0; i < s.size(); ++i) {
+    const char ch = s[i];
+    run = ch == '`' ? run + 1 : 0;
+    longest = std::max(longest, run);
+    if (ch == '\r' && i + 1 < s.size() && s[i + 1] == '\n') continue;
+    append_visible(body, ch, "\n\t");
+  }
+  const std::string fence(std::max<std::size_t>(3, longest + 1), '`');
+  return fence + "text\n" + body + (body.empty() || body.back() != '\n' ? "\n" : "") + fence + "\n";
+}
+
 std::string worst_word(const GateReport& gate, const std::string& id) {
   const std::optional<Severity> w = gate.worst(id);
   return w ? std::string(to_string(*w)) : "none";
@@ -85,6 +104,7 @@ class MarkdownWriter {
   std::string write() {
     verdict();
     details();
+    failures();
     compact_table();
     out_ += "\n**Scope.** " + text(scope_warning(in_.results)) + "\n";
     return std::move(out_);
@@ -107,6 +127,16 @@ class MarkdownWriter {
     if (ids.empty()) return;
     out_ += "\n### Cases with findings\n";
     for (const std::string& id : ids) case_detail(id);
+  }
+
+  // Why runs failed, per case: the reasons and the first failed run's command and stderr.
+  void failures() {
+    std::string section;
+    for (const CaseResult& c : in_.results.cases) {
+      const std::string why = failures_text(c);
+      if (!why.empty()) section += fmt::format("\n#### {}\n\n{}", text(c.id), code_block(why));
+    }
+    if (!section.empty()) out_ += "\n### Runs that failed\n" + section;
   }
 
   void case_detail(const std::string& id) {

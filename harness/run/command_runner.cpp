@@ -17,6 +17,7 @@
 #include "stepgate/core/interrupt.hpp"
 #include "stepgate/core/json_text.hpp"
 #include "stepgate/core/placeholders.hpp"
+#include "stepgate/core/trainer_fields.hpp"
 #include "stepgate/run/child_process.hpp"
 
 namespace stepgate {
@@ -69,7 +70,9 @@ struct RunState {
   long id = 0;            // serving mode: the request's "run"
   std::unique_ptr<OutcomeMonitor> monitor;
   Clock::time_point started;
-  std::string out_dir;
+  std::string out_dir;     // "" when argv does not use {out}
+  std::vector<std::string> argv;  // as started (serving: the server's)
+  std::string request;     // serving: the request line of this run
   long line_number = 0;
   long bytes_at_start = 0;
   std::optional<long> last_iter;
@@ -80,6 +83,7 @@ struct RunState {
 // A serving process and the run it is answering (if any).
 struct Server {
   std::unique_ptr<ChildProcess> child;
+  std::vector<std::string> argv;  // as started
   std::optional<RunState> run;
   Clock::time_point stop_sent_at;
 };
@@ -128,13 +132,15 @@ struct CommandSession::Impl {
   RunSettings settings;
   int parallel = 1;
   bool has_optimum = false;
+  bool uses_out = false;                      // argv names {out}: each run gets a fresh folder
+  std::map<std::string, std::string> fields;  // {optimizer.FIELD}, {schedule.FIELD}
   long next_id = 1;
   std::vector<Server> servers;
 
   std::vector<std::string> argv_for(double rate, BatchSeed seed, const std::string& out_dir) const {
     const PlaceholderValues values{exact_number(rate), std::to_string(seed.number), std::to_string(settings.budget),
-                                   c.optimizer,        c.scaling,                   c.case_id,
-                                   out_dir,            &c.optimizer_fields};
+                                   c.optimizer.name(), c.scaling,                   c.case_id,
+                                   out_dir,            &fields};
     auto lookup = [&](std::string_view name) { return placeholder_value(name, values); };
     std::vector<std::string> argv;
     for (const std::string& arg : c.spec.argv) argv.push_back(expand_placeholders(arg, lookup));
@@ -237,15 +243,19 @@ struct CommandSession::Impl {
       else if (r.trace.empty()) fault = "no output: the program wrote no {\"iter\": k, \"cost\": J} line";
     }
     if (!fault.empty()) {
+      // The reason alone says what went wrong (runs that failed alike share it); the evidence
+      // goes beside it. A kept {out} folder is named in the argv.
       r.outcome = Outcome::failed;
-      r.reason = fault + (stderr_tail.empty() ? std::string() : "; stderr: " + stderr_tail);
+      r.reason = fault;
+      r.stderr_tail = stderr_tail;
+      r.command = s.argv;
+      r.request = s.request;
     } else {
       record_classification(s.monitor->result(), r);
     }
-    if (!s.out_dir.empty()) {
+    if (!s.out_dir.empty() && r.outcome != Outcome::failed) {  // a failed run's folder is kept
       std::error_code ec;
-      if (r.outcome != Outcome::failed) fs::remove_all(s.out_dir, ec);
-      else r.reason += " (its {out} folder is kept: " + s.out_dir + ")";
+      fs::remove_all(s.out_dir, ec);
     }
   }
 
@@ -269,8 +279,9 @@ struct CommandSession::Impl {
         // ToolError ends the case ("could not be run", exit 3) and the others are stopped.
         Active a{begin(next), nullptr};
         try {
-          a.state.out_dir = fresh_folder();
-          a.child = spawn(argv_for(rates[next], seed, a.state.out_dir), false);
+          if (uses_out) a.state.out_dir = fresh_folder();
+          a.state.argv = argv_for(rates[next], seed, a.state.out_dir);
+          a.child = spawn(a.state.argv, false);
         } catch (...) {
           give_slot();
           throw;
@@ -303,16 +314,8 @@ struct CommandSession::Impl {
     }
   }
 
-  json request(const RunState& s, double rate, BatchSeed seed) const {
-    json q = {{"run", s.id},           {"rate", rate},          {"seed", seed.number},
-              {"budget", settings.budget}, {"optimizer", c.optimizer}, {"scaling", c.scaling}};
-    for (const auto& [k, v] : c.optimizer_fields)
-      if (!q.contains(k) && k != "kind") {
-        char* end = nullptr;
-        const double x = std::strtod(v.c_str(), &end);
-        q[k] = (end && *end == '\0') ? json(x) : json(v);
-      }
-    return q;
+  std::string request(const RunState& s, double rate, BatchSeed seed) const {
+    return serving_request({s.id, rate, seed.number, settings.budget}, c.optimizer, c.scaling).dump();
   }
 
   void run_serving(std::span<const double> rates, BatchSeed seed, std::vector<RunRecord>& records) {
@@ -348,14 +351,17 @@ struct CommandSession::Impl {
         {  // a program that cannot be started at all ends the case (ToolError), as above
           if (!sv.child) {
             try {
-              sv.child = spawn(argv_for(rates[next], seed, ""), true);
+              sv.argv = argv_for(rates[next], seed, "");
+              sv.child = spawn(sv.argv, true);
             } catch (...) {
               give_slot();
               throw;
             }
           }
           s.bytes_at_start = sv.child->bytes_read();
-          if (!sv.child->write(request(s, rates[next], seed).dump() + "\n")) {
+          s.argv = sv.argv;
+          s.request = request(s, rates[next], seed);
+          if (!sv.child->write(s.request + "\n")) {
             const ChildExit ex = sv.child->stop(c.spec.grace);
             s.fault = exit_fault(ex, "the serving process") + " before taking the request";
             close(s, records[next], "", sv.child->stderr_tail());
@@ -401,8 +407,8 @@ struct CommandSession::Impl {
           fail_server(sv, "");
           continue;
         }
-        if (ended) {
-          close(s, r, "", "");
+        if (ended) {  // the tail helps a run that ended without output; others ignore it
+          close(s, r, "", sv.child->stderr_tail());
           sv.run.reset();
           continue;
         }
@@ -462,6 +468,8 @@ CommandSession::CommandSession(CommandCase c, RunSettings settings, int jobs, Pr
   impl_->settings = std::move(settings);
   impl_->parallel = std::max(1, impl_->c.spec.parallel > 0 ? impl_->c.spec.parallel : jobs);
   impl_->has_optimum = !std::isnan(impl_->c.spec.optimum);
+  impl_->uses_out = uses_placeholder(impl_->c.spec.argv, "out");
+  impl_->fields = trainer_placeholders(impl_->c.optimizer);
 }
 
 CommandSession::~CommandSession() {

@@ -15,17 +15,20 @@
 #include <vector>
 
 #include "stepgate/core/command_spec.hpp"
+#include "stepgate/core/optimizer_spec.hpp"
 #include "stepgate/core/run_record.hpp"
 #include "stepgate/core/run_settings.hpp"
 #include "stepgate/run/batch.hpp"
 
 namespace stepgate {
 
-/// What the placeholders of one case expand to.
+/// What the placeholders of one case expand to, and what its requests say.
 struct CommandCase {
   CommandSpec spec;
-  std::string case_id, optimizer, scaling;
-  std::map<std::string, std::string> optimizer_fields;  ///< {optimizer.FIELD}: the entry's fields as text
+  std::string case_id, scaling;
+  /// With its label ({optimizer}, the request's "optimizer"); its kind's fields and its
+  /// schedule's go to {optimizer.FIELD}, {schedule.FIELD} and the requests (core/trainer_fields.hpp).
+  OptimizerSpec optimizer;
   bool wants_params = false;  ///< reference values exist: converged runs go on to their params line
 };
 

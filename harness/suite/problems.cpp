@@ -8,6 +8,7 @@
 
 #include "stepgate/core/custom_kinds.hpp"
 #include "stepgate/core/placeholders.hpp"
+#include "stepgate/core/trainer_fields.hpp"
 #include "stepgate/suite/suite_sections.hpp"
 
 namespace stepgate::suite_detail {
@@ -209,6 +210,8 @@ void check_dataless(const Node& node, const Layers& settings, const Suite& suite
             fmt::format("found scaling '{}' on a {} problem, which has no data to scale; "
                         "expected only \"none\"",
                         p.scalings[i], kind));
+  // A command's trainer gets batch_size as a field (core/trainer_fields.hpp) and batches itself.
+  if (p.kind == ProblemKind::command) return;
   for (std::size_t i = 0; i < p.optimizers.size(); ++i) {
     const OptimizerSpec& spec = suite.optimizers.at(p.optimizers[i]);
     const auto listed = settings.find("optimizers");
@@ -249,12 +252,22 @@ void read_optimum_skip(const ObjectNode& o, ProblemSpec& p) {
   p.run.skip_optimum = true;
 }
 
-// Every placeholder of every argument must be known (the run fails otherwise, too late).
+// "{optimizer.kind}, {optimizer.beta}": the placeholders of one group, in the order trainers get them.
+std::string field_list(const std::vector<TrainerField>& fields, std::string_view group) {
+  std::vector<std::string> names;
+  for (const TrainerField& f : fields) names.push_back(fmt::format("{{{}.{}}}", group, f.key));
+  return join(names);
+}
+
+// Every placeholder of every argument must be known for every optimizer of the problem (the
+// run fails otherwise, too late): {optimizer.FIELD} and {schedule.FIELD} only for the fields
+// of that optimizer's kind and schedule's kind (core/trainer_fields.hpp).
 void check_placeholders(const ObjectNode& o, const Suite& suite, const ProblemSpec& p) {
   const Node argv = o.require("command").member("argv");
   for (std::size_t i = 0; i < p.command.argv.size(); ++i)
     for (const std::string& label : p.optimizers) {
-      const std::map<std::string, std::string> fields = optimizer_fields(suite.optimizers.at(label));
+      const OptimizerSpec& spec = suite.optimizers.at(label);
+      const std::map<std::string, std::string> fields = trainer_placeholders(spec);
       try {
         const PlaceholderValues any{"x", "x", "x", "x", "x", "x", "x", &fields};
         expand_placeholders(p.command.argv[i], [&](std::string_view name) -> std::optional<std::string> {
@@ -263,12 +276,24 @@ void check_placeholders(const ObjectNode& o, const Suite& suite, const ProblemSp
               throw std::invalid_argument(fmt::format(
                   "found {{{}}} in the argv of a serving program, which is started once for many runs; "
                   "expected it in the requests (\"rate\", \"seed\") instead", name));
-          return placeholder_value(name, any);
+          std::optional<std::string> value = placeholder_value(name, any);
+          if (value) return value;
+          const bool of_optimizer = name.starts_with("optimizer."), of_schedule = name.starts_with("schedule.");
+          if (!of_optimizer && !of_schedule) return value;  // expand_placeholders names the known ones
+          const std::string field(name.substr(name.find('.') + 1));
+          if (of_schedule)
+            throw std::invalid_argument(fmt::format(
+                "found {{{}}}, a field that the schedule of optimizer '{}' (kind {}) does not have; its fields: {}",
+                name, label, to_string(spec.schedule.kind),
+                field_list(schedule_trainer_fields(spec.schedule), "schedule")));
+          throw std::invalid_argument(fmt::format(
+              "found {{{}}}, a field that optimizer '{}' (kind {}) does not have{}; its fields: {}", name, label,
+              to_string(spec.kind),
+              field == "batch_size" ? " (batch_size is a field only where the optimizer sets it above 0)" : "",
+              field_list(optimizer_trainer_fields(spec), "optimizer")));
         });
       } catch (const std::invalid_argument& e) {
-        std::vector<std::string> names;
-        for (const auto& [k, v] : fields) names.push_back("optimizer." + k);
-        argv.element(i).fail(fmt::format("{} (optimizer '{}' has the fields {})", e.what(), label, join(names)));
+        argv.element(i).fail(e.what());
       }
     }
 }

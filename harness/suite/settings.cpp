@@ -242,6 +242,18 @@ void read_settings(const Layers& settings, const Layers& gate, Suite& suite, Pro
   OutcomeSettings defaults;
   if (p.kind == ProblemKind::command) defaults.confirm_factor = kCommandConfirmFactor;
   p.run.outcome = read_outcome(settings.sub("outcome"), defaults);
+  // Convergence is confirmed only after a stretch of at least confirm_min iterations that ends
+  // within the budget (docs/design.md, "Confirmed convergence"): below it no run can converge.
+  if (p.run.budget < p.run.outcome.confirm_min) {
+    // Where the budget is written, or else confirm_min (the default budget is far above its default).
+    auto at = settings.find("budget");
+    if (!at) at = settings.sub("outcome").find("confirm_min");
+    if (at)
+      at->fail(fmt::format("found budget {} below outcome.confirm_min {}, so no run could confirm its convergence "
+                          "(the confirmation stretch alone takes confirm_min iterations); expected a budget of at "
+                          "least {}, or a smaller confirm_min",
+                          p.run.budget, p.run.outcome.confirm_min, p.run.outcome.confirm_min));
+  }
   if (auto n = settings.find("pinned")) read_pinned(*n, p);
   Layers all_gate = gate;
   for (const Node& level : settings.sub("gate").levels) all_gate.levels.push_back(level);

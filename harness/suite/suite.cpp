@@ -8,7 +8,6 @@
 #include "stepgate/data/file_io.hpp"
 #include "stepgate/data/sha256.hpp"
 #include "stepgate/core/names.hpp"
-#include "stepgate/core/placeholders.hpp"
 #include "stepgate/suite/suite_sections.hpp"
 
 namespace stepgate {
@@ -159,16 +158,5 @@ Suite parse_suite(const std::string& text, const std::string& path) {
 }
 
 Suite load_suite(const std::string& path) { return parse_suite(read_raw_file(path), path); }
-
-}  // namespace stepgate
-
-namespace stepgate {
-
-std::map<std::string, std::string> optimizer_fields(const OptimizerSpec& s) {
-  return {{"kind", std::string(to_string(s.kind))}, {"beta", exact_number(s.beta)},
-          {"beta1", exact_number(s.beta1)},         {"beta2", exact_number(s.beta2)},
-          {"rho", exact_number(s.rho)},             {"eps", exact_number(s.eps)},
-          {"batch_size", std::to_string(s.batch_size)}};
-}
 
 }  // namespace stepgate

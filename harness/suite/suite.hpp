@@ -114,9 +114,6 @@ struct Suite {
   GateTolerances gate;  ///< suite-level gate section (problems hold merged copies)
 };
 
-/// The {optimizer.FIELD} names a command's argv may use, and their text for an optimizer.
-std::map<std::string, std::string> optimizer_fields(const OptimizerSpec& spec);
-
 /// Reads, parses and validates a suite file. Throws InputError whose where() is
 /// "path" + JSON pointer (e.g. "suites/demo.json#/problems/2/optimizers/0") or "path:line:column"
 /// for JSON syntax errors, and whose message says what was expected.

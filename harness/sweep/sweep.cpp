@@ -47,8 +47,7 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
     if (journal) store = journal->store_for(c.id, in.reference.has_value()), in.store = store.get();
     CaseSearchOutput out;
     if (p.kind == ProblemKind::command) {
-      CommandSession session(CommandCase{p.command, c.id, c.optimizer, c.scaling, optimizer_fields(r.optimizer),
-                                         p.reference.has_value()},
+      CommandSession session(CommandCase{p.command, c.id, c.scaling, r.optimizer, p.reference.has_value()},
                              p.run, jobs, &slots);
       const RunBatchFn runner = [&](std::span<const double> rates, BatchSeed seed) {
         return session.run(rates, seed);

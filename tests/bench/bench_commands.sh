@@ -15,7 +15,7 @@ suite() {  # $1: serve true/false
   cat <<JSON
 {"format": "stepgate.suite/1", "name": "bench-commands",
  "optimizers": {"hb-0.9": {"kind": "momentum", "beta": 0.9}},
- "defaults": {"seeds": 1, "budget": 20, "outcome": {"criterion": "cost", "target": 0.3},
+ "defaults": {"seeds": 1, "budget": 20, "outcome": {"criterion": "cost", "target": 0.3, "confirm_min": 10},
               "rates": {"grid": null, "fixed": $rates}},
  "problems": [{"name": "tiers-mlp", "kind": "command", "optimizers": ["hb-0.9"],
    "command": {"argv": $argv, "serve": $1, "cwd": "$here/examples/torch", "env": {"OMP_NUM_THREADS": "1"}}}]}

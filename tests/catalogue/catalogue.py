@@ -1205,6 +1205,26 @@ def catalogue():
     suite_entry("suite-command-unknown-placeholder", "problems/0",
                 {"name": "cmd", "kind": "command", "command": {"argv": ["true", "{rat}"]}},
                 ["suite.json#/problems/0/command/argv/1", "rat"])
+    # Placeholders name exactly the fields of the optimizer's kind (core/trainer_fields.hpp).
+    suite_entry("suite-command-placeholder-rho-on-momentum", "problems/0",
+                {"name": "cmd", "kind": "command", "optimizers": ["momentum"],
+                 "command": {"argv": ["true", "--rho", "{optimizer.rho}"]}},
+                ["suite.json#/problems/0/command/argv/2", "{optimizer.rho}", "'momentum'",
+                 "{optimizer.kind}, {optimizer.beta}"])
+    suite_entry("suite-command-placeholder-batch-size-unset", "problems/0",
+                {"name": "cmd", "kind": "command", "optimizers": ["adam"],
+                 "command": {"argv": ["true", "--batch={optimizer.batch_size}"]}},
+                ["suite.json#/problems/0/command/argv/1", "{optimizer.batch_size}", "'adam'",
+                 "sets it above 0", "{optimizer.beta1}"])
+    suite_entry("suite-command-placeholder-schedule-field-of-another-kind", "problems/0",
+                {"name": "cmd", "kind": "command", "command": {"argv": ["true", "{schedule.floor}"]}},
+                ["suite.json#/problems/0/command/argv/1", "{schedule.floor}", "kind constant",
+                 "{schedule.warmup}"])
+    suite_entry("suite-budget-below-confirm-min", "defaults/budget", 20,
+                ["suite.json#/defaults/budget", "budget 20", "confirm_min 50"])
+    suite_entry("suite-confirm-min-above-default-budget", "defaults",
+                {"seeds": 1, "outcome": {"confirm_min": 20000}},
+                ["suite.json#/defaults/outcome/confirm_min", "budget 10000", "confirm_min 20000"])
     suite_entry("suite-command-empty-argv", "problems/0",
                 {"name": "cmd", "kind": "command", "command": {"argv": []}},
                 ["suite.json#/problems/0/command/argv"])

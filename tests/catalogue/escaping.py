@@ -13,7 +13,9 @@ the message), or every output stays well-formed and inert:
     entity), and the page has as many <script> and <a> tags as the clean page;
   - junit.xml: parses as XML (a control byte cannot even be written as a character reference
     in XML 1.0);
-  - report.md: every table row has its header's cell count (no raw newline or pipe), no raw HTML;
+  - report.md: every table row has its header's cell count (no raw newline or pipe), no raw HTML
+    outside fenced code blocks (a failed run's stderr is shown verbatim in one, whose fence no
+    line inside can close);
   - stdout and stderr: no ESC, CR, NUL or other control byte that would drive a terminal.
 Exit 1 with one line per problem if any field breaks its format.
 """
@@ -69,6 +71,35 @@ def md_tables_split(text):
     return bad
 
 
+def outside_code_blocks(text):
+    """report.md without its fenced code blocks (CommonMark: a block opened by N backticks ends
+    only at a line of at least N backticks and nothing else); None when a block is left open."""
+    out, fence = [], None
+    for line in text.split("\n"):
+        stripped = line.strip()
+        if fence is None:
+            m = re.match(r"^ {0,3}(`{3,})", line)
+            if m:
+                fence = m.group(1)
+                continue
+            out.append(line)
+        elif re.fullmatch(r"`+", stripped) and len(stripped) >= len(fence) and len(line) - len(line.lstrip(" ")) <= 3:
+            fence = None
+    return None if fence is not None else "\n".join(out)
+
+
+def with_failed_run(doc):
+    """The first run of the first case as a failed command run, so that its reason, stderr,
+    command and request are fields too (the tiny suite's runs do not fail)."""
+    run = doc["cases"][0]["runs"][0]
+    run.update({"outcome": "failed", "reason": "the program exited with status 1",
+                "stderr": "Traceback (most recent call last):\n  File \"<string>\", line 1\n"
+                          "ModuleNotFoundError: No module named 'torch'",
+                "command": ["/usr/bin/python3", "train.py", "--lr", "0.1"],
+                "request": "{\"run\": 1, \"rate\": 0.1}"})
+    return doc
+
+
 def string_paths(doc, prefix=""):
     """JSON pointers of every string value, arrays cut to their first two elements."""
     if isinstance(doc, dict):
@@ -113,8 +144,9 @@ def main(argv):
             if code != 0:
                 print(f"setup: stepgate {' '.join(argv_)} exited {code}: {err.strip()[:300]}")
                 return 1
-        clean = json.loads((root / "out" / "results.json").read_text())
-        code, _, _, _, _ = cat.run_binary(["report", "out/results.json", "--out", "clean"], root)
+        clean = with_failed_run(json.loads((root / "out" / "results.json").read_text()))
+        (root / "clean.json").write_text(json.dumps(clean))
+        code, _, _, _, _ = cat.run_binary(["report", "clean.json", "--out", "clean"], root)
         clean_html = html_shape((root / "clean" / "report.html").read_text())
 
         pointers = sorted(set(string_paths(clean)))
@@ -157,8 +189,12 @@ def main(argv):
                 ET.parse(rep / "junit.xml")
             except ET.ParseError as e:
                 problems.append(f"{pointer}: junit.xml is not well-formed XML: {e}")
-            md = (rep / "report.md").read_text()
-            if "<script>" in md or "\x1b" in md or "\x00" in md:
+            md_all = (rep / "report.md").read_text()
+            md = outside_code_blocks(md_all)
+            if md is None:
+                problems.append(f"{pointer}: report.md leaves a code block open")
+                md = md_all
+            if "<script>" in md or "\x1b" in md_all or "\x00" in md_all:
                 problems.append(f"{pointer}: report.md holds raw markup or control bytes")
             if md_tables_split(md):
                 problems.append(f"{pointer}: report.md has a table row split: {md_tables_split(md)[0]!r}")

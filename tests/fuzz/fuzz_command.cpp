@@ -46,9 +46,8 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
 
   CommandCase c;
   c.case_id = "fuzz/none/gd";
-  c.optimizer = "gd";
+  c.optimizer.label = "gd";
   c.scaling = "none";
-  c.optimizer_fields = {{"kind", "gd"}};
   c.spec.serve = (flags & 1) != 0;
   c.spec.argv = c.spec.serve ? std::vector<std::string>{"/bin/sh", "-c", "read -r request; exec cat \"$0\"", out}
                              : std::vector<std::string>{"/bin/cat", out};

@@ -7,6 +7,7 @@
 #include <string>
 
 #include "fuzz_support.hpp"
+#include "stepgate/core/trainer_fields.hpp"
 #include "stepgate/suite/suite.hpp"
 #include "stepgate/sweep/plan.hpp"
 
@@ -18,7 +19,7 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     const stepgate::Plan plan = stepgate::make_plan(suite);
     (void)plan.max_runs();
     (void)plan.max_iterations();
-    for (const auto& [name, spec] : suite.optimizers) (void)stepgate::optimizer_fields(spec);
+    for (const auto& [name, spec] : suite.optimizers) (void)stepgate::trainer_placeholders(spec);
   });
   return 0;
 }
