@@ -73,6 +73,9 @@ WRONG = {
     "beta 1.0": lambda d: d["optimizers"]["hb"].update(beta=1.0),
     "optimizer without kind": lambda d: d["optimizers"]["hb"].pop("kind"),
     "sgd without batch size": lambda d: d["optimizers"].update(mb={"kind": "sgd"}),
+    "unknown batch sampling": lambda d: d["optimizers"].update(
+        mb={"kind": "sgd", "batch_size": 4, "sampling": "shuffled"}),
+    "batch sampling without batch size": lambda d: d["optimizers"].update(mb={"kind": "gd", "sampling": "independent"}),
     "two data sources": lambda d: d["datasets"]["houses"].update(generate={}),
     "no data source": lambda d: d["datasets"].update(empty={}),
     "linear model without dataset": lambda d: p0(d).pop("dataset"),

@@ -23,6 +23,7 @@ struct Theory {
   double predicted_blowup = kMissing;
   std::string rule;              ///< e.g. "2/L", "2(1+beta)/L"; "" when theory gives none
   std::string threshold;         ///< CaseTheory::threshold: "quadratic", "local", "mean_square" or ""
+  std::string method;            ///< how the threshold was computed where it takes more than a formula ("" else)
 };
 
 /// Computes the Theory of a problem for a step rule. `start` is the runs' starting point.

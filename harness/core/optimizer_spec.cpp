@@ -40,6 +40,28 @@ const std::vector<std::string>& optimizer_kind_names() {
 
 std::optional<OptimizerKind> optimizer_kind_from_string(std::string_view s) { return value_named(optimizer_kinds(), s); }
 
+std::string_view to_string(BatchSampling s) {
+  switch (s) {
+    case BatchSampling::epochs: return "epochs";
+    case BatchSampling::independent: return "independent";
+    case BatchSampling::replacement: return "replacement";
+  }
+  return "epochs";
+}
+
+const std::vector<BatchSampling>& batch_samplings() {
+  using S = BatchSampling;
+  static const std::vector<S> all = {S::epochs, S::independent, S::replacement};
+  return all;
+}
+
+const std::vector<std::string>& batch_sampling_names() {
+  static const std::vector<std::string> names = names_of(batch_samplings());
+  return names;
+}
+
+std::optional<BatchSampling> batch_sampling_from_string(std::string_view s) { return value_named(batch_samplings(), s); }
+
 const std::vector<OptimizerParam>& optimizer_params() {
   using K = OptimizerKind;
   using S = OptimizerSpec;
@@ -66,6 +88,8 @@ std::string validate(const OptimizerSpec& spec) {
     errors.push_back(fmt::format("batch_size = {}, expected a whole number >= 0 (0 = full batch)", spec.batch_size));
   else if (spec.kind == OptimizerKind::sgd && spec.batch_size == 0)
     errors.push_back("sgd needs batch_size > 0 (use gd for full batch)");
+  if (spec.sampling != BatchSampling::epochs && spec.batch_size == 0)
+    errors.push_back(fmt::format("sampling = {} applies to mini-batches, expected batch_size > 0", to_string(spec.sampling)));
   if (std::string s = validate(spec.schedule); !s.empty()) errors.push_back("schedule: " + s);
   return fmt::format("{}", fmt::join(errors, "; "));
 }

@@ -13,6 +13,19 @@ namespace stepgate {
 
 enum class OptimizerKind { gd, sgd, momentum, nesterov, adagrad, rmsprop, adam };
 
+/// How a mini-batch optimizer draws its batches of `batch_size` rows from the n samples. Every
+/// draw comes from the run's seed.
+enum class BatchSampling {
+  epochs,       ///< each epoch a fresh permutation cut into consecutive batches (the last may be
+                ///< smaller); batches of one epoch are disjoint, so steps are not independent.
+                ///< The default, as most training loops do.
+  independent,  ///< each step b distinct rows drawn uniformly, independently of earlier steps
+                ///< (without replacement within the batch): the sampling for which the
+                ///< mean-square stability limit holds, with c_b = (n − b)/(b(n − 1))
+  replacement,  ///< each step b rows drawn uniformly with replacement (repeats possible),
+                ///< independently of earlier steps: c_b = 1/b
+};
+
 /// What an optimizer is, with its published defaults.
 struct OptimizerSpec {
   OptimizerKind kind = OptimizerKind::gd;
@@ -24,6 +37,7 @@ struct OptimizerSpec {
   double eps = 1e-8;          ///< adam / rmsprop / adagrad: added to the root in the denominator
   long batch_size = 0;        ///< samples per mini-batch; 0 = full batch. sgd requires > 0;
                               ///< other kinds accept it too (mini-batch momentum, adam, ...)
+  BatchSampling sampling = BatchSampling::epochs;  ///< how batches are drawn (batch_size > 0 only)
   Schedule schedule;          ///< rate schedule; the searched rate is its base rate
 
   std::string name() const;   ///< label, or the kind's name when there is no label
@@ -45,6 +59,12 @@ const std::vector<OptimizerParam>& optimizer_params();
 const std::vector<OptimizerKind>& optimizer_kinds();
 /// Their names: "gd", "sgd", ...
 const std::vector<std::string>& optimizer_kind_names();
+
+/// Every sampling, in the order of the enum, and their names: "epochs", "independent", "replacement".
+const std::vector<BatchSampling>& batch_samplings();
+const std::vector<std::string>& batch_sampling_names();
+std::string_view to_string(BatchSampling s);
+std::optional<BatchSampling> batch_sampling_from_string(std::string_view s);
 
 std::string_view to_string(OptimizerKind k);
 /// Parses the lower-case name (as printed by to_string); nullopt for anything else.

@@ -14,6 +14,7 @@ json to_json(const OptimizerSpec& spec) {
   for (const OptimizerParam& p : optimizer_params())
     if (p.used_by(spec.kind)) out[std::string(p.key)] = finite_or_null(spec.*p.member);
   out["batch_size"] = spec.batch_size;
+  if (spec.batch_size > 0) out["sampling"] = to_string(spec.sampling);
   const Schedule& s = spec.schedule;
   json schedule = {{"kind", to_string(s.kind)}};
   for (const ScheduleParam& p : schedule_params())
@@ -33,6 +34,13 @@ OptimizerSpec optimizer_spec_from_json(const json& j, const std::string& path, c
   for (const OptimizerParam& p : optimizer_params())
     if (p.used_by(spec.kind)) spec.*p.member = f[p.key].number_or_missing();
   spec.batch_size = f["batch_size"].integer_as<long>();
+  // Written for mini-batches only; results of versions before it drew epochs.
+  if (spec.batch_size > 0 && j.contains("sampling")) {
+    const JsonField sampling = f["sampling"];
+    const auto bs = batch_sampling_from_string(sampling.string());
+    if (!bs) sampling.expected("a batch sampling (" + join(batch_sampling_names()) + ")");
+    spec.sampling = *bs;
+  }
 
   const JsonField s = f["schedule"];
   const JsonField skind = s["kind"];

@@ -9,11 +9,13 @@
 
 namespace stepgate {
 
-/// {"label","kind","beta","beta1","beta2","rho","eps","batch_size",
-///  "schedule":{"kind","factor","every","decay","floor","warmup"}}
+/// {"label","kind","beta","beta1","beta2","rho","eps","batch_size","sampling",
+///  "schedule":{"kind","factor","every","decay","floor","warmup"}}; the kind's parameters only,
+/// and "sampling" only with batch_size > 0.
 nlohmann::json to_json(const OptimizerSpec& spec);
 
-/// Inverse of to_json. Every field above is mandatory; unknown extra fields are ignored.
+/// Inverse of to_json. Every field above is mandatory, except "sampling" (absent: epochs, what
+/// versions before it did); unknown extra fields are ignored.
 /// Throws InputError(path + "#" + pointer of the bad field, "expected ..., found ..."); `at` is
 /// the pointer of `j` inside the file. Does not validate() ranges: a stored spec is data.
 /// Reads an optimizer entry of results.json; `pointer` is where `j` lies in the file `path`

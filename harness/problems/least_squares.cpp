@@ -93,6 +93,15 @@ class LeastSquares final : public detail::LinearModel {
     return lambda_max_;
   }
 
+  /// Sample i's Hessian s·n·x̃ᵢx̃ᵢᵀ (s the data weight, mean or sum) as uᵢuᵢᵀ; ridge l2 on the weights.
+  std::optional<SampleCurvature> sample_curvature() const override {
+    SampleCurvature c;
+    c.rows = std::sqrt(data_weight() * static_cast<double>(samples())) * Xaug_;
+    c.ridge = Vec::Zero(dim());
+    c.ridge.head(features_).setConstant(opt_.l2);
+    return c;
+  }
+
   /// λ_max(H) ≤ tr(H) for H ⪰ 0, always; where an eigenvalue solver gave λ_max (the Gram form,
   /// or p ≤ 4000) it is within p·ε·‖H‖ of the truth, hence the 1e-10 allowance. Beyond 4000
   /// parameters λ_max comes from power iteration, which approaches it from below: the trace.

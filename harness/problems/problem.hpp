@@ -33,6 +33,19 @@ struct LinearLayout {
   bool intercept = false;
 };
 
+/// The curvature of a cost that is a mean of per-sample quadratics plus a fixed ridge (least
+/// squares): ∇²J = (1/n) Σᵢ uᵢuᵢᵀ + diag(ridge) everywhere, and the Hessian of the mini-batch
+/// gradient over rows B (Problem::gradient_rows) is (1/|B|) Σ_{i∈B} uᵢuᵢᵀ + diag(ridge): the ridge
+/// is the same in every batch, only the data part varies. Used by the mean-square stability
+/// limit of mini-batch methods (analysis/mean_square_limit.hpp).
+struct SampleCurvature {
+  /// n x p: row i is uᵢ = √(n·w)·x̃ᵢ, x̃ᵢ the sample's features as the problem sees them (after
+  /// the suite's scaling) followed by 1 for the intercept, w the data weight (1/n for a mean
+  /// loss, 1 for a sum): so that uᵢuᵢᵀ is sample i's Hessian scaled to a mean.
+  Mat rows;
+  Vec ridge;  ///< p entries >= 0: l2 on the weights, 0 on intercepts
+};
+
 /// Caller-owned working memory for evaluations. A problem resizes the members it needs;
 /// Eigen's resize to the same shape does not reallocate, so the steady state allocates nothing.
 struct Scratch {
@@ -100,6 +113,10 @@ class Problem {
   /// on λ_max(H), never below it (rounding included). NaN for every other problem. It admits the
   /// proven early `slow` verdict of gd (docs/design.md, "A proven early slow verdict").
   virtual double quadratic_curvature_bound() const { return kMissing; }
+
+  /// For a cost made of per-sample quadratics plus a fixed ridge (least squares): its samples'
+  /// curvature (a copy, n x p); nullopt for every other problem.
+  virtual std::optional<SampleCurvature> sample_curvature() const { return std::nullopt; }
 
   /// Layout of a linear model's parameters; nullopt for problems that are not linear models.
   virtual std::optional<LinearLayout> linear_layout() const { return std::nullopt; }

@@ -112,7 +112,9 @@ std::vector<RunRecord> run_batch(const Problem& problem, const OptimizerSpec& sp
     Scratch scratch;
     Mat G;
     std::optional<MiniBatches> batches;
-    if (minibatch) batches.emplace(problem.samples(), spec.batch_size, derive_seed({seed.seed, std::string_view("minibatch")}));
+    if (minibatch)
+      batches.emplace(problem.samples(), spec.batch_size, derive_seed({seed.seed, std::string_view("minibatch")}),
+                      spec.sampling);
     optimizer->reset(problem.dim(), K);
     std::vector<Index> keep, to_probe;
     keep.reserve(2 * rates.size());

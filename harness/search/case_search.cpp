@@ -217,6 +217,7 @@ CaseSearchOutput Searcher::search() {
                                  {}, use_optimum);
     out.theory = {t.L, t.mu, t.at_start.lambda_max, t.at_start.lambda_min, t.at_optimum.lambda_max,
                   t.at_optimum.lambda_min, t.predicted_blowup, t.rule, t.at_start.method, t.threshold};
+    if (!t.method.empty()) out.theory.method += "; " + t.method;
     if (!use_optimum)
       out.theory.method = "at the start only: the suite skips the optimum (\"optimum\": \"skip\"), so there is no "
                           "gap and no predicted threshold (" + t.at_start.method + ")";

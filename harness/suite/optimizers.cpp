@@ -35,6 +35,12 @@ OptimizerSpec read_optimizer(const Node& node, const std::string& name) {
     if (auto n = o.find(p.key)) s.*p.member = n->number_if([&](double v) { return p.range.admits(v); }, p.range.expected());
   if (auto n = o.find("batch_size"))
     s.batch_size = n->integer_if([](long v) { return v >= 0; }, "a whole number >= 0 (0 = full batch)");
+  if (auto n = o.find("sampling")) {
+    s.sampling = *batch_sampling_from_string(n->choice(batch_sampling_names(), "batch sampling"));
+    if (s.batch_size == 0)
+      n->fail(fmt::format("found sampling '{}' on a full-batch optimizer; expected batch_size > 0 beside it",
+                          to_string(s.sampling)));
+  }
   if (auto n = o.find("schedule")) s.schedule = read_schedule(*n);
   if (const std::string problems = validate(s); !problems.empty())
     node.fail(fmt::format("optimizer '{}' is out of range: {}", name, problems));
@@ -47,7 +53,7 @@ const std::vector<std::string>& optimizer_keys() {
   static const std::vector<std::string> keys = [] {
     std::vector<std::string> out = {"kind"};
     for (const OptimizerParam& p : optimizer_params()) out.emplace_back(p.key);
-    out.insert(out.end(), {"batch_size", "schedule"});
+    out.insert(out.end(), {"batch_size", "sampling", "schedule"});
     return out;
   }();
   return keys;

@@ -1169,6 +1169,15 @@ def catalogue():
                 ["suite.json#/problems/0/optimizers/1", "undefined optimizer"])
     suite_entry("suite-optimizer-beta-above-1", "optimizers/hb/beta", 1.5,
                 ["suite.json#/optimizers/hb", "beta"])
+    suite_entry("suite-optimizer-sampling-unknown", "optimizers/mb",
+                {"kind": "sgd", "batch_size": 4, "sampling": "shuffle"},
+                ["suite.json#/optimizers/mb/sampling", "unknown batch sampling 'shuffle'",
+                 "epochs, independent, replacement"])
+    suite_entry("suite-optimizer-sampling-not-a-word", "optimizers/mb",
+                {"kind": "sgd", "batch_size": 4, "sampling": ["independent"]},
+                ["suite.json#/optimizers/mb/sampling", "expected a batch sampling"])
+    suite_entry("suite-optimizer-sampling-full-batch", "optimizers/hb/sampling", "independent",
+                ["suite.json#/optimizers/hb/sampling", "expected batch_size > 0"])
     suite_entry("suite-schedule-unknown-kind", "optimizers/hb/schedule", {"kind": "linear"},
                 ["suite.json#/optimizers/hb/schedule/kind", "unknown schedule kind"])
     suite_entry("suite-quadratic-condition-below-1", "problems/0/condition", 0.5,
@@ -1531,6 +1540,10 @@ def catalogue():
               files=with_results(lambda d: put(d, "cases/0/gate/case_added", "maybe"))))
     add(Entry("results-optimizer-unknown-kind", chk, 2, err=["r.json#/cases/0/optimizer"],
               files=with_results(lambda d: put(d, "cases/0/optimizer/kind", "warp"))))
+    add(Entry("results-optimizer-unknown-sampling", chk, 2, err=["r.json#/cases/0/optimizer/sampling",
+                                                                 "expected a batch sampling"],
+              files=with_results(lambda d: (put(d, "cases/0/optimizer/batch_size", 4),
+                                            put(d, "cases/0/optimizer/sampling", "shuffle"))[0])))
     add(Entry("results-shard-is-a-number", chk, 2, err=["r.json#/shard"],
               files=with_results(lambda d: put(d, "shard", 2))))
     add(Entry("baseline-cores-negative", chkb, 2, err=["b.json#/host/cores"],

@@ -437,6 +437,11 @@ TEST_CASE("optimizer spec: names, parsing and validation", "[optimizers]") {
   sgd_full_batch.batch_size = 0;
   CHECK_THAT(validate(sgd_full_batch), Contains("batch_size > 0"));
   CHECK_THROWS_AS(make_optimizer(sgd_full_batch), std::invalid_argument);
+  OptimizerSpec sampled_full_batch = spec_of(OptimizerKind::gd);
+  sampled_full_batch.sampling = BatchSampling::independent;  // batches to draw, but no batch size
+  CHECK_THAT(validate(sampled_full_batch), Contains("sampling = independent applies to mini-batches"));
+  sampled_full_batch.batch_size = 4;
+  CHECK(validate(sampled_full_batch).empty());
   OptimizerSpec two_errors = spec_of(OptimizerKind::gd);
   two_errors.beta = 2.0;
   two_errors.eps = 0.0;

@@ -486,6 +486,26 @@ TEST_CASE("results: run roles and optimizer specs round-trip by name", "[results
   CHECK(back.schedule.factor == spec.schedule.factor);
   CHECK(back.schedule.every == spec.schedule.every);
   CHECK(back.schedule.warmup == spec.schedule.warmup);
+
+  // The batch sampling: written with a batch size only; absent (results of earlier versions) it
+  // reads as epochs, what those versions drew; a word that is not a sampling is refused at its key.
+  CHECK(written.at("sampling") == "epochs");
+  spec.sampling = BatchSampling::replacement;
+  CHECK(optimizer_spec_from_json(json::parse(to_json(spec).dump()), "spec.json").sampling == BatchSampling::replacement);
+  json older = to_json(spec);
+  older.erase("sampling");
+  CHECK(optimizer_spec_from_json(older, "spec.json").sampling == BatchSampling::epochs);
+  json bad = to_json(spec);
+  bad["sampling"] = "shuffled";
+  try {
+    optimizer_spec_from_json(bad, "r.json", "/cases/0/optimizer");
+    FAIL("no error");
+  } catch (const InputError& e) {
+    CHECK(e.where() == "r.json#/cases/0/optimizer/sampling");
+    CHECK_THAT(e.message(), Catch::Contains("expected a batch sampling (epochs, independent, replacement)"));
+  }
+  OptimizerSpec full_batch;
+  CHECK_FALSE(to_json(full_batch).contains("sampling"));
 }
 
 TEST_CASE("results: tool, host and time facts", "[results]") {

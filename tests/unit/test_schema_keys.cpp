@@ -92,6 +92,10 @@ TEST_CASE("schema: the keys of gate, settings, rates and outcome equal the reade
     schedule_kinds.insert(k.get<std::string>());
   CHECK(kinds == as_set(optimizer_kind_names()));
   CHECK(schedule_kinds == as_set(schedule_kind_names()));
+  std::set<std::string> samplings;
+  for (const auto& k : s.at("$defs").at("optimizer").at("properties").at("sampling").at("enum"))
+    samplings.insert(k.get<std::string>());
+  CHECK(samplings == as_set(batch_sampling_names()));
   // Each gate tolerance is named as its rule, or is one of the documented pairs.
   for (const std::string& key : gate_keys()) {
     INFO(key);

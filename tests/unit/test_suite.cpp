@@ -141,6 +141,8 @@ TEST_CASE("suite: a full suite reaches every field of the Suite value", "[suite]
     CHECK(s.optimizers.at("adam").beta1 == OptimizerSpec{}.beta1);
     CHECK(s.optimizers.at("mb").kind == OptimizerKind::sgd);
     CHECK(s.optimizers.at("mb").batch_size == 8);
+    CHECK(s.optimizers.at("mb").sampling == BatchSampling::independent);
+    CHECK(s.optimizers.at("hb-0.8").sampling == BatchSampling::epochs);  // the default
     CHECK(s.optimizers.at("mb").schedule.kind == ScheduleKind::cosine);
     CHECK(s.optimizers.at("mb").schedule.floor == 0.1);
     CHECK(s.optimizers.at("rms").rho == 0.95);
@@ -433,6 +435,17 @@ TEST_CASE("suite: malformed suites fail at the right pointer with a helpful mess
       {"predefined sgd has no batch size",
        [](Json& j) { j["problems"][0]["optimizers"] = {"sgd"}; }, "/problems/0/optimizers/0",
        "sgd needs batch_size > 0"},
+      {"unknown batch sampling",
+       [](Json& j) { j["optimizers"]["mbs"] = {{"kind", "sgd"}, {"batch_size", 4}, {"sampling", "independant"}}; },
+       "/optimizers/mbs/sampling",
+       "unknown batch sampling 'independant' (did you mean 'independent'?); expected one of: epochs, independent, "
+       "replacement"},
+      {"batch sampling not a word",
+       [](Json& j) { j["optimizers"]["mbs"] = {{"kind", "sgd"}, {"batch_size", 4}, {"sampling", 1}}; },
+       "/optimizers/mbs/sampling", "expected a batch sampling (one of: epochs, independent, replacement), found 1"},
+      {"batch sampling on a full-batch optimizer",
+       [](Json& j) { j["optimizers"]["gds"] = {{"kind", "gd"}, {"sampling", "replacement"}}; },
+       "/optimizers/gds/sampling", "expected batch_size > 0 beside it"},
       {"sgd on a quadratic",
        [](Json& j) {
          j["optimizers"]["mb"] = {{"kind", "sgd"}, {"batch_size", 4}};
