@@ -20,11 +20,12 @@ step sees `batch` images). One thread, deterministic algorithms: a run is a func
 request.
 
 The budget counts optimizer STEPS (updates), not epochs. What is logged (--log):
-  step       (default) {"iter": k, "cost": J_k} for k = 0..budget, J_k the mean cross-entropy
-             of the minibatch of step k+1 at the weights after k updates: the loss a training
-             loop computes just before its (k+1)-th update. Iteration 0 is the loss at the
-             initial weights, before any update; iteration `budget` is the loss of the next
-             minibatch after the last update (computed, not stepped).
+  step       (default) {"iter": k, "cost": J_k} for k = 0..budget, J_k the training loss (mean
+             cross-entropy; the sum under --sum-loss) of the minibatch of step k+1 at the
+             weights after k updates: the loss a training loop computes just before its
+             (k+1)-th update. Iteration 0 is the loss at the initial weights, before any
+             update; iteration `budget` is the loss of the next minibatch after the last
+             update (computed, not stepped).
   heldout:N  {"iter": k, "cost": H_k} for k = 0, N, 2N, ... and k = budget, H_k the mean
              cross-entropy of the held-out images at the weights after k updates (the mean
              also under --sum-loss: an evaluation, not the training loss).
