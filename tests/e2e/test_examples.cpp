@@ -1,7 +1,9 @@
 // The examples under examples/ gate the teams' own trainers (scenarios of our own): each
 // shipped suite passes against its accepted baseline, and its planted change (behind a flag of
-// the trainer) fails the gate on edge_moved. Needs Debian's python3 with numpy, scikit-learn and
-// PyTorch (scripts/setup --tests installs them).
+// the trainer) fails the gate on edge_moved. The minibatch example (noisy training, no baseline
+// yet) runs its whole search with every run classified, and its two modes agree. Needs Debian's
+// python3 with numpy, scikit-learn and PyTorch, and dataset-fashion-mnist (scripts/setup --tests
+// installs them).
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <fmt/format.h>
@@ -108,5 +110,98 @@ TEST_CASE("examples: the PyTorch trainer gates, and serving and per-run mode agr
     CHECK(x[i]["outcome"] == y[i]["outcome"]);
     CHECK(x[i]["converged_at"] == y[i]["converged_at"]);
     CHECK(x[i]["trace"] == y[i]["trace"]);
+  }
+}
+
+TEST_CASE("examples: the PyTorch minibatch trainer's suite runs end to end, every run classified", "[examples]") {
+  // Noisy training (minibatch losses, float32, shuffled epochs) with default outcome settings:
+  // what holds whatever the outcome rules make of the noise. The whole search completes, every
+  // run is classified and none fails (a failed run is a broken protocol or a trainer error).
+  TempDir dir("example-torch-minibatch");
+  const std::string suite = quoted((example("torch_minibatch") / "suite.json").string());
+  const CliResult run = e2e::stepgate("run " + suite + " --out r --jobs 2 --quiet", dir.path());
+  INFO(run.out << run.err);
+  report_time("example torch_minibatch: full search", run.seconds);
+  REQUIRE(run.exit_code <= 1);  // 1: a baseline-free rule (pinned_headroom) may fail; 2 or 3 never
+  const json r = read_json(dir / "r" / "results.json");
+  const json suite_json = read_json(example("torch_minibatch") / "suite.json");
+  const long budget = suite_json["defaults"]["budget"];
+  REQUIRE(r["cases"].size() == 4);
+  for (const std::string id : {"tagger-steps/none/hb-0.9", "tagger-steps/none/adam-cosine", "tagger-heldout/none/hb-0.9",
+                               "tagger-heldout/none/adam-cosine"}) {
+    INFO("case " << id);
+    const json& c = case_of(r, id);
+    REQUIRE(c["runs"].size() >= 16 * 2);  // at least the grid, for both seeds
+    for (const json& x : c["runs"]) {
+      INFO("rate " << x["rate"] << " seed " << x["seed_index"] << ": " << x["reason"]);
+      const std::string outcome = x["outcome"];
+      CHECK((outcome == "converged" || outcome == "slow" || outcome == "oscillating" || outcome == "diverged"));
+      const json& trace = x["trace"];
+      REQUIRE(trace.size() >= 2);
+      CHECK(trace[0][0] == 0);
+      // Iteration 0 is the untrained network's loss: ten classes from PyTorch's default
+      // initialisation (small logits) score about ln 10 = 2.303, a uniform guess.
+      CHECK(std::abs(trace[0][1].get<double>() - std::log(10.0)) < 0.1);
+      for (const json& point : trace) {
+        const long k = point[0];
+        CHECK(k <= budget);
+        // The held-out loss is logged every 20 steps and at the last one (--log heldout:20).
+        if (id.starts_with("tagger-heldout")) CHECK((k % 20 == 0 || k == budget));
+      }
+    }
+  }
+  // Far above any workable rate the loss of momentum SGD leaves every bound: each seed diverges
+  // (a NaN, or a loss 1e4 times its start) at 4.6 and at 10 (manual check: NaN at both, README).
+  for (const json& x : case_of(r, "tagger-steps/none/hb-0.9")["runs"])
+    if (x["rate"].get<double>() > 4) CHECK(x["outcome"] == "diverged");
+}
+
+TEST_CASE("examples: the PyTorch minibatch trainer gives the same runs in serving and per-run mode", "[examples]") {
+  // Both ways of logging (the minibatch loss every step, the held-out loss every 20 steps), a
+  // few fixed rates, one seed: the same outcomes and traces whether one process serves every
+  // run or each run starts its own.
+  TempDir dir("example-torch-minibatch-modes");
+  json s = read_json(example("torch_minibatch") / "suite.json");
+  s["defaults"]["seeds"] = 1;
+  // Fixed rates only, and no narrowing (5.0 diverges: the blow-up would be searched for).
+  s["defaults"]["rates"] = {{"grid", nullptr},        {"fixed", {0.01, 0.3, 5.0}}, {"locate_edge", false},
+                            {"locate_floor", false}, {"locate_blowup", false}};
+  for (json& p : s["problems"]) {
+    p["command"]["cwd"] = example("torch_minibatch").string();
+    p["optimizers"] = {"hb-0.9"};
+    p["pinned"] = 0.015;
+  }
+  write_json(dir / "serving.json", s);
+  for (json& p : s["problems"]) {
+    json argv = {"/usr/bin/python3", "train.py", "--lr",   "{rate}",           "--seed", "{seed}",
+                 "--steps",          "{budget}", "--kind", "{optimizer.kind}", "--beta", "{optimizer.beta}"};
+    if (p["name"] == "tagger-heldout") argv.insert(argv.end(), {"--log", "heldout:20"});
+    p["command"]["serve"] = false;
+    p["command"]["argv"] = argv;
+  }
+  write_json(dir / "per-run.json", s);
+  const CliResult a = e2e::stepgate("run serving.json --out s --jobs 2 --quiet", dir.path());
+  const CliResult b = e2e::stepgate("run per-run.json --out p --jobs 2 --quiet", dir.path());
+  INFO(a.out << a.err << b.out << b.err);
+  report_time("example torch_minibatch: serving, 4 rates x 2 cases", a.seconds);
+  report_time("example torch_minibatch: per-run, 4 rates x 2 cases", b.seconds);
+  REQUIRE(a.exit_code <= 1);  // fixed rates only: the headroom rule may fail, alike in both modes
+  REQUIRE(a.exit_code == b.exit_code);
+  const json rs = read_json(dir / "s" / "results.json"), rp = read_json(dir / "p" / "results.json");
+  REQUIRE(rs["cases"].size() == 2);
+  REQUIRE(rp["cases"].size() == 2);
+  for (std::size_t c = 0; c < 2; ++c) {
+    const json& x = rs["cases"][c]["runs"];
+    const json& y = rp["cases"][c]["runs"];
+    INFO("case " << rs["cases"][c]["id"]);
+    REQUIRE(rs["cases"][c]["id"] == rp["cases"][c]["id"]);
+    REQUIRE(x.size() == 4);  // the three fixed rates and the pinned one
+    REQUIRE(y.size() == 4);
+    for (std::size_t i = 0; i < 4; ++i) {
+      INFO("rate " << x[i]["rate"]);
+      CHECK(x[i]["outcome"] != "failed");
+      CHECK(x[i]["outcome"] == y[i]["outcome"]);
+      CHECK(x[i]["trace"] == y[i]["trace"]);
+    }
   }
 }
