@@ -37,16 +37,7 @@ const std::string kScript = std::string(STEPGATE_SOURCE_DIR) + "/tests/reference
 std::string data_file(const char* name) { return std::string(STEPGATE_SOURCE_DIR) + "/suites/data/" + name; }
 
 // /usr/bin/python3 SCRIPT ARGS; "" when Python, numpy or the script fails.
-std::string run_script(const std::string& args) {
-  if (!data_test::fs::exists("/usr/bin/python3")) return "";
-  std::FILE* pipe = popen(("/usr/bin/python3 " + kScript + " " + args + " 2>/dev/null").c_str(), "r");
-  if (!pipe) return "";
-  std::string out;
-  char block[4096];
-  std::size_t got;
-  while ((got = std::fread(block, 1, sizeof block, pipe)) > 0) out.append(block, got);
-  return pclose(pipe) == 0 ? out : "";
-}
+std::string run_script(const std::string& args) { return data_test::run_python_file(kScript, args); }
 
 std::vector<double> numbers(std::istream& in, std::size_t count) {
   std::vector<double> v(count);

@@ -33,19 +33,26 @@ inline void write_gzip(const std::string& path, const std::string& bytes) {
   REQUIRE(gzclose(gz) == Z_OK);
 }
 
-// Runs /usr/bin/python3 on a script; "" when Python or the module is unavailable.
-inline std::string run_python(const std::string& script) {
+// Runs /usr/bin/python3 on a script file with arguments; its stdout, or "" when Python is
+// missing or the script fails.
+inline std::string run_python_file(const std::string& path, const std::string& args = "") {
   if (!fs::exists("/usr/bin/python3")) return "";
-  // One file per script, so that tests run in parallel by ctest do not overwrite each other's.
-  const std::string path = temp_path("reference-" + std::to_string(std::hash<std::string>{}(script)) + ".py");
-  write_file(path, script);
-  std::FILE* pipe = popen(("/usr/bin/python3 " + path + " 2>/dev/null").c_str(), "r");
+  std::FILE* pipe = popen(("/usr/bin/python3 " + path + (args.empty() ? "" : " " + args) + " 2>/dev/null").c_str(), "r");
   if (!pipe) return "";
   std::string out;
   char block[4096];
   std::size_t got;
   while ((got = std::fread(block, 1, sizeof block, pipe)) > 0) out.append(block, got);
   return pclose(pipe) == 0 ? out : "";
+}
+
+// Runs /usr/bin/python3 on a script; "" when Python or the module is unavailable.
+inline std::string run_python(const std::string& script) {
+  if (!fs::exists("/usr/bin/python3")) return "";
+  // One file per script, so that tests run in parallel by ctest do not overwrite each other's.
+  const std::string path = temp_path("reference-" + std::to_string(std::hash<std::string>{}(script)) + ".py");
+  write_file(path, script);
+  return run_python_file(path);
 }
 
 inline std::string idx_bytes(std::uint32_t magic, const std::vector<std::uint32_t>& dims,
