@@ -81,7 +81,10 @@ class Inbox:
         return found
 
 
-def serve(run_one, default_beta=None):
+def serve(run_one, default_beta=None, whole_request=False):
+    """Answers requests until stdin ends. run_one(rate, seed, budget, extra, emit, stopped) gets
+    as `extra` the request's beta (or default_beta), or with whole_request the request itself
+    (a dict: the optimizer's kind and fields, batch_size, schedule)."""
     inbox = Inbox()
     while True:
         msg = inbox.next()
@@ -94,20 +97,24 @@ def serve(run_one, default_beta=None):
             rate, seed, budget = float(msg["rate"]), int(msg["seed"]), int(msg["budget"])
         except (KeyError, TypeError, ValueError) as e:
             sys.exit(f"serve: request {msg!r}: needs numeric rate, seed and budget ({e})")
-        beta = float(msg["beta"]) if "beta" in msg else default_beta
-        run_one(rate, seed, budget, beta, lambda obj: say({"run": rid, **obj}),
+        if whole_request:
+            extra = msg
+        else:
+            extra = float(msg["beta"]) if "beta" in msg else default_beta
+        run_one(rate, seed, budget, extra, lambda obj: say({"run": rid, **obj}),
                 lambda: inbox.stop_requested(rid))
         say({"run": rid, "end": True})
 
 
-def run_or_serve(parser, args, run_one, beta=None):
+def run_or_serve(parser, args, run_one, beta=None, whole_request=False):
     """The trainer's main: serving mode with --serve, else one run from --lr, --seed and --steps
-    whose final parameters end the output. Returns the exit code."""
+    whose final parameters end the output. Returns the exit code. `extra` (see serve) is beta in
+    per-run mode, or with whole_request an empty request: the command line's values stand."""
     if args.serve:
-        return serve(run_one, default_beta=beta)
+        return serve(run_one, default_beta=beta, whole_request=whole_request)
     if args.lr is None or args.steps is None or args.steps < 0:
         parser.error("per-run mode needs --lr and --steps >= 0 (or --serve)")
-    params = run_one(args.lr, args.seed, args.steps, beta, say, lambda: False)
+    params = run_one(args.lr, args.seed, args.steps, {} if whole_request else beta, say, lambda: False)
     if params is not None:
         say({"params": [float(v) for v in params]})
     return 0

@@ -58,7 +58,7 @@ import torch
 
 # The command protocol (examples/stepgate_command.py), shared by the examples.
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), ".."))
-from stepgate_command import Inbox, run_or_serve, say  # noqa: E402
+from stepgate_command import run_or_serve  # noqa: E402
 
 DATA_DIR = "/usr/share/datasets/fashion-mnist"
 TRAIN_IMAGES = 5000  # the first images of the training file
@@ -254,26 +254,6 @@ def parse_log(text):
     raise argparse.ArgumentTypeError(f"--log {text!r}: expected step or heldout:N with N >= 1")
 
 
-def serve_requests(run_one):
-    """Serving mode: like stepgate_command.serve, but each run is given the whole request (the
-    optimizer's kind, parameters and schedule), not only rate, seed, budget and beta."""
-    inbox = Inbox()
-    while True:
-        msg = inbox.next()
-        if msg is None:
-            return 0
-        if "run" not in msg:
-            continue  # a stop for a run that has already ended
-        rid = msg["run"]
-        try:
-            rate, seed, budget = float(msg["rate"]), int(msg["seed"]), int(msg["budget"])
-        except (KeyError, TypeError, ValueError) as e:
-            sys.exit(f"serve: request {msg!r}: needs numeric rate, seed and budget ({e})")
-        run_one(rate, seed, budget, msg, lambda obj: say({"run": rid, **obj}),
-                lambda: inbox.stop_requested(rid))
-        say({"run": rid, "end": True})
-
-
 def command_line():
     p = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     p.add_argument("--lr", type=float, help="base learning rate (per-run mode)")
@@ -321,15 +301,13 @@ def main():
 
     def run_one(rate, seed, budget, request, emit, stopped):
         try:
-            settings = run_settings(defaults, request if isinstance(request, dict) else {})
+            settings = run_settings(defaults, request)
             train(data, settings, rate, seed, budget, reduction, args.log, emit, stopped)
         except ValueError as e:
             sys.exit(f"train.py: {e}")
         return None  # no params line: 25,450 weights, and no reference to compare them with
 
-    if args.serve:
-        return serve_requests(run_one)
-    return run_or_serve(p, args, run_one)
+    return run_or_serve(p, args, run_one, whole_request=True)
 
 
 if __name__ == "__main__":

@@ -61,6 +61,14 @@ double noise_level(std::span<const double> v, std::span<const double> smoothed, 
   return sigma > 1e-9 * size ? sigma : 0.0;
 }
 
+double end_level(std::span<const double> v, bool smoothed) {
+  const std::size_t n = v.size();
+  if (n == 0) return std::numeric_limits<double>::quiet_NaN();
+  if (!smoothed) return v[n - 1];
+  const std::size_t w = std::min<std::size_t>(n, 2 * static_cast<std::size_t>(smoothing_half_width(n)) + 1);
+  return median_of(v.subspan(n - w));
+}
+
 double noise_level_of(std::span<const double> v) {
   const int h = smoothing_half_width(v.size());
   std::vector<double> s;

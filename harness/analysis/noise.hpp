@@ -29,6 +29,10 @@ double median_of(std::span<const double> v);
 /// |v| (rounding at a converged run's last bits, not sampling).
 double noise_level(std::span<const double> v, std::span<const double> smoothed, int h);
 
+/// The level a trace ends at, as the rules read it: with noise (`smoothed`), the median of the
+/// last 2h+1 values (h = smoothing_half_width(n)); without, the last value. NaN when empty.
+double end_level(std::span<const double> v, bool smoothed);
+
 /// noise_level of v against its running median of half-width smoothing_half_width(v.size()).
 double noise_level_of(std::span<const double> v);
 

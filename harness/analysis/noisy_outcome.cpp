@@ -64,10 +64,9 @@ Classification classify_whole_trace(std::span<const TracePoint> trace, const Out
 
   // Levels. A minibatch loss at iteration 0 is itself a noisy draw: the start is the larger of
   // it and the median of the first h+1 evaluations; the end is the median of the last 2h+1.
-  const std::size_t w = std::min<std::size_t>(n, 2 * static_cast<std::size_t>(h) + 1);
   const double start = smoothing ? std::max(v.raw[0], median_of_range(v.raw, 0, std::min<std::size_t>(n, h + 1)))
                                  : v.raw[0];
-  const double final_level = smoothing ? median_of_range(v.raw, n - w, n) : v.raw[n - 1];
+  const double final_level = end_level(v.raw, smoothing);
   const double best = *std::min_element(v.smooth.begin(), v.smooth.end());
   const double top = *std::max_element(v.smooth.begin(), v.smooth.end());
   const long last_iter = trace[n - 1].iter;

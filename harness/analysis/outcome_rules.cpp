@@ -60,7 +60,8 @@ bool OutcomeMonitor::criterion_met(const TracePoint& p) {
       const double scale = std::abs(old) > 0.0 ? std::abs(old) : 1.0;
       return (old - p.cost) / scale < tol_;
     }
-    case Criterion::automatic: break;
+    case Criterion::automatic:
+    case Criterion::settled: break;  // whole-trace criteria: decided by classify_whole_trace
   }
   return false;
 }

@@ -65,6 +65,7 @@ const std::vector<SettingField<OutcomeSettings>>& outcome_fields() {
       {"confirm_min", &O::confirm_min, Range::count_at_least(0)},
       {"probe", &O::probe},
       {"rise_factor", &O::rise_factor, Range::above(1)},
+      {"level_ratio", &O::level_ratio, Range::above(1)},
   };
   return fields;
 }

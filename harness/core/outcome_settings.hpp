@@ -91,6 +91,13 @@ struct OutcomeSettings {
   /// the weights were thrown far from any useful region; minibatch spikes are single steps,
   /// which the smoothing removes.
   double rise_factor = 10.0;
+  /// Noisy runs without a known optimum judged by `settled` (analysis/seed_level): a run
+  /// converges only if it also ends at most level_ratio times the lowest level that any run of
+  /// its seed in the grid ended at (when that level is above 0). 1.5: a network stuck at chance
+  /// level ends several times above a trained one (2.30 against 0.4–1.2 on ten classes), while
+  /// the stationary level of constant-rate SGD, which grows with the rate, stays within 1.5 of
+  /// the best up to about three times the best rate (measured on examples/torch_minibatch).
+  double level_ratio = 1.5;
 
   /// The tolerance in force for the given criterion (resolves NaN to the default).
   double tolerance(Criterion resolved) const;

@@ -11,6 +11,7 @@
 #include "stepgate/analysis/curvature.hpp"
 #include "stepgate/analysis/reference.hpp"
 #include "stepgate/analysis/safe_range.hpp"
+#include "stepgate/analysis/seed_level.hpp"
 #include "stepgate/core/seed.hpp"
 #include "stepgate/run/batch.hpp"
 #include "stepgate/run/step_rule.hpp"
@@ -34,6 +35,9 @@ struct SeedRuns {
   BatchSeed seed;
   std::map<double, std::size_t> by_rate;
   SeedSummary summary;
+  // The best level of the seed's grid and fixed runs (analysis/seed_level), once they are in;
+  // every noisy run judged by `settled` is held to it, those and every later one.
+  std::optional<BestLevel> best_level;
 };
 
 class Searcher {
@@ -65,6 +69,7 @@ class Searcher {
   std::optional<std::size_t> best_grid_index() const;
   void summarise(CaseSearchOutput& out) const;
   void compare_reference(CaseSearchOutput& out) const;
+  void set_best_level(SeedRuns& s);
 
   const RunBatchFn& runner_;
   const Problem* problem_;  // nullptr: runs come from elsewhere (a command); no theory
@@ -95,6 +100,9 @@ std::vector<Outcome> Searcher::run(SeedRuns& s, const std::vector<double>& rates
       if (in_.store) in_.store->keep(s.seed.index, todo, records);
     }
     for (RunRecord& r : records) {
+      // Kept and recalled as classified alone; held to the seed's level here, the same way
+      // whether the run was made or recalled.
+      if (s.best_level) hold_to_best_level(r, *s.best_level, in_.run.outcome);
       s.by_rate.emplace(r.rate, order_.size());
       order_.push_back(StoredRun{std::move(r), role});
     }
@@ -197,6 +205,7 @@ CaseSearchOutput Searcher::search() {
   for (SeedRuns& s : seeds_) {
     run(s, grid_, RunRole::grid);
     run(s, fixed, RunRole::fixed);
+    set_best_level(s);
   }
   const std::optional<std::size_t> best = grid_.empty() ? std::nullopt : best_grid_index();
   for (SeedRuns& s : seeds_) locate_seed(s, best);
@@ -230,6 +239,13 @@ CaseSearchOutput Searcher::search() {
   }
   out.runs = std::move(order_);
   return out;
+}
+
+void Searcher::set_best_level(SeedRuns& s) {
+  std::vector<const RunRecord*> runs;
+  for (const auto& [rate, index] : s.by_rate) runs.push_back(&order_[index].record);
+  s.best_level = best_level(runs, in_.run.outcome);
+  for (const auto& [rate, index] : s.by_rate) hold_to_best_level(order_[index].record, *s.best_level, in_.run.outcome);
 }
 
 void Searcher::summarise(CaseSearchOutput& out) const {

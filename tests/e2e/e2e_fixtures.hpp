@@ -158,4 +158,17 @@ inline json without_run_facts(json results) {
   return results;
 }
 
+/// Whether report.md (or a case's section of it) has a gate finding of this severity and rule.
+inline bool has_finding(const std::string& report_md, const std::string& severity, const std::string& rule) {
+  return report_md.find("- **" + severity + "** `" + rule + "`") != std::string::npos;
+}
+
+/// The per-case section of report.md ("#### fail: id" up to the next case); "" when absent.
+inline std::string case_section(const std::string& report_md, const std::string& id) {
+  const std::size_t at = report_md.find(": " + id + "\n");
+  if (at == std::string::npos) return "";
+  const std::size_t end = report_md.find("\n#### ", at);
+  return report_md.substr(at, end == std::string::npos ? std::string::npos : end - at);
+}
+
 }  // namespace stepgate::e2e

@@ -1,7 +1,7 @@
 // The examples under examples/ gate the teams' own trainers (scenarios of our own): each
 // shipped suite passes against its accepted baseline, and its planted change (behind a flag of
-// the trainer) fails the gate on edge_moved. The minibatch example (noisy training, no baseline
-// yet) runs its whole search with every run classified, and its two modes agree. Needs Debian's
+// the trainer) fails the gate on edge_moved. The minibatch example (noisy training, default
+// outcome settings) finds edges that agree with its manual check, and its two modes agree. Needs Debian's
 // python3 with numpy, scikit-learn and PyTorch, and dataset-fashion-mnist (scripts/setup --tests
 // installs them).
 #include <catch2/catch.hpp>
@@ -113,16 +113,19 @@ TEST_CASE("examples: the PyTorch trainer gates, and serving and per-run mode agr
   }
 }
 
-TEST_CASE("examples: the PyTorch minibatch trainer's suite runs end to end, every run classified", "[examples]") {
-  // Noisy training (minibatch losses, float32, shuffled epochs) with default outcome settings:
-  // what holds whatever the outcome rules make of the noise. The whole search completes, every
-  // run is classified and none fails (a failed run is a broken protocol or a trainer error).
+TEST_CASE("examples: the PyTorch minibatch trainer, default settings: sensible edges, unchanged passes, summed loss fails momentum", "[examples]") {
+  // Noisy training (minibatch losses, float32, shuffled epochs) with default outcome settings,
+  // against the accepted baseline. Ground truth: the manual check of examples/torch_minibatch
+  // (README, "Manual check"): every configuration trains at the pinned rates (0.015, 0.01), the
+  // manual edge is 0.036 and the first failing rate 0.2154 for all four cases.
   TempDir dir("example-torch-minibatch");
   const std::string suite = quoted((example("torch_minibatch") / "suite.json").string());
-  const CliResult run = e2e::stepgate("run " + suite + " --out r --jobs 2 --quiet", dir.path());
+  const std::string baseline = quoted((example("torch_minibatch") / "baseline.json").string());
+  const CliResult run =
+      e2e::stepgate("run " + suite + " --baseline " + baseline + " --out r --jobs 2 --quiet", dir.path());
   INFO(run.out << run.err);
-  report_time("example torch_minibatch: full search", run.seconds);
-  REQUIRE(run.exit_code <= 1);  // 1: a baseline-free rule (pinned_headroom) may fail; 2 or 3 never
+  report_time("example torch_minibatch: full search, unchanged", run.seconds);
+  CHECK(run.exit_code == 0);  // an unchanged re-run passes the gate
   const json r = read_json(dir / "r" / "results.json");
   const json suite_json = read_json(example("torch_minibatch") / "suite.json");
   const long budget = suite_json["defaults"]["budget"];
@@ -132,10 +135,13 @@ TEST_CASE("examples: the PyTorch minibatch trainer's suite runs end to end, ever
     INFO("case " << id);
     const json& c = case_of(r, id);
     REQUIRE(c["runs"].size() >= 16 * 2);  // at least the grid, for both seeds
+    int diverged = 0;
     for (const json& x : c["runs"]) {
       INFO("rate " << x["rate"] << " seed " << x["seed_index"] << ": " << x["reason"]);
       const std::string outcome = x["outcome"];
       CHECK((outcome == "converged" || outcome == "slow" || outcome == "oscillating" || outcome == "diverged"));
+      diverged += outcome == "diverged";
+      CHECK(x["noise"].is_number());  // every command run is read as noisy and says its noise level
       const json& trace = x["trace"];
       REQUIRE(trace.size() >= 2);
       CHECK(trace[0][0] == 0);
@@ -149,11 +155,43 @@ TEST_CASE("examples: the PyTorch minibatch trainer's suite runs end to end, ever
         if (id.starts_with("tagger-heldout")) CHECK((k % 20 == 0 || k == budget));
       }
     }
+    // Default settings give every case a safe range around the pinned rate (converged for both
+    // seeds), an edge between the manual edge's half and the first failing rate, and a located
+    // blow-up below 0.3 (the manual check: chance level from 0.2154 on, blow-ups from 0.46 to 1).
+    const json& sum = c["summary"];
+    CHECK(sum["pinned_outcome"] == "converged");
+    REQUIRE(sum["edge"].is_number());
+    CHECK(sum["edge"].get<double>() > 0.036 / 2);
+    CHECK(sum["edge"].get<double>() < 0.2154);
+    REQUIRE(sum["blowup"].is_number());
+    CHECK(sum["blowup"].get<double>() > sum["edge"].get<double>());
+    CHECK(sum["blowup"].get<double>() < 0.3);
+    CHECK(diverged >= 2 * 4);  // at least the grid's rates from 1 up, for each seed
   }
   // Far above any workable rate the loss of momentum SGD leaves every bound: each seed diverges
   // (a NaN, or a loss 1e4 times its start) at 4.6 and at 10 (manual check: NaN at both, README).
   for (const json& x : case_of(r, "tagger-steps/none/hb-0.9")["runs"])
     if (x["rate"].get<double>() > 4) CHECK(x["outcome"] == "diverged");
+
+  // Planted: the loss summed over the batch of 64, not averaged. Momentum SGD's edge falls by
+  // about 64 (manual check: 0.036 to 0.0006); Adam is invariant to the loss's scale.
+  const fs::path planted = planted_suite("torch_minibatch", "--sum-loss", dir.path());
+  const CliResult changed =
+      e2e::stepgate("run " + quoted(planted.string()) + " --baseline " + baseline + " --out sum --jobs 2 --quiet", dir.path());
+  INFO(changed.out << changed.err);
+  report_time("example torch_minibatch: full search, loss summed", changed.seconds);
+  CHECK(changed.exit_code == 1);
+  const std::string md = read_text(dir / "sum" / "report.md");
+  const json after = read_json(dir / "sum" / "results.json");
+  for (const std::string id : {"tagger-steps/none/hb-0.9", "tagger-heldout/none/hb-0.9"}) {
+    INFO("case " << id);
+    CHECK(has_finding(case_section(md, id), "fail", "edge_moved"));
+    CHECK(case_of(after, id)["summary"]["edge"].get<double>() < case_of(r, id)["summary"]["edge"].get<double>() / 10);
+  }
+  for (const std::string id : {"tagger-steps/none/adam-cosine", "tagger-heldout/none/adam-cosine"}) {
+    INFO("case " << id);
+    CHECK_FALSE(has_finding(case_section(md, id), "fail", "edge_moved"));
+  }
 }
 
 TEST_CASE("examples: the PyTorch minibatch trainer gives the same runs in serving and per-run mode", "[examples]") {

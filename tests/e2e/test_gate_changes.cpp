@@ -68,18 +68,6 @@ GatedRun run_plant_variant(const TempDir& tmp, const std::string& suite_text, co
 
 std::string fmt4(double v) { return fmt::format("{:.4g}", v); }
 
-bool has_finding(const std::string& report_md, const std::string& severity, const std::string& rule) {
-  return report_md.find("- **" + severity + "** `" + rule + "`") != std::string::npos;
-}
-
-// The per-case section of report.md ("#### fail: id" up to the next case).
-std::string case_section(const std::string& report_md, const std::string& id) {
-  const std::size_t at = report_md.find(": " + id + "\n");
-  if (at == std::string::npos) return "";
-  const std::size_t end = report_md.find("\n#### ", at);
-  return report_md.substr(at, end == std::string::npos ? std::string::npos : end - at);
-}
-
 }  // namespace
 
 TEST_CASE("gate: the plant baseline itself is healthy", "[e2e]") {

@@ -110,3 +110,28 @@ TEST_CASE("reference: requiring more digits than the solution has fails min_lre"
   const json& now = case_of(results, kLongleyCase).at("summary");
   CHECK(now.at("reference").at("min_lre").get<double>() == Approx(digits));
 }
+
+TEST_CASE("reference: suites/reference.json re-run passes its accepted baseline, noisy sgd cases included", "[e2e]") {
+  // references/reference.baseline.json was accepted from this suite (scripts/build's machine
+  // build); the two noisy built-in cases (minibatch sgd with batches of 16) are in it. An
+  // unchanged re-run must pass every rule, and the noisy runs say their noise level.
+  TempDir tmp("reference-suite");
+  const fs::path baseline = source_dir() / "references" / "reference.baseline.json";
+  const CliResult r = expect_exit("run " + quoted((source_dir() / "suites" / "reference.json").string()) +
+                                      " --quiet --jobs 2 --baseline " + quoted(baseline.string()) + " --out out",
+                                  tmp.path(), 0);
+  report_time("reference suite, gated", r.seconds);
+  const json results = read_json(tmp.path() / "out" / "results.json");
+  for (const std::string id : {"diabetes-ols-sgd/std/sgd-16-independent", "breast-cancer-logit-sgd/std/sgd-16"}) {
+    INFO("case " << id);
+    const json& c = case_of(results, id);
+    REQUIRE(c["summary"]["edge"].is_number());
+    for (const json& x : c["runs"])
+      if (x["outcome"] != "failed") CHECK(x["noise"].is_number());
+  }
+  // The least-squares case sits beside its mean-square limit (README, "mean-square stability
+  // limit"): its first divergence is not below the limit by more than the search precision.
+  const json& ls = case_of(results, "diabetes-ols-sgd/std/sgd-16-independent");
+  REQUIRE(ls["theory"]["threshold"] == "mean_square");
+  CHECK(ls["summary"]["blowup"].get<double>() * 1.05 >= ls["theory"]["predicted_blowup"].get<double>());
+}

@@ -6,11 +6,14 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <cstdint>
+#include <functional>
 #include <vector>
 
 #include "stepgate/analysis/noise.hpp"
 #include "stepgate/analysis/noisy_outcome.hpp"
 #include "stepgate/analysis/outcome_rules.hpp"
+#include "stepgate/analysis/seed_level.hpp"
+#include "stepgate/search/case_search.hpp"
 
 using namespace stepgate;
 
@@ -256,4 +259,130 @@ TEST_CASE("noisy with J* and no scatter: the live rules decide, reason and itera
     CHECK(read_noisy.reason == live.reason);
     CHECK(read_noisy.noise == 0.0);
   }
+}
+
+// ---- Beside the seed's best level (analysis/seed_level) ----
+
+namespace {
+
+// A network's minibatch loss at rate r over 300 steps, started from unnormalised inputs (a loss
+// of 21 at initialisation, as examples/torch_minibatch's --no-normalize): up to 0.1 it falls
+// to a level that grows with the rate, 0.4 + 0.6 (r/0.1)²; from 0.1 to 2 the first steps throw
+// it to chance level (2.30), where it stays; above 2 the loss is non-finite at step 5.
+std::vector<TracePoint> network_trace(double r, std::uint64_t seed) {
+  if (r > 2.0) {
+    std::vector<TracePoint> t;
+    for (int k = 0; k <= 5; ++k) t.push_back({k, k < 5 ? 21.0 * std::pow(10.0, k) : kInf, kMissing, kMissing});
+    return t;
+  }
+  const double level = r <= 0.1 ? 0.4 + 0.6 * (r / 0.1) * (r / 0.1) : 2.30;
+  const double speed = r <= 0.1 ? 100.0 * r : 50.0;  // fraction of the way per unit of x
+  auto f = [&](double x) { return x == 0.0 ? 21.0 : level + (21.0 - level) * std::exp(-300.0 * speed * x); };
+  std::vector<TracePoint> t = noisy_trace(f, 0.08, 301, seed);
+  t[0].cost = 21.0;
+  return t;
+}
+
+CaseSearchOutput search_network(const OutcomeSettings& outcome) {
+  CaseSearchInput in;
+  in.case_id = "net/none/momentum";
+  in.run.budget = 300;
+  in.run.outcome = outcome;
+  in.rates.grid = RateGrid{1e-3, 10.0, 3};
+  in.rates.precision = 0.05;
+  in.seeds = {1, 2};
+  const RunBatchFn runner = [&](std::span<const double> rates, BatchSeed seed) {
+    std::vector<RunRecord> out;
+    for (double r : rates) {
+      RunRecord rec;
+      rec.rate = r;
+      rec.seed = seed.seed;
+      rec.seed_index = seed.index;
+      rec.trace = network_trace(r, seed.seed ^ std::hash<double>{}(r));
+      rec.steps = rec.trace.back().iter;
+      record_classification(classify(rec.trace, outcome, false, true), rec);
+      out.push_back(std::move(rec));
+    }
+    return out;
+  };
+  return search_case_with(runner, nullptr, in);
+}
+
+}  // namespace
+
+TEST_CASE("a network stuck at chance level after a fast first fall is not converged", "[noise][level]") {
+  // Alone, the settled criterion accepts every run up to rate 2: each fell from 21 and settled.
+  OutcomeSettings alone;
+  alone.level_ratio = 1e9;
+  const CaseSearchOutput before = search_network(alone);
+  CHECK(before.summary.edge > 1.5);
+  // Beside the seed's best level (0.4 at the lowest rates that finish their fall), a run must
+  // end below 1.5 × 0.4 = 0.6: 0.4 + 0.6 (r/0.1)² ≤ 0.6 up to r = 0.1/√3 = 0.0577. The best
+  // level is the lowest of a dozen noisy end levels (each a median of 21 losses of sd 0.08, so
+  // about ±0.02), which puts it up to 0.05 lower: then the edge is down to 0.1·√(0.14/0.6) = 0.048.
+  const CaseSearchOutput after = search_network(OutcomeSettings{});
+  INFO("edge " << after.summary.edge);
+  CHECK(after.summary.edge >= 0.045);
+  CHECK(after.summary.edge <= 0.0577 * 1.05);
+  int held = 0, chance_slow = 0;
+  for (const StoredRun& s : after.runs) {
+    if (s.record.reason.find("level_ratio 1.5") != std::string::npos) ++held;
+    if (s.record.rate > 0.1 && s.record.rate <= 2.0) {
+      CHECK(s.record.outcome == Outcome::slow);
+      ++chance_slow;
+    }
+  }
+  CHECK(held >= chance_slow);
+  CHECK(chance_slow >= 2 * 3);  // the grid's 0.215, 0.464 and 1, for each seed
+  // The blow-up is where the loss turns non-finite, as before.
+  CHECK(after.summary.blowup > 2.0);
+  CHECK(after.summary.blowup < 2.0 * 1.06);
+}
+
+TEST_CASE("the level rule: which runs it reads, the best level and the ratio", "[noise][level]") {
+  OutcomeSettings s;
+  auto run = [](double rate, double level, Outcome o, double noise, bool gap) {
+    RunRecord r;
+    r.rate = rate;
+    r.outcome = o;
+    r.noise = noise;
+    r.reason = "settled";
+    if (o == Outcome::converged) r.iterations = 10;
+    for (int k = 0; k <= 40; ++k) {
+      const double c = k == 0 ? 2.3 : level;
+      r.trace.push_back({k, c, gap ? c - 0.1 : kMissing, kMissing});
+    }
+    return r;
+  };
+  const RunRecord a = run(0.01, 0.4, Outcome::converged, 0.05, false);
+  const RunRecord b = run(0.1, 0.7, Outcome::converged, 0.05, false);
+  const RunRecord c = run(1.0, 0.1, Outcome::diverged, 0.05, false);   // diverged: not a level
+  const RunRecord d = run(0.001, 0.3, Outcome::slow, 0.05, false);     // slow runs count
+  const RunRecord e = run(0.002, 0.2, Outcome::converged, kMissing, false);  // not read as noisy
+  const RunRecord f = run(0.003, 0.2, Outcome::converged, 0.05, true);       // J* known
+  CHECK(judged_by_level(a, s));
+  CHECK_FALSE(judged_by_level(e, s));
+  CHECK_FALSE(judged_by_level(f, s));
+  OutcomeSettings named_gap;
+  named_gap.criterion = Criterion::cost;
+  named_gap.target = 1.0;
+  CHECK_FALSE(judged_by_level(a, named_gap));
+  const std::vector<const RunRecord*> runs{&a, &b, &c, &d, &e, &f};
+  const BestLevel best = best_level(runs, s);
+  CHECK(best.level == 0.3);
+  CHECK(best.rate == 0.001);
+  RunRecord a2 = a, b2 = b, e2 = e;
+  CHECK_FALSE(hold_to_best_level(a2, best, s));  // 0.4 ≤ 1.5 × 0.3
+  CHECK(hold_to_best_level(b2, best, s));        // 0.7 > 0.45
+  CHECK(b2.outcome == Outcome::slow);
+  CHECK_FALSE(b2.iterations);
+  CHECK(b2.reason.find("ends at 0.7, above level_ratio 1.5 x the best level 0.3") != std::string::npos);
+  CHECK(b2.reason.find("judged alone: settled") != std::string::npos);
+  CHECK_FALSE(hold_to_best_level(e2, best, s));
+  // A best level at or below 0 has no natural zero for a ratio: nothing changes.
+  RunRecord b3 = b;
+  CHECK_FALSE(hold_to_best_level(b3, BestLevel{0.0, 0.001}, s));
+  CHECK_FALSE(hold_to_best_level(b3, BestLevel{-1.0, 0.001}, s));
+  CHECK_FALSE(hold_to_best_level(b3, BestLevel{}, s));
+  CHECK(b3.outcome == Outcome::converged);
 }
