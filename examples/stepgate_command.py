@@ -10,11 +10,11 @@ request per line from stdin, for example
    "schedule": {"kind": "cosine", "floor": 0.0, "warmup": 50}, "scaling": "none"}
 
   {"run": 8, "rate": 0.001, "seed": 1, "budget": 500, "optimizer": "adam-64",
-   "kind": "adam", "beta1": 0.9, "beta2": 0.999, "eps": 1e-08, "batch_size": 64,
+   "kind": "adam", "beta1": 0.9, "beta2": 0.999, "eps": 1e-08, "batch_size": 64, "sampling": "epochs",
    "schedule": {"kind": "constant", "warmup": 0}, "scaling": "none"}
 
 with exactly the fields of the optimizer's kind (momentum, nesterov: beta; adam: beta1, beta2,
-eps; rmsprop: rho, eps; adagrad: eps; gd, sgd: none), "batch_size" only when the suite sets one,
+eps; rmsprop: rho, eps; adagrad: eps; gd, sgd: none), "batch_size" and "sampling" only when the suite sets a batch size,
 and the schedule's kind, its own parameters (step: factor, every; exponential, inverse_time:
 decay; cosine: floor) and warmup. It answers each with its lines tagged {"run": id, ...} and a
 last {"run": id, "end": true}; a {"stop": id} line asks it to end that run early. In per-run mode

@@ -10,7 +10,10 @@ std::vector<TrainerField> optimizer_trainer_fields(const OptimizerSpec& spec) {
   std::vector<TrainerField> out = {{"kind", std::string(to_string(spec.kind))}};
   for (const OptimizerParam& p : optimizer_params())
     if (p.used_by(spec.kind)) out.push_back({std::string(p.key), spec.*p.member});
-  if (spec.batch_size > 0) out.push_back({"batch_size", spec.batch_size});
+  if (spec.batch_size > 0) {
+    out.push_back({"batch_size", spec.batch_size});
+    out.push_back({"sampling", std::string(to_string(spec.sampling))});  // how the suite's batches are drawn
+  }
   return out;
 }
 

@@ -24,7 +24,8 @@ struct TrainerField {
 
 /// "kind", then the kind's own parameters in table order (momentum, nesterov: beta; adam:
 /// beta1, beta2, eps; rmsprop: rho, eps; adagrad: eps; gd and sgd: none), then "batch_size"
-/// when the optimizer sets one (> 0, for any kind; 0, full batch, is not a field).
+/// and "sampling" ("epochs", "independent" or "replacement": how batches are drawn) when the
+/// optimizer sets a batch size (> 0, for any kind; 0, full batch, has neither field).
 std::vector<TrainerField> optimizer_trainer_fields(const OptimizerSpec& spec);
 /// "kind", then the schedule kind's own parameters (step: factor, every; exponential and
 /// inverse_time: decay; cosine: floor), then "warmup" (every kind).

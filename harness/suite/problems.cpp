@@ -289,7 +289,9 @@ void check_placeholders(const ObjectNode& o, const Suite& suite, const ProblemSp
           throw std::invalid_argument(fmt::format(
               "found {{{}}}, a field that optimizer '{}' (kind {}) does not have{}; its fields: {}", name, label,
               to_string(spec.kind),
-              field == "batch_size" ? " (batch_size is a field only where the optimizer sets it above 0)" : "",
+              field == "batch_size" || field == "sampling"
+                  ? " (batch_size and sampling are fields only where the optimizer sets a batch_size above 0)"
+                  : "",
               field_list(optimizer_trainer_fields(spec), "optimizer")));
         });
       } catch (const std::invalid_argument& e) {

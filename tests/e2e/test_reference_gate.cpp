@@ -111,7 +111,7 @@ TEST_CASE("reference: requiring more digits than the solution has fails min_lre"
   CHECK(now.at("reference").at("min_lre").get<double>() == Approx(digits));
 }
 
-TEST_CASE("reference: suites/reference.json re-run passes its accepted baseline, noisy sgd cases included", "[e2e]") {
+TEST_CASE("reference: suites/reference.json re-run passes its accepted baseline with its noisy sgd cases", "[e2e]") {
   // references/reference.baseline.json was accepted from this suite (scripts/build's machine
   // build); the two noisy built-in cases (minibatch sgd with batches of 16) are in it. An
   // unchanged re-run must pass every rule, and the noisy runs say their noise level.

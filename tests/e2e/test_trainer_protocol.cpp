@@ -63,7 +63,7 @@ TEST_CASE("trainer protocol: serving requests carry exactly the optimizer's and 
                               "scaling": "none"})"));
   CHECK(adam == json::parse(R"({"rate": 0.5, "seed": 1, "budget": 60, "optimizer": "adam-64", "kind": "adam",
                                 "beta1": 0.9, "beta2": 0.99, "eps": 1e-08, "batch_size": 64,
-                                "schedule": {"kind": "cosine", "floor": 0.0, "warmup": 5}, "scaling": "none"})"));
+                                "sampling": "epochs", "schedule": {"kind": "cosine", "floor": 0.0, "warmup": 5}, "scaling": "none"})"));
 }
 
 TEST_CASE("trainer protocol: placeholders expand to the kind's fields, and no {out} folder unless asked", "[commands]") {

@@ -90,10 +90,10 @@ TEST_CASE("trainer fields: each kind gets exactly its own parameters", "[command
   // batch_size only where the optimizer sets it, for any kind.
   OptimizerSpec hb = spec_of(OptimizerKind::momentum, "hb");
   hb.batch_size = 64;
-  CHECK(keys(hb) == V{"kind", "beta", "batch_size"});
+  CHECK(keys(hb) == V{"kind", "beta", "batch_size", "sampling"});
   OptimizerSpec sgd = spec_of(OptimizerKind::sgd, "sgd");
   sgd.batch_size = 32;
-  CHECK(keys(sgd) == V{"kind", "batch_size"});
+  CHECK(keys(sgd) == V{"kind", "batch_size", "sampling"});
   // Real values, not defaults of other kinds.
   OptimizerSpec adam = spec_of(OptimizerKind::adam, "adam");
   adam.beta1 = 0.85, adam.beta2 = 0.99, adam.eps = 1e-6;
@@ -135,14 +135,14 @@ TEST_CASE("trainer fields: the serving request, field by field and in order", "[
   adam.batch_size = 64;
   const Json q = serving_request({1, 0.001, 1, 3000}, adam, "none");
   CHECK(keys_of(q) == std::vector<std::string>{"run", "rate", "seed", "budget", "optimizer", "kind", "beta1", "beta2",
-                                               "eps", "batch_size", "schedule", "scaling"});
+                                               "eps", "batch_size", "sampling", "schedule", "scaling"});
   CHECK(q["batch_size"] == 64);
   CHECK(q["eps"].get<double>() == 1e-8);
   CHECK_FALSE(q.contains("rho"));
   CHECK_FALSE(q.contains("beta"));
   // The momentum request has no field of another kind, and no batch_size it did not set.
   const Json m = serving_request({7, 0.05, 2, 500}, hb, "std");
-  for (const char* absent : {"rho", "beta1", "beta2", "eps", "batch_size"}) CHECK_FALSE(m.contains(absent));
+  for (const char* absent : {"rho", "beta1", "beta2", "eps", "batch_size", "sampling"}) CHECK_FALSE(m.contains(absent));
 }
 
 TEST_CASE("trainer fields: placeholders name exactly the kind's fields", "[commands]") {
@@ -164,6 +164,9 @@ TEST_CASE("trainer fields: placeholders name exactly the kind's fields", "[comma
   OptimizerSpec sized = hb;
   sized.batch_size = 128;
   CHECK(trainer_placeholders(sized).at("optimizer.batch_size") == "128");
+  CHECK(trainer_placeholders(sized).at("optimizer.sampling") == "epochs");  // the default, told as it is
+  sized.sampling = BatchSampling::independent;
+  CHECK(trainer_placeholders(sized).at("optimizer.sampling") == "independent");
 
   CHECK(uses_placeholder({"python3", "t.py", "--out", "{out}"}, "out"));
   CHECK(uses_placeholder({"python3", "--dir={out}/x"}, "out"));
@@ -189,7 +192,8 @@ TEST_CASE("trainer fields: the suite refuses a placeholder of a field the kind d
     REQUIRE(e);
     CHECK(e->where() == "suite.json#/problems/0/command/argv/1");
     CHECK(e->message().find("optimizer 'hb' (kind momentum)") != std::string::npos);
-    CHECK(e->message().find("batch_size is a field only where the optimizer sets it") != std::string::npos);
+    CHECK(e->message().find("batch_size and sampling are fields only where the optimizer sets a batch_size") !=
+          std::string::npos);
   }
   SECTION("{schedule.decay} on a cosine schedule") {
     const auto e = error_of(command_suite(optimizers, {"adam-64"}, {"python3", "{schedule.decay}"}, defaults));
