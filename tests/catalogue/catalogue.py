@@ -1189,6 +1189,10 @@ def catalogue():
                 ["suite.json#/defaults/outcome/criterion", "target"])
     suite_entry("suite-blowup-factor-one", "defaults/outcome", {"blowup_factor": 1},
                 ["suite.json#/defaults/outcome/blowup_factor", "> 1"])
+    suite_entry("suite-level-ratio-one", "defaults/outcome", {"level_ratio": 1},
+                ["suite.json#/defaults/outcome/level_ratio", "> 1"])
+    suite_entry("suite-level-ratio-text", "defaults/outcome", {"level_ratio": "1.5"},
+                ["suite.json#/defaults/outcome/level_ratio", "number"])
     suite_entry("suite-gate-severity-unknown", "gate", {"case_added": "maybe"},
                 ["suite.json#/gate/case_added", "unknown severity"])
     suite_entry("suite-undefined-dataset", "problems/0/dataset", "plnt",
@@ -1224,7 +1228,7 @@ def catalogue():
                 {"name": "cmd", "kind": "command", "optimizers": ["adam"],
                  "command": {"argv": ["true", "--batch={optimizer.batch_size}"]}},
                 ["suite.json#/problems/0/command/argv/1", "{optimizer.batch_size}", "'adam'",
-                 "sets it above 0", "{optimizer.beta1}"])
+                 "sets a batch_size above 0", "{optimizer.beta1}"])
     suite_entry("suite-command-placeholder-schedule-field-of-another-kind", "problems/0",
                 {"name": "cmd", "kind": "command", "command": {"argv": ["true", "{schedule.floor}"]}},
                 ["suite.json#/problems/0/command/argv/1", "{schedule.floor}", "kind constant",
