@@ -80,9 +80,17 @@ int accept_command(const Args& args) {
   const Results results = read_results(path);
   if (!results.shard.empty())
     throw InputError(path, fmt::format("these are the results of shard {}; merge all shards first (stepgate merge)", results.shard));
-  for (const CaseResult& c : results.cases)
+  for (std::size_t i = 0; i < results.cases.size(); ++i) {
+    const CaseResult& c = results.cases[i];
     if (!c.error.empty())
       throw InputError(path, fmt::format("case {} could not be run ({}); a baseline needs every case", c.id, c.error));
+    // A verified case holds what its probes proved (the edge within a tolerance of the old
+    // baseline), not a located safe range: accepting it would let the baseline drift.
+    if (c.verification && c.verification->verified)
+      throw InputError(fmt::format("{}#/cases/{}/verification", path, i),
+                       fmt::format("case {} was verified against a baseline, not searched; expected the results of a "
+                                   "full search (run the suite again with --full, or without --baseline)", c.id));
+  }
   const std::string name = results.suite.name;
   if (!p.vm.count("baseline") || !p.vm.count("record"))  // the default paths are made from the name
     if (name.empty() || name == "." || name == ".." || name.find('/') != std::string::npos || name.find('\0') != std::string::npos)

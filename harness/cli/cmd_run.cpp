@@ -1,4 +1,4 @@
-// stepgate run SUITE [--out DIR] [--jobs N] [--baseline FILE] [--shard K/N|slurm] [--resume] [--quiet]
+// stepgate run SUITE [--out DIR] [--jobs N] [--baseline FILE [--full]] [--shard K/N|slurm] [--resume] [--quiet]
 #include <signal.h>
 #include <unistd.h>
 
@@ -76,12 +76,14 @@ int run_command(const Args& args) {
       ("baseline", po::value<std::string>(), "accepted baseline to compare with (without one only the rules that need none apply); exit 0 pass / 1 fail")
       ("shard", po::value<std::string>(),
        "run only shard K of N of the cases (K/N), or 'slurm': K and N from the job array's environment")
+      ("full", po::bool_switch(),
+       "with --baseline: search every case in full instead of first verifying the baseline's boundaries with a few runs")
       ("resume", po::bool_switch(), "continue from OUT/journal.jsonl: finished runs are not run again")
       ("quiet,q", po::bool_switch(), "no progress line, no summary table and no scope note (why runs failed is still shown)");
   po::positional_options_description pos;
   pos.add("suite", 1);
   const Parsed p = parse_options(
-      args, opt, pos, "stepgate run SUITE [--out DIR] [--jobs N] [--baseline FILE] [--shard K/N|slurm] [--resume] [--quiet]");
+      args, opt, pos, "stepgate run SUITE [--out DIR] [--jobs N] [--baseline FILE [--full]] [--shard K/N|slurm] [--resume] [--quiet]");
   if (p.help) return kExitPass;
   const int jobs = p.vm["jobs"].as<int>();
   if (jobs < 0 || jobs > kMaxJobs)
@@ -98,6 +100,9 @@ int run_command(const Args& args) {
   if (p.vm.count("baseline")) options.baseline = p.vm["baseline"].as<std::string>();
   if (p.vm.count("shard")) options.shard = parse_shard(p.vm["shard"].as<std::string>());
   options.resume = p.vm["resume"].as<bool>();
+  options.full = p.vm["full"].as<bool>();
+  if (options.full && options.baseline.empty())
+    throw InputError("--full", "is only meaningful with --baseline (without one every case is searched in full)");
   options.note = [&](const std::string& text) {
     if (!quiet) std::cerr << "stepgate: " << text << "\n";
   };

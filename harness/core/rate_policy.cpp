@@ -23,6 +23,7 @@ const std::vector<SettingField<RatePolicy>>& rate_fields() {
       {"locate_floor", &P::locate_floor},
       {"locate_blowup", &P::locate_blowup},
       {"refine_points", &P::refine_points, Range::count_in(0, 32)},
+      {"verify", &P::verify},
   };
   return fields;
 }

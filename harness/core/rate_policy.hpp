@@ -24,6 +24,10 @@ struct RatePolicy {
   bool locate_blowup = true;      ///< narrow the lowest diverging rate above the edge
   int refine_points = 4;          ///< best rate: extra rates between the grid neighbours of the
                                   ///< grid's best, 0..32 (0 = no refinement)
+  /// With a baseline, check its boundaries with a few probe runs before searching (verify mode,
+  /// core/baseline_check.hpp); the case is searched only when a probe disagrees. false: always
+  /// search (what `run --full` does for every case).
+  bool verify = true;
 };
 
 /// from, to, per_decade.

@@ -23,13 +23,14 @@ std::string_view to_string(RunRole r) {
     case RunRole::floor: return "floor";
     case RunRole::blowup: return "blowup";
     case RunRole::refine: return "refine";
+    case RunRole::verify: return "verify";
   }
   return "grid";
 }
 
 std::optional<RunRole> run_role_from_string(std::string_view s) {
   using R = RunRole;
-  static const std::vector<R> roles = {R::grid, R::fixed, R::edge, R::floor, R::blowup, R::refine};
+  static const std::vector<R> roles = {R::grid, R::fixed, R::edge, R::floor, R::blowup, R::refine, R::verify};
   return value_named(roles, s);
 }
 
@@ -208,6 +209,25 @@ json failures_json(const CaseResult& c) {
   return out;
 }
 
+json to_json(const BaselineCheck& v) {
+  json probes = json::array();
+  for (const BoundaryProbe& p : v.probes)
+    probes.push_back({{"kind", to_string(p.kind)},
+                      {"rate", finite_or_null(p.rate)},
+                      {"seed", p.seed},
+                      {"outcome", to_string(p.outcome)},
+                      {"as_expected", p.as_expected}});
+  return {{"verified", v.verified},
+          {"disagreement", text_or_null(v.disagreement)},
+          {"baseline_edge", finite_or_null(v.baseline_edge)},
+          {"baseline_floor", finite_or_null(v.baseline_floor)},
+          {"edge_probes", json::array({finite_or_null(v.edge_inside), finite_or_null(v.edge_outside)})},
+          {"floor_probes", json::array({finite_or_null(v.floor_inside), finite_or_null(v.floor_outside)})},
+          {"runs", v.runs},
+          {"probes", std::move(probes)},
+          {"proves", describe(v)}};
+}
+
 json to_json(const CaseResult& c, const TraceThinning& t) {
   json runs = json::array();
   for (const StoredRun& run : c.runs) runs.push_back(to_json(run.record, run.role, t));
@@ -222,6 +242,7 @@ json to_json(const CaseResult& c, const TraceThinning& t) {
           {"error", text_or_null(c.error)},
           {"theory", to_json(c.theory)},
           {"summary", to_json(c.summary)},
+          {"verification", c.verification ? to_json(*c.verification) : json(nullptr)},
           {"failures", failures_json(c)},
           {"runs", std::move(runs)},
           {"gate", to_json(c.gate)},

@@ -10,6 +10,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "stepgate/core/baseline_check.hpp"
 #include "stepgate/core/gate_tolerances.hpp"
 #include "stepgate/core/optimizer_spec.hpp"
 #include "stepgate/core/run_record.hpp"
@@ -18,8 +19,9 @@ namespace stepgate {
 
 inline constexpr const char* kResultsFormat = "stepgate.results/2";
 
-/// Why a run was made: the search step that asked for it.
-enum class RunRole { grid, fixed, edge, floor, blowup, refine };
+/// Why a run was made: the search step that asked for it, or `verify` for a probe of verify mode
+/// (core/baseline_check.hpp).
+enum class RunRole { grid, fixed, edge, floor, blowup, refine, verify };
 std::string_view to_string(RunRole r);
 std::optional<RunRole> run_role_from_string(std::string_view s);
 
@@ -142,6 +144,11 @@ struct CaseResult {
   std::vector<StoredRun> runs;
   std::string error;         ///< non-empty when the case could not be run at all
   GateTolerances gate;       ///< the gate tolerances in force for this case (suite merged with problem)
+  /// Verify mode (core/baseline_check.hpp): the probes run against the baseline and whether they
+  /// agreed. Verified: `runs` are the probes (role verify) and the summary holds what they prove.
+  /// Disagreed: the probes stay here and `runs` are the full search's. nullopt: searched without
+  /// a check (no baseline, --full, `rates.verify` false, or a case the baseline does not hold).
+  std::optional<BaselineCheck> verification;
   /// Elapsed seconds from the start of the case's search to its end (timing only; its batched
   /// lanes share this time, so it is not the sum of its runs' times).
   double wall_seconds = kMissing;

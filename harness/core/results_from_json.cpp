@@ -45,7 +45,7 @@ StoredRun read_run(const JsonField& f) {
   run.record = run_record_from(f, RunRecordStyle{});
   const JsonField role = f["role"];
   const auto rr = run_role_from_string(role.string());
-  if (!rr) role.expected("a run role (grid, fixed, edge, floor, blowup, refine)");
+  if (!rr) role.expected("a run role (grid, fixed, edge, floor, blowup, refine, verify)");
   run.role = *rr;
   // final_cost is the last trace point's cost (checked for type, derived on output); the gap
   // is stored only at run level and goes back to the last point, where it came from.
@@ -97,6 +97,31 @@ CaseTheory read_theory(const JsonField& f) {
   return t;
 }
 
+BaselineCheck read_verification(const JsonField& f) {
+  BaselineCheck v;
+  v.verified = f["verified"].boolean();
+  v.disagreement = f["disagreement"].string_or_empty();
+  v.baseline_edge = f["baseline_edge"].number_or_missing();
+  v.baseline_floor = f["baseline_floor"].number_or_missing();
+  read_bracket(f["edge_probes"], v.edge_inside, v.edge_outside);
+  read_bracket(f["floor_probes"], v.floor_inside, v.floor_outside);
+  v.runs = f["runs"].integer_as<int>();
+  const JsonField probes = f["probes"];
+  for (std::size_t i = 0; i < probes.array_size(); ++i) {
+    const JsonField p = probes[i];
+    BoundaryProbe b;
+    const auto kind = probe_kind_from_string(p["kind"].string());
+    if (!kind) p["kind"].expected("a probe kind (pinned, edge_inside, edge_outside, floor_inside, floor_outside, reference)");
+    b.kind = *kind;
+    b.rate = p["rate"].number_or_missing();
+    b.seed = p["seed"].integer_as<std::uint64_t>();
+    b.outcome = read_outcome(p["outcome"]);
+    b.as_expected = p["as_expected"].boolean();
+    v.probes.push_back(b);
+  }
+  return v;
+}
+
 CaseResult read_case(const JsonField& f) {
   CaseResult c;
   c.id = f["id"].string();
@@ -112,6 +137,7 @@ CaseResult read_case(const JsonField& f) {
   if (f.has("gate")) c.gate = gate_tolerances_from_json(f["gate"]);
   c.theory = read_theory(f["theory"]);
   c.summary = read_summary(f["summary"]);
+  if (f.has("verification") && !f["verification"].is_null()) c.verification = read_verification(f["verification"]);
   if (f.has("wall_seconds")) c.wall_seconds = f["wall_seconds"].number_or_missing();  // timing only
   const JsonField runs = f["runs"];
   for (std::size_t i = 0; i < runs.array_size(); ++i) c.runs.push_back(read_run(runs[i]));

@@ -57,6 +57,9 @@ class Gate {
  public:
   Gate(const Results& r, const Baseline* b) : results_(r), baseline_(b) {}
   GateReport apply();
+  // The findings of one case; `b` is its baseline case (null: none, or no baseline).
+  void check(const CaseResult& c, const BaselineCase* b);
+  std::vector<Finding> take() { return std::move(report_.findings); }
 
  private:
   void add(const std::string& id, Rule rule, Severity s, std::string message, double base = kMissing,
@@ -112,17 +115,40 @@ void Gate::compare_range(const CaseResult& c, const BaselineCase& b) {
     if (spread_of(b.edge_spread) > 1.0 || spread_of(s.edge_spread) > 1.0)
       spreads = fmt::format("; seed spread ×{:.4g} in the baseline, ×{:.4g} now: no allowance, the seeds are the same",
                             spread_of(b.edge_spread), spread_of(s.edge_spread));
-    add(c.id, Rule::edge_moved, moved > allowed ? Severity::fail : Severity::pass,
-        fmt::format("edge {} -> {} ({}{}; allowed {} = edge_moved {}{}{})", num(b.edge), num(s.edge),
-                    factor_text(b.edge, s.edge), zones, either_way_text(allowed), num(g.edge_moved), with_precision,
-                    spreads),
-        b.edge, s.edge);
+    const BaselineCheck* v = c.verification && c.verification->verified ? &*c.verification : nullptr;
+    if (v && !std::isnan(v->edge_outside))
+      add(c.id, Rule::edge_moved, moved > allowed ? Severity::fail : Severity::pass,
+          fmt::format("verified, not searched: every seed converged at {} and one did not at {}, so the edge lies in "
+                      "[{}, {}) and a search would place it within {} of the baseline's {} (edge_moved {}{})",
+                      num(v->edge_inside), num(v->edge_outside), num(v->edge_inside), num(v->edge_outside),
+                      either_way_text(allowed), num(b.edge), num(g.edge_moved), with_precision),
+          b.edge, s.edge);
+    else if (v)
+      add(c.id, Rule::edge_moved, moved > allowed ? Severity::fail : Severity::pass,
+          fmt::format("verified, not searched: every seed still converges at the baseline's edge {}, the top of the grid",
+                      num(b.edge)),
+          b.edge, s.edge);
+    else
+      add(c.id, Rule::edge_moved, moved > allowed ? Severity::fail : Severity::pass,
+          fmt::format("edge {} -> {} ({}{}; allowed {} = edge_moved {}{}{})", num(b.edge), num(s.edge),
+                      factor_text(b.edge, s.edge), zones, either_way_text(allowed), num(g.edge_moved), with_precision,
+                      spreads),
+          b.edge, s.edge);
   }
   if (!std::isnan(b.floor) && !std::isnan(s.floor)) {
     // Floors are located to the same precision as edges; they are softer (budget-dependent), so
     // a move only warns.
     const double allowed = tolerance_log(g.floor_moved) + tolerance_log(precision);
     const double moved = log_move(b.floor, s.floor);
+    if (c.verification && c.verification->verified)
+      add(c.id, Rule::floor_moved, moved > allowed ? Severity::warn : Severity::pass,
+          fmt::format("verified, not searched: every seed converged at {} and one did not at {}, so the floor lies in "
+                      "({}, {}] and a search would place it within {} of the baseline's {} (floor_moved {}{})",
+                      num(c.verification->floor_inside), num(c.verification->floor_outside),
+                      num(c.verification->floor_outside), num(c.verification->floor_inside), either_way_text(allowed),
+                      num(b.floor), num(g.floor_moved), with_precision),
+          b.floor, s.floor);
+    else
     add(c.id, Rule::floor_moved, moved > allowed ? Severity::warn : Severity::pass,
         fmt::format("floor {} -> {} ({}; allowed {} = floor_moved {}{})", num(b.floor), num(s.floor),
                     factor_text(b.floor, s.floor), either_way_text(allowed), num(g.floor_moved), with_precision),
@@ -195,6 +221,19 @@ void Gate::theory(const CaseResult& c) {
   if (std::optional<Finding> f = theory_finding(c)) report_.findings.push_back(std::move(*f));
 }
 
+void Gate::check(const CaseResult& c, const BaselineCase* b) {
+  if (!c.error.empty()) {
+    add(c.id, Rule::case_presence, Severity::fail, "could not be run: " + c.error);
+    return;
+  }
+  if (baseline_ && !b)
+    add(c.id, Rule::case_presence, c.gate.case_added, "case added: not in the baseline");
+  if (b) compare_range(c, *b);
+  pinned(c, b);
+  reference(c);
+  theory(c);
+}
+
 GateReport Gate::apply() {
   report_.had_baseline = baseline_ != nullptr;
   if (baseline_ && baseline_->suite.sha256 != results_.suite.sha256)
@@ -203,17 +242,7 @@ GateReport Gate::apply() {
   std::set<std::string> seen;
   for (const CaseResult& c : results_.cases) {
     seen.insert(c.id);
-    const BaselineCase* b = baseline_ ? baseline_->find(c.id) : nullptr;
-    if (!c.error.empty()) {
-      add(c.id, Rule::case_presence, Severity::fail, "could not be run: " + c.error);
-      continue;
-    }
-    if (baseline_ && !b)
-      add(c.id, Rule::case_presence, c.gate.case_added, "case added: not in the baseline");
-    if (b) compare_range(c, *b);
-    pinned(c, b);
-    reference(c);
-    theory(c);
+    check(c, baseline_ ? baseline_->find(c.id) : nullptr);
   }
   if (baseline_ && results_.shard.empty())
     for (const BaselineCase& b : baseline_->cases)
@@ -231,6 +260,13 @@ GateReport Gate::apply() {
 
 GateReport apply_gate(const Results& results, const Baseline* baseline) {
   return Gate(results, baseline).apply();
+}
+
+std::vector<Finding> case_findings(const CaseResult& c, const BaselineCase& b) {
+  const Results none;
+  Gate gate(none, nullptr);
+  gate.check(c, &b);
+  return gate.take();
 }
 
 }  // namespace stepgate

@@ -57,4 +57,8 @@ struct GateReport {
 /// Tolerances come from each case's `gate` (the suite's, merged per problem).
 GateReport apply_gate(const Results& results, const Baseline* baseline);
 
+/// The findings apply_gate gives one case against its baseline case (verify mode asks whether
+/// what its probes show would pass before it trusts them).
+std::vector<Finding> case_findings(const CaseResult& c, const BaselineCase& b);
+
 }  // namespace stepgate

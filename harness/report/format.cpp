@@ -43,6 +43,37 @@ std::string count_line(const GateReport& gate, const Results& results) {
                      missing ? fmt::format(" ({} missing from the results)", missing) : "", suite_level);
 }
 
+std::string verify_line(const Results& results) {
+  int checked = 0, verified = 0, runs = 0;
+  for (const CaseResult& c : results.cases) {
+    if (!c.verification) continue;
+    ++checked;
+    runs += c.verification->runs;
+    verified += c.verification->verified;
+  }
+  if (checked == 0) return "";
+  const int searched = checked - verified;
+  return fmt::format("verify mode: {} of {} case{} verified against the baseline with {} probe run{}{}; a verified "
+                     "case's best rate, blow-up and ragged zone are not measured (run with --full to search every "
+                     "case)",
+                     verified, results.cases.size(), results.cases.size() == 1 ? "" : "s", runs, runs == 1 ? "" : "s",
+                     searched ? fmt::format(", {} searched after a probe disagreed", searched) : "");
+}
+
+std::string edge_cell(const CaseSummary& s, const std::optional<BaselineCheck>& check) {
+  if (check && check->verified && !std::isnan(check->edge_outside))
+    return fmt::format("[{}, {})", format_number(check->edge_inside), format_number(check->edge_outside));
+  if (std::isnan(s.edge) || std::isnan(s.ragged_top)) return format_number(s.edge);
+  return fmt::format("{} (ragged to {})", format_number(s.edge), format_number(s.ragged_top));
+}
+
+std::string case_status(const CaseResult& c, const GateReport& gate) {
+  const std::optional<Severity> w = gate.worst(c.id);
+  std::string out = w ? std::string(to_string(*w)) : "none";
+  if (c.verification) out += c.verification->verified ? " (verified)" : " (searched)";
+  return out;
+}
+
 std::string baseline_free_note() {
   std::string rules;
   const auto& list = baseline_free_rules();

@@ -31,6 +31,19 @@ inline constexpr std::array<std::string_view, 8> kSummaryHeadings = {
 /// named after the counts.
 std::string count_line(const GateReport& gate, const Results& results);
 
+/// The line on verify mode (core/baseline_check.hpp) every report shows when some case was
+/// checked against the baseline: how many were verified, in how many runs, how many were searched
+/// after a probe disagreed, and what a verified case does not measure. "" when no case was checked.
+std::string verify_line(const Results& results);
+
+/// The edge as the summary tables show it: "0.5", "0.5 (ragged to 0.7)", or for a case verified
+/// against the baseline the interval its probes proved, "[0.476, 0.53)".
+std::string edge_cell(const CaseSummary& s, const std::optional<BaselineCheck>& check);
+
+/// The worst finding of a case as the summary tables show it, with " (verified)" for a case
+/// verified against the baseline and " (searched)" for one searched after its check disagreed.
+std::string case_status(const CaseResult& c, const GateReport& gate);
+
 /// The sentence that says which rules apply without a baseline (from baseline_free_rules()).
 std::string baseline_free_note();
 

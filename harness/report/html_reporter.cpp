@@ -85,6 +85,7 @@ std::string header(const ReportInput& in) {
   else
     out += "<span>" + esc(baseline_free_note()) + "</span>";
   out += "</p>\n";
+  if (const std::string v = verify_line(r); !v.empty()) out += "<p class=\"meta\">" + esc(v) + "</p>\n";
   out += "<p class=\"scope\">" + esc(scope_warning(r)) + "</p>\n</header>\n";
   return out;
 }
@@ -103,7 +104,10 @@ std::string summary_section(const ReportInput& in) {
         cell += "<span class=\"was\">was " + html_number(was) + "</span>";
       return cell;
     };
-    std::string edge_cell = with_was(s.edge, b ? b->edge : kMissing);
+    const bool verified = c.verification && c.verification->verified && !std::isnan(c.verification->edge_outside);
+    std::string edge_cell = verified ? esc(stepgate::edge_cell(s, c.verification)) + "<span class=\"was\">baseline " +
+                                           html_number(b ? b->edge : kMissing) + "</span>"
+                                     : with_was(s.edge, b ? b->edge : kMissing);
     if (!std::isnan(s.ragged_top)) edge_cell += "<span class=\"was\">ragged to " + html_number(s.ragged_top) + "</span>";
     const Severity* w = worst(in.gate.of_case(c.id));
     out += fmt::format("<tr><td><a href=\"#case-{}\">{}</a></td>", i + 1, esc(c.id));
@@ -116,7 +120,8 @@ std::string summary_section(const ReportInput& in) {
                          format_factor(s.headroom),
                          s.reference ? html_number(s.reference->min_lre) : std::string(kMissingMark));
     }
-    out += fmt::format("<td class=\"sev\">{}</td></tr>\n", w ? badge(*w) : "none");
+    const std::string checked = !c.verification ? "" : c.verification->verified ? " verified" : " searched";
+    out += fmt::format("<td class=\"sev\">{}{}</td></tr>\n", w ? badge(*w) : "none", checked);
   }
   out += "</tbody>\n</table>\n</section>\n";
   return out;
@@ -147,14 +152,18 @@ std::string case_section(const ReportInput& in, std::size_t index) {
   out += fact("data", c.dataset.empty() ? "none"
                                         : esc(c.dataset) + (c.data_sha256.empty() ? "" : " <code>" + esc(c.data_sha256.substr(0, 12)) + "</code>"));
   out += fact("edge bracket", fmt::format("[{}, {}]", html_number(s.edge_lo), html_number(s.edge_hi)));
-  out += fact("ragged zone", std::isnan(s.ragged_top)
+  const bool verified = c.verification && c.verification->verified;
+  if (c.verification) out += fact("baseline check", esc(describe(*c.verification)));
+  out += fact("ragged zone", verified ? "not measured (verified against the baseline, not searched)"
+                             : std::isnan(s.ragged_top)
                                  ? "none (no rate above the edge converged)"
                                  : fmt::format("[{}, {}]: rates above the edge that still converged",
                                                html_number(s.edge), html_number(s.ragged_top)));
   out += fact("seed spread of edge", std::isnan(s.edge_spread)
                                          ? html_number(s.edge_spread)
                                          : html_number(s.edge_spread) + " (the largest seed's edge over the smallest's; 1: all "
-                                                                        "seeds agree; the gate allows this much more movement)");
+                                                                        "seeds agree; no allowance in the gate: the seeds are the "
+                                                                        "same in every run)");
   out += fact("best iterations", html_number(s.best_iterations));
   out += fact("pinned iterations", html_number(s.pinned_iterations) +
                                        (s.pinned_outcome ? " (" + std::string(to_string(*s.pinned_outcome)) + ")" : ""));

@@ -28,6 +28,7 @@
 
 #include "stepgate/core/quote_text.hpp"
 #include "stepgate/report/failures.hpp"
+#include "stepgate/report/format.hpp"
 #include "stepgate/report/reporter.hpp"
 
 namespace stepgate {
@@ -99,6 +100,7 @@ Counts add_suite(pugi::xml_node root, const ReportInput& in) {
   property("tool_version", r.tool.version);
   property("verdict", in.gate.pass ? "pass" : "fail");
   property("baseline_accepted", in.baseline ? in.baseline->accepted : "none");
+  if (const std::string v = verify_line(r); !v.empty()) property("verify_mode", v);
 
   Counts n;
   auto emit = [&](const std::string& id, const CaseResult* c) {
@@ -119,6 +121,12 @@ Counts add_suite(pugi::xml_node root, const ReportInput& in) {
       attr(first.append_child("skipped"), "message", "no gate rule applied to this case");
       ++n.tests;
       ++n.skipped;
+    }
+    if (c && c->verification) {  // what the probes proved, or why the case was searched after all
+      pugi::xml_node out = first.child("system-out");
+      const std::string before = out ? std::string(out.text().get()) + "\n" : "";
+      if (!out) out = first.append_child("system-out");
+      out.text().set(xml_safe(before + describe(*c->verification)).c_str());
     }
     if (!failures.empty()) first.append_child("system-err").text().set(xml_safe("Runs that failed:\n" + failures).c_str());
   };

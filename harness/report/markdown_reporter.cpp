@@ -24,11 +24,6 @@ const std::string kNone(kMissingMark);
 std::string number(double v) { return format_number(v); }
 std::string factor(double v) { return format_factor(v); }
 // The edge, with the top of its ragged zone when some rate above it converged.
-std::string edge_ragged(double edge, double ragged_top) {
-  if (std::isnan(edge) || std::isnan(ragged_top)) return number(edge);
-  return fmt::format("{} (ragged to {})", number(edge), number(ragged_top));
-}
-
 std::string edge_with_bracket(double edge, double lo, double hi) {
   if (std::isnan(edge)) return kNone;
   if (std::isnan(lo) && std::isnan(hi)) return number(edge);
@@ -106,6 +101,7 @@ class MarkdownWriter {
     details();
     failures();
     compact_table();
+    verified();
     out_ += "\n**Scope.** " + text(scope_warning(in_.results)) + "\n";
     return std::move(out_);
   }
@@ -117,6 +113,7 @@ class MarkdownWriter {
     out_ += fmt::format("**{}**; suite {} (sha256 {})\n", count_line(in_.gate, in_.results), text(in_.results.suite.name),
                         sha.empty() ? kNone : sha.substr(0, 12) + "…");
     if (!in_.baseline) out_ += "\n" + baseline_free_note() + ".\n";
+    if (const std::string v = verify_line(in_.results); !v.empty()) out_ += "\n" + text(v) + ".\n";
   }
 
   void details() {
@@ -145,6 +142,7 @@ class MarkdownWriter {
     const BaselineCase* b = in_.baseline ? in_.baseline->find(id) : nullptr;
     out_ += fmt::format("\n#### {}: {}\n\n", worst_word(in_.gate, id), text(id));
     if (c || b) range_table(c, b);
+    if (c && c->verification) out_ += fmt::format("- baseline check: {}\n", text(describe(*c->verification)));
     int passing = 0;
     for (const Finding* f : findings) {
       if (f->severity == Severity::pass) {
@@ -185,15 +183,24 @@ class MarkdownWriter {
     out_ += "\n";
   }
 
+  // What each verified case's probes prove (cases searched after a check are under findings).
+  void verified() {
+    std::string section;
+    for (const CaseResult& c : in_.results.cases)
+      if (c.verification && c.verification->verified)
+        section += fmt::format("- {}: {}\n", text(c.id), text(describe(*c.verification)));
+    if (!section.empty()) out_ += "\n### Verified against the baseline\n\n" + section;
+  }
+
   void compact_table() {
     out_ += "\n### All cases\n\n|";
     for (std::string_view h : kSummaryHeadings) out_ += fmt::format(" {} |", h);
     out_ += "\n|---|---|---|---|---|---|---|---|\n";
     for (const CaseResult& c : in_.results.cases) {
       const CaseSummary& s = c.summary;
-      std::string status = worst_word(in_.gate, c.id);
+      std::string status = case_status(c, in_.gate);
       if (!c.error.empty()) status += ": not run: " + c.error;
-      out_ += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} |\n", cell(c.id), number(s.floor), edge_ragged(s.edge, s.ragged_top),
+      out_ += fmt::format("| {} | {} | {} | {} | {} | {} | {} | {} |\n", cell(c.id), number(s.floor), edge_cell(s, c.verification),
                           number(s.best_rate), number(s.pinned), factor(s.headroom),
                           s.reference ? number(s.reference->min_lre) : kNone, cell(status));
     }

@@ -26,15 +26,13 @@ std::string summary_table(const Results& results, const GateReport& gate) {
   std::vector<std::vector<std::string>> rows;
   std::vector<std::string> errors;
   for (const CaseResult& c : results.cases) {
-    const std::optional<Severity> w = gate.worst(c.id);
-    const std::string worst = w ? std::string(to_string(*w)) : "none";
+    const std::string worst = case_status(c, gate);
     if (!c.error.empty()) {
       errors.push_back(fmt::format("{}: not run: {}", c.id, c.error));
       continue;
     }
     const CaseSummary& s = c.summary;
-    const std::string edge = std::isnan(s.ragged_top) ? format_number(s.edge)
-                                                      : format_number(s.edge) + " (ragged to " + format_number(s.ragged_top) + ")";
+    const std::string edge = edge_cell(s, c.verification);
     rows.push_back({c.id, format_number(s.floor), edge, format_number(s.best_rate), format_number(s.pinned),
                     format_factor(s.headroom), s.reference ? format_number(s.reference->min_lre) : std::string(kMissingMark),
                     worst});
@@ -55,6 +53,7 @@ std::string summary_table(const Results& results, const GateReport& gate) {
   line(head);
   for (const auto& r : rows) line(r);
   for (const auto& e : errors) out += e + "\n";
+  if (const std::string v = verify_line(results); !v.empty()) out += v + "\n";
   return out;
 }
 

@@ -1,4 +1,5 @@
 #include "stepgate/search/case_search.hpp"
+#include "stepgate/search/searcher.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -24,64 +25,7 @@ std::uint64_t run_seed(const std::string& case_id, std::uint64_t seed_number) {
   return derive_seed({std::string_view(case_id), seed_number});
 }
 
-namespace {
-
-bool converged(Outcome o) { return o == Outcome::converged; }
-bool diverged(Outcome o) { return o == Outcome::diverged; }
-
-// The runs of one seed, found by rate (indices into the searcher's list of runs).
-struct SeedRuns {
-  std::uint64_t number = 0;
-  BatchSeed seed;
-  std::map<double, std::size_t> by_rate;
-  SeedSummary summary;
-  // The best level of the seed's grid and fixed runs (analysis/seed_level), once they are in;
-  // every noisy run judged by `settled` is held to it, those and every later one.
-  std::optional<BestLevel> best_level;
-};
-
-class Searcher {
- public:
-  Searcher(const RunBatchFn& runner, const Problem* problem, const CaseSearchInput& in, const BatchDone& done)
-      : runner_(runner), problem_(problem), in_(in), done_(done) {
-    long index = 0;
-    for (std::uint64_t n : in.seeds) {
-      SeedRuns s;
-      s.number = n;
-      s.seed = {run_seed(in.case_id, n), index++, n};
-      s.summary.seed = n;
-      seeds_.push_back(std::move(s));
-    }
-  }
-
-  CaseSearchOutput search();
-
- private:
-  const RunRecord* at(const SeedRuns& s, double rate) const {
-    auto it = s.by_rate.find(rate);
-    return it == s.by_rate.end() ? nullptr : &order_[it->second].record;
-  }
-  Outcome outcome(std::size_t index) const { return order_[index].record.outcome; }
-  // Runs the rates not yet run for this seed as one batch; answers the outcome of each rate.
-  std::vector<Outcome> run(SeedRuns& s, const std::vector<double>& rates, RunRole role);
-  Bracket narrow(SeedRuns& s, double lo, double hi, RunRole role, bool (*lower)(Outcome));
-  void locate_seed(SeedRuns& s, std::optional<std::size_t> best_grid);
-  std::optional<std::size_t> best_grid_index() const;
-  void summarise(CaseSearchOutput& out) const;
-  void compare_reference(CaseSearchOutput& out) const;
-  void set_best_level(SeedRuns& s);
-
-  const RunBatchFn& runner_;
-  const Problem* problem_;  // nullptr: runs come from elsewhere (a command); no theory
-  const CaseSearchInput& in_;
-  const BatchDone& done_;
-  std::vector<SeedRuns> seeds_;
-  std::vector<double> grid_;
-  std::vector<StoredRun> order_;  // every run in the order made
-  // The probes' kick direction: the top eigenvector of the Hessian at the optimum, once per
-  // case (where converged runs end); without an optimum each batch finds its own.
-  std::optional<Vec> probe_direction_;
-};
+namespace detail {
 
 std::vector<Outcome> Searcher::run(SeedRuns& s, const std::vector<double>& rates, RunRole role) {
   std::vector<double> todo;
@@ -189,8 +133,7 @@ void Searcher::locate_seed(SeedRuns& s, std::optional<std::size_t> best) {
   }
 }
 
-CaseSearchOutput Searcher::search() {
-  const RatePolicy& p = in_.rates;
+void Searcher::prepare() {
   if (in_.run.outcome.probe && problem_ && !runner_ && !in_.run.skip_optimum) {
     try {
       if (const std::optional<Optimum> opt = problem_->optimum(); opt && opt->w.size() == problem_->dim())
@@ -199,6 +142,11 @@ CaseSearchOutput Searcher::search() {
       probe_direction_.reset();  // each batch tries at its own point
     }
   }
+}
+
+CaseSearchOutput Searcher::search() {
+  const RatePolicy& p = in_.rates;
+  prepare();
   if (p.grid) grid_ = log_grid(*p.grid);
   std::vector<double> fixed = p.fixed;
   if (!std::isnan(in_.pinned)) fixed.push_back(in_.pinned);
@@ -220,6 +168,12 @@ CaseSearchOutput Searcher::search() {
   }
   CaseSearchOutput out;
   summarise(out);
+  // The reference: the solution of the best rate's run of the first seed.
+  finish(out, out.summary.best_rate);
+  return out;
+}
+
+void Searcher::finish(CaseSearchOutput& out, double reference_rate) {
   if (problem_) {
     const bool use_optimum = !in_.run.skip_optimum;
     const Theory t = case_theory(*problem_, in_.optimizer, problem_->start(seeds_.empty() ? 0 : seeds_[0].seed.seed),
@@ -232,13 +186,11 @@ CaseSearchOutput Searcher::search() {
                           "gap and no predicted threshold (" + t.at_start.method + ")";
     else if (auto opt = problem_->optimum())
       out.optimum_cost = opt->cost;
-    compare_reference(out);
   } else {
     out.theory.method = "not available (command problem)";
-    compare_reference(out);
   }
+  compare_reference(out, reference_rate);
   out.runs = std::move(order_);
-  return out;
 }
 
 void Searcher::set_best_level(SeedRuns& s) {
@@ -258,13 +210,14 @@ void Searcher::summarise(CaseSearchOutput& out) const {
   out.summary = summarise_seeds(views, in_.rates.precision, in_.pinned);
 }
 
-void Searcher::compare_reference(CaseSearchOutput& out) const {
+void Searcher::compare_reference(CaseSearchOutput& out, double rate) const {
   if (!in_.reference) return;
   ReferenceSummary ref;
   ref.source = in_.reference->source;
   ref.names = in_.reference->names;
-  // The solution of the best rate's run of the first seed; without a best rate, there is none.
-  const RunRecord* r = std::isnan(out.summary.best_rate) ? nullptr : at(seeds_.front(), out.summary.best_rate);
+  // The solution of the first seed's run at `rate`, when it converged; without one, there is none.
+  const RunRecord* r = std::isnan(rate) ? nullptr : at(seeds_.front(), rate);
+  if (r && r->outcome != Outcome::converged) r = nullptr;
   if (!problem_) {  // a command: its params line, in the reference file's order, no scaling
     const Vec& x = r ? r->final_params : Vec();
     const Vec& c = in_.reference->values;
@@ -301,16 +254,16 @@ const CaseSearchInput& checked(const CaseSearchInput& in) {
   return in;
 }
 
-}  // namespace
+}  // namespace detail
 
 CaseSearchOutput search_case(const Problem& problem, const CaseSearchInput& in, const BatchDone& on_batch) {
   const RunBatchFn none;
-  return Searcher(none, &problem, checked(in), on_batch).search();
+  return detail::Searcher(none, &problem, detail::checked(in), on_batch).search();
 }
 
 CaseSearchOutput search_case_with(const RunBatchFn& run, const Problem* problem, const CaseSearchInput& in,
                                   const BatchDone& on_batch) {
-  return Searcher(run, problem, checked(in), on_batch).search();
+  return detail::Searcher(run, problem, detail::checked(in), on_batch).search();
 }
 
 }  // namespace stepgate

@@ -62,6 +62,7 @@ SuiteRun run_suite(const std::string& suite_path, const RunSuiteOptions& options
       options.note(fmt::format("nothing to resume: no {} yet; starting from the beginning", journal_path));
   }
   sweep.journal = &journal;
+  if (run.baseline && !options.full) sweep.verify_against = &*run.baseline;
 
   try {
     run.results = run_sweep(run.suite, plan, sweep, options.progress);
@@ -77,6 +78,7 @@ SuiteRun run_suite(const std::string& suite_path, const RunSuiteOptions& options
   for (const CaseResult& c : run.results.cases) {
     run.failed_cases += c.error.empty() ? 0 : 1;
     run.runs += static_cast<int>(c.runs.size());
+    if (c.verification && !c.verification->verified) run.runs += c.verification->runs;  // probes, then the search
   }
   const Baseline* baseline = run.baseline ? &*run.baseline : nullptr;
   run.gate = apply_gate(run.results, baseline);

@@ -26,6 +26,9 @@ struct RunSuiteOptions {
   std::string out_dir;                        ///< "" = reports/out/SUITE-NAME (from the working directory)
   int jobs = 0;                               ///< worker threads; 0 = all cores; results do not depend on it
   std::string baseline;                       ///< an accepted baseline file; "" = none
+  /// With a baseline: search every case in full instead of verifying the baseline's boundaries
+  /// first (verify mode, search/verify.hpp). Results of a full search can be accepted.
+  bool full = false;
   std::optional<std::pair<int, int>> shard;   ///< (K, N): only shard K of N of the cases
   ProgressFn progress;                        ///< called after each batch of runs (any thread, serialised)
   /// Continue from OUT/journal.jsonl: its finished runs are not run again (sweep/journal.hpp).

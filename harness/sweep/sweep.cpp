@@ -10,8 +10,11 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/gate/baseline.hpp"
+#include "stepgate/gate/findings.hpp"
 #include "stepgate/run/command_runner.hpp"
 #include "stepgate/search/case_search.hpp"
+#include "stepgate/search/verify.hpp"
 #include "stepgate/sweep/journal.hpp"
 #include "stepgate/sweep/prepare.hpp"
 
@@ -19,8 +22,16 @@ namespace stepgate {
 
 namespace {
 
+// The rule that failed on what verify mode's probes show, in words; "" when every rule passed.
+std::string failing_rule(const CaseResult& r, const BaselineCase& b) {
+  for (const Finding& f : case_findings(r, b))
+    if (f.severity == Severity::fail) return fmt::format("{}: {}", to_string(f.rule), f.message);
+  return "";
+}
+
 CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProblem& prepared,
-                    const BatchDone& on_batch, int jobs, ProcessSlots& slots, Journal* journal) {
+                    const BatchDone& on_batch, int jobs, ProcessSlots& slots, Journal* journal,
+                    const Baseline* verify_against) {
   const ProblemSpec& p = suite.problems[c.problem];
   CaseResult r;
   r.id = c.id;
@@ -45,21 +56,38 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
     in.map = prepared.map;
     std::unique_ptr<RunStore> store;
     if (journal) store = journal->store_for(c.id, in.reference.has_value()), in.store = store.get();
-    CaseSearchOutput out;
+    std::optional<CommandSession> session;
+    RunBatchFn runner;
     if (p.kind == ProblemKind::command) {
-      CommandSession session(CommandCase{p.command, c.id, c.scaling, r.optimizer, p.reference.has_value()},
-                             p.run, jobs, &slots);
-      const RunBatchFn runner = [&](std::span<const double> rates, BatchSeed seed) {
-        return session.run(rates, seed);
-      };
-      out = search_case_with(runner, nullptr, in, on_batch);
-    } else {
-      out = search_case(*prepared.problem, in, on_batch);
+      session.emplace(CommandCase{p.command, c.id, c.scaling, r.optimizer, p.reference.has_value()}, p.run, jobs, &slots);
+      runner = [&](std::span<const double> rates, BatchSeed seed) { return session->run(rates, seed); };
     }
-    r.summary = std::move(out.summary);
-    r.theory = std::move(out.theory);
-    r.optimum_cost = out.optimum_cost;
-    r.runs = std::move(out.runs);
+    const Problem* problem = p.kind == ProblemKind::command ? nullptr : prepared.problem.get();
+    auto take = [&](CaseSearchOutput&& out) {
+      r.summary = std::move(out.summary);
+      r.theory = std::move(out.theory);
+      r.optimum_cost = out.optimum_cost;
+      r.runs = std::move(out.runs);
+    };
+    // Verify mode: the baseline's boundaries first; the search only when they do not hold.
+    const BaselineCase* b = verify_against && p.rates.verify ? verify_against->find(c.id) : nullptr;
+    if (b && !std::isnan(b->edge)) {
+      const VerifyTargets t{b->edge, b->edge_hi, b->floor, b->best_rate, r.gate.edge_moved, r.gate.floor_moved};
+      VerifyOutput v = runner ? verify_case_with(runner, problem, in, t, on_batch) : verify_case(*problem, in, t, on_batch);
+      r.verification = std::move(v.check);
+      if (v.verified) {
+        take(std::move(*v.verified));
+        if (std::string rule = failing_rule(r, *b); !rule.empty()) {
+          r.verification->verified = false;
+          r.verification->disagreement = "the probes agreed, but a gate rule fails on what they show, " + rule;
+        }
+      }
+    }
+    if (!r.verification || !r.verification->verified) {
+      r.summary = CaseSummary{};
+      r.summary.pinned = c.pinned;
+      take(runner ? search_case_with(runner, nullptr, in, on_batch) : search_case(*problem, in, on_batch));
+    }
   } catch (const std::exception& e) {
     r.error = e.what();
   }
@@ -116,7 +144,7 @@ Results run_sweep(const Suite& suite, const Plan& plan, const SweepOptions& opti
     tbb::parallel_for(std::size_t{0}, plan.cases.size(), [&](std::size_t i) {
       const PlannedCase& c = plan.cases[i];
       cases[i] = run_case(suite, c, prepared.at({c.problem, c.scaling}),
-                          [&](int runs) { report(runs, 0); }, jobs, slots, options.journal);
+                          [&](int runs) { report(runs, 0); }, jobs, slots, options.journal, options.verify_against);
       report(0, 1);
     }, tbb::simple_partitioner());
   });

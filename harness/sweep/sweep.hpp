@@ -11,6 +11,7 @@
 namespace stepgate {
 
 class Journal;
+struct Baseline;
 
 /// Most worker threads accepted (--jobs): far beyond any machine this runs on, and below the
 /// task pool's own limits.
@@ -22,6 +23,10 @@ struct SweepOptions {
   /// Where finished runs are kept and recalled (sweep/journal.hpp); nullptr = no journal.
   /// run_sweep starts it once the data are read (their hashes are part of its identity).
   Journal* journal = nullptr;
+  /// Verify mode (search/verify.hpp): each case this baseline holds, with `rates.verify` on, is
+  /// first checked with a few probe runs and searched only when a probe (or a gate rule on what
+  /// the probes show) disagrees. nullptr: every case is searched.
+  const Baseline* verify_against = nullptr;
 };
 
 /// Progress after each batch of runs: runs done so far, and cases finished so far.
