@@ -1,5 +1,8 @@
 #include "stepgate/gate/baseline.hpp"
 
+#include <cmath>
+#include <utility>
+
 #include <fmt/format.h>
 
 #include "stepgate/core/error.hpp"
@@ -31,6 +34,11 @@ Baseline baseline_from_results(const Results& r, const std::string& accepted_at)
     x.data_sha256 = c.data_sha256;
     x.min_lre = s.reference ? s.reference->min_lre : kMissing;
     x.predicted_blowup = c.theory.predicted_blowup;
+    if (!std::isnan(s.edge))
+      for (const SeedSummary& seed : s.seeds) {  // the first seed at the case's edge, and at its floor
+        if (!x.edge_seed && seed.edge == s.edge) x.edge_seed = seed.seed;
+        if (!x.floor_seed && seed.floor == s.floor) x.floor_seed = seed.seed;
+      }
     b.cases.push_back(std::move(x));
   }
   return b;
@@ -44,7 +52,9 @@ json to_json(const Baseline& b) {
               {"edge_bracket", {finite_or_null(c.edge_lo), finite_or_null(c.edge_hi)}},
               {"min_lre", finite_or_null(c.min_lre)},
               {"predicted_blowup", finite_or_null(c.predicted_blowup)},
-              {"ragged_top", finite_or_null(c.ragged_top)}};
+              {"ragged_top", finite_or_null(c.ragged_top)},
+              {"edge_seed", c.edge_seed ? json(*c.edge_seed) : json(nullptr)},
+              {"floor_seed", c.floor_seed ? json(*c.floor_seed) : json(nullptr)}};
     for (const SafeRangeField& f : safe_range_fields()) x[std::string(f.key)] = finite_or_null(c.*f.member);
     cases.push_back(std::move(x));
   }
@@ -92,6 +102,8 @@ Baseline baseline_from_json(const json& j, const std::string& path) {
     x.min_lre = c[v1 ? "reference_digits" : "min_lre"].number_or_missing();
     x.predicted_blowup = c["predicted_blowup"].number_or_missing();
     if (c.has("ragged_top")) x.ragged_top = c["ragged_top"].number_or_missing();  // absent before 0.2
+    for (auto [key, member] : {std::pair{"edge_seed", &BaselineCase::edge_seed}, std::pair{"floor_seed", &BaselineCase::floor_seed}})
+      if (c.has(key) && !c[key].is_null()) x.*member = c[key].seed();  // absent before verify mode
     b.cases.push_back(std::move(x));
   }
   return b;

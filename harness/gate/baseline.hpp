@@ -1,6 +1,8 @@
 // The baseline: the accepted picture of a suite's safe ranges, kept under references/
 // (default references/<suite>.baseline.json), against which a gate compares new results.
 #pragma once
+#include <cstdint>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -22,6 +24,11 @@ struct BaselineCase : SafeRange {
   std::string data_sha256;
   double min_lre = kMissing;  ///< min LRE against the reference values; NaN = no reference
   double predicted_blowup = kMissing;
+  /// The seed number whose edge is the case's (the lowest seed edge) and whose floor is the
+  /// case's (the highest seed floor): verify mode runs each outside probe on that seed first.
+  /// nullopt when there is none (no safe range) or the baseline predates them ("edge_seed",
+  /// "floor_seed": null).
+  std::optional<std::uint64_t> edge_seed, floor_seed;
 };
 
 struct Baseline {

@@ -16,14 +16,15 @@ ProbeRates probe_rates(const VerifyTargets& t, const RatePolicy& rates, bool wit
   ProbeRates p;
   if (!(t.edge > 0.0) || !std::isfinite(t.edge)) return p;
   const double precision = rates.precision;
+  const bool ragged = t.ragged_top > t.edge;  // false for NaN
   if (std::isnan(t.edge_hi)) {
     p.edge_inside = t.edge;  // the top of the grid: nothing above it was run
   } else if (rates.locate_edge) {
     p.edge_inside = t.edge / (1.0 + t.edge_moved);
-    p.edge_outside = t.edge * (1.0 + t.edge_moved) * (1.0 + precision);
+    p.edge_outside = (ragged ? t.ragged_top : t.edge) * (1.0 + t.edge_moved) * (1.0 + precision);
   } else {
     p.edge_inside = t.edge;  // a grid rate: the search keeps it while the edge stays below edge_hi
-    p.edge_outside = t.edge_hi;
+    p.edge_outside = ragged && rates.grid ? t.ragged_top * std::pow(10.0, 1.0 / rates.grid->per_decade) : t.edge_hi;
   }
   // A floor above the lowest grid rate was located (a grid rate below it did not converge); one
   // at the lowest grid rate is only where the grid starts, and is not probed.
@@ -80,31 +81,55 @@ VerifyOutput Searcher::verify(const VerifyTargets& t) {
   prepare();
   bool edge_open = !std::isnan(p.edge_outside), floor_open = !std::isnan(p.floor_outside);
   std::size_t edge_seed = seeds_.size();  // the seed that did not converge just outside the edge
-  for (SeedRuns& s : seeds_) {
-    std::vector<std::pair<ProbeKind, double>> probes;
-    if (!std::isnan(in_.pinned)) probes.emplace_back(ProbeKind::pinned, in_.pinned);
-    probes.emplace_back(ProbeKind::edge_inside, p.edge_inside);
-    if (!std::isnan(p.floor_inside)) probes.emplace_back(ProbeKind::floor_inside, p.floor_inside);
-    if (&s == &seeds_.front() && !std::isnan(p.reference)) probes.emplace_back(ProbeKind::reference, p.reference);
-    if (edge_open) probes.emplace_back(ProbeKind::edge_outside, p.edge_outside);
-    if (floor_open) probes.emplace_back(ProbeKind::floor_outside, p.floor_outside);
+  // Each outside probe first on the seed that set that boundary in the baseline.
+  auto first_of = [&](std::optional<std::uint64_t> n) {
+    for (std::size_t i = 0; n && i < seeds_.size(); ++i)
+      if (seeds_[i].number == *n) return i;
+    return std::size_t{0};
+  };
+  const std::size_t edge_first = first_of(t.edge_seed), floor_first = first_of(t.floor_seed);
+  std::vector<bool> edge_tried(seeds_.size()), floor_tried(seeds_.size());
+  using Probes = std::vector<std::pair<ProbeKind, double>>;
+  // One batch of probes for seed i; records what each showed.
+  auto probe = [&](std::size_t i, const Probes& probes, bool first_batch) {
+    SeedRuns& s = seeds_[i];
     std::vector<double> rates;
     for (const auto& [kind, rate] : probes) rates.push_back(rate);
     std::sort(rates.begin(), rates.end());
     rates.erase(std::unique(rates.begin(), rates.end()), rates.end());
     run(s, rates, RunRole::verify);
-    set_best_level(s);  // the level rule, against the lowest level among this seed's probes
+    // The level rule, against the lowest level among this seed's first probes (a later probe
+    // is held to it, as a search's later runs are held to the grid's).
+    if (first_batch) set_best_level(s);
     for (const auto& [kind, rate] : probes) {
       const RunRecord& r = *at(s, rate);
       const bool ok = must_converge(kind) == (r.outcome == Outcome::converged);
       c.probes.push_back({kind, rate, s.number, r.outcome, ok});
-      if (ok && kind == ProbeKind::edge_outside) edge_open = false, edge_seed = static_cast<std::size_t>(&s - seeds_.data());
+      if (kind == ProbeKind::edge_outside) edge_tried[i] = true;
+      if (kind == ProbeKind::floor_outside) floor_tried[i] = true;
+      if (ok && kind == ProbeKind::edge_outside) edge_open = false, edge_seed = i;
       if (ok && kind == ProbeKind::floor_outside) floor_open = false;
       if (!ok && must_converge(kind) && c.disagreement.empty())
         c.disagreement = fmt::format("{} {} was {} for seed {} ({}), where the baseline expects convergence",
                                      what(kind), num(rate), to_string(r.outcome), s.number, r.reason);
     }
-    if (!c.disagreement.empty()) break;  // the case will be searched: no more probes
+  };
+  for (std::size_t i = 0; i < seeds_.size() && c.disagreement.empty(); ++i) {
+    Probes probes;
+    if (!std::isnan(in_.pinned)) probes.emplace_back(ProbeKind::pinned, in_.pinned);
+    probes.emplace_back(ProbeKind::edge_inside, p.edge_inside);
+    if (!std::isnan(p.floor_inside)) probes.emplace_back(ProbeKind::floor_inside, p.floor_inside);
+    if (i == 0 && !std::isnan(p.reference)) probes.emplace_back(ProbeKind::reference, p.reference);
+    if (edge_open && i == edge_first) probes.emplace_back(ProbeKind::edge_outside, p.edge_outside);
+    if (floor_open && i == floor_first) probes.emplace_back(ProbeKind::floor_outside, p.floor_outside);
+    probe(i, probes, true);
+  }
+  // An outside probe that converged on its first seed: the other seeds in order, until one fails.
+  for (std::size_t i = 0; i < seeds_.size() && c.disagreement.empty() && (edge_open || floor_open); ++i) {
+    Probes probes;
+    if (edge_open && !edge_tried[i]) probes.emplace_back(ProbeKind::edge_outside, p.edge_outside);
+    if (floor_open && !floor_tried[i]) probes.emplace_back(ProbeKind::floor_outside, p.floor_outside);
+    if (!probes.empty()) probe(i, probes, false);
   }
   if (c.disagreement.empty() && edge_open)
     c.disagreement = fmt::format("every seed converged at {}, just outside the baseline's edge {}: the edge may have risen",

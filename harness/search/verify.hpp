@@ -18,8 +18,14 @@ struct VerifyTargets {
   /// The top of the baseline's edge bracket; NaN: no rate above the edge failed (the edge was
   /// the top of the grid), so there is no outside probe and the inside probe is the edge itself.
   double edge_hi = kMissing;
+  /// The top of the baseline's ragged zone (NaN: none): rates above the edge at which a seed
+  /// still converged. The outside probe goes above it, as the gate measures moves between zones.
+  double ragged_top = kMissing;
   double floor = kMissing;      ///< the baseline's floor; NaN: none
   double best_rate = kMissing;  ///< the baseline's best rate: the reference probe (first seed)
+  /// The seeds that set the baseline's edge (lowest) and floor (highest): each outside probe
+  /// runs on that seed first, where it should fail. nullopt: seeds in order.
+  std::optional<std::uint64_t> edge_seed, floor_seed;
   double edge_moved = 0.05;     ///< gate tolerance of the edge (relative), >= 0
   double floor_moved = 0.25;    ///< gate tolerance of the floor (relative), >= 0
 };
@@ -29,7 +35,8 @@ struct VerifyTargets {
 /// the lower end of a bracket at most 1 + p wide around the true edge E; every seed converging at
 /// edge ÷ (1 + t) and some seed not at edge × (1 + t)(1 + p) put E in that interval, so the
 /// search's edge lies within (1 + t)(1 + p) of the baseline's either way: what edge_moved
-/// allows. The floor mirrors it (× inside, ÷ outside). A boundary not narrowed by the search
+/// allows. With a ragged zone [edge, top] the outside probe is top × (1 + t)(1 + p), since the
+/// gate measures the move between zones. The floor mirrors it (× inside, ÷ outside). A boundary not narrowed by the search
 /// (locate_edge / locate_floor false, or an edge at the top of the grid) is a grid rate: then
 /// inside is that rate and outside its grid neighbour. The floor is probed only where the
 /// baseline located one (above the lowest grid rate); the reference probe only when `with_reference`.
@@ -51,8 +58,9 @@ struct VerifyOutput {
 };
 
 /// Runs the probes seed by seed, one batch per seed, through the same store and level rule as
-/// the search: every seed runs the pinned rate and the inside probes; the outside probes run on
-/// the first seed and on later seeds only while no seed has failed to converge there. Stops at the
+/// the search: every seed runs the pinned rate and the inside probes; each outside probe runs on
+/// the seed that set that boundary in the baseline (the first seed when unknown), and on the
+/// other seeds in order, each as a batch of its own, only while no seed has failed there. Stops at the
 /// first inside probe that does not converge. Deterministic like the search.
 VerifyOutput verify_case(const Problem& problem, const CaseSearchInput& in, const VerifyTargets& t,
                          const BatchDone& on_batch = {});

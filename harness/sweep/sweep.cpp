@@ -72,7 +72,8 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
     // Verify mode: the baseline's boundaries first; the search only when they do not hold.
     const BaselineCase* b = verify_against && p.rates.verify ? verify_against->find(c.id) : nullptr;
     if (b && !std::isnan(b->edge)) {
-      const VerifyTargets t{b->edge, b->edge_hi, b->floor, b->best_rate, r.gate.edge_moved, r.gate.floor_moved};
+      const VerifyTargets t{b->edge,      b->edge_hi,  b->ragged_top,      b->floor,          b->best_rate,
+                            b->edge_seed, b->floor_seed, r.gate.edge_moved, r.gate.floor_moved};
       VerifyOutput v = runner ? verify_case_with(runner, problem, in, t, on_batch) : verify_case(*problem, in, t, on_batch);
       r.verification = std::move(v.check);
       if (v.verified) {

@@ -1193,6 +1193,8 @@ def catalogue():
                 ["suite.json#/defaults/outcome/level_ratio", "> 1"])
     suite_entry("suite-level-ratio-text", "defaults/outcome", {"level_ratio": "1.5"},
                 ["suite.json#/defaults/outcome/level_ratio", "number"])
+    suite_entry("suite-rates-verify-text", "defaults/rates", {"verify": "no"},
+                ["suite.json#/defaults/rates/verify"])
     suite_entry("suite-gate-severity-unknown", "gate", {"case_added": "maybe"},
                 ["suite.json#/gate/case_added", "unknown severity"])
     suite_entry("suite-undefined-dataset", "problems/0/dataset", "plnt",
@@ -1436,6 +1438,32 @@ def catalogue():
               ["accept", "r.json", "--baseline", "b.json", "--record", "rec.md"], 2,
               err=["r.json", "could not be run"],
               files=with_results(lambda d: put(d, "cases/0/error", "boom"), baseline=False)))
+    # Verify mode: a verified case's record, as `run --baseline` writes it.
+    def verified_record(verified=True, kind="edge_inside"):
+        return {"verified": verified, "disagreement": None, "baseline_edge": 1.0, "baseline_floor": None,
+                "edge_probes": [0.95, 1.06], "floor_probes": [None, None], "runs": 2,
+                "probes": [{"kind": kind, "rate": 0.95, "seed": 1, "outcome": "converged", "as_expected": True},
+                           {"kind": "edge_outside", "rate": 1.06, "seed": 1, "outcome": "diverged",
+                            "as_expected": True}],
+                "proves": "verified"}
+    add(Entry("accept-verified-results-writes-nothing",
+              ["accept", "r.json", "--baseline", "b.json", "--record", "rec.md"], 2,
+              err=["r.json#/cases/0/verification", "not searched", "--full"],
+              files=with_results(lambda d: put(d, "cases/0/verification", verified_record()), baseline=False)))
+    add(Entry("accept-searched-after-a-check",
+              ["accept", "r.json", "--baseline", "b.json", "--record", "rec.md"], 0,
+              files=with_results(lambda d: put(d, "cases/0/verification", verified_record(False)), baseline=False),
+              allow=["b.json", "rec.md"]))
+    add(Entry("results-verification-not-an-object", chk, 2, err=["r.json#/cases/0/verification"],
+              files=with_results(lambda d: put(d, "cases/0/verification", 5))))
+    add(Entry("results-verification-unknown-probe", chk, 2,
+              err=["r.json#/cases/0/verification/probes/0/kind", "probe kind"],
+              files=with_results(lambda d: put(d, "cases/0/verification", verified_record(kind="middle")))))
+    add(Entry("results-verification-verified-as-text", chk, 2,
+              err=["r.json#/cases/0/verification/verified", "true or false"],
+              files=with_results(lambda d: put(d, "cases/0/verification", dict(verified_record(), verified="yes")))))
+    add(Entry("run-full-without-a-baseline", ["run", "suite.json", "--full", "--out", "out", "--quiet"], 2,
+              err=["--full", "--baseline"], files={"suite.json": tiny_suite()}))
     add(Entry("accept-suite-name-as-path",
               ["accept", "r.json"], 2, err=["r.json"],
               files=with_results(lambda d: put(d, "suite/name", "../escape") and None,

@@ -105,11 +105,19 @@ inline const CachedRun& demo_first() {
   return cached_run("demo-jobs2", "run " + quoted(demo_suite().string()) + " --jobs 2");
 }
 inline fs::path demo_baseline() { return cached_baseline("demo", demo_first()); }
-/// The demo again, --jobs 1, gated against the baseline accepted from demo_first().
+/// The demo again, --jobs 1, gated against the baseline accepted from demo_first(), searched in
+/// full (--full), so that its results can be compared with demo_first() case by case.
 inline const CachedRun& demo_second() {
   const fs::path baseline = demo_baseline();
-  return cached_run("demo-jobs1-gated", "run " + quoted(demo_suite().string()) + " --jobs 1 --quiet --baseline " +
+  return cached_run("demo-jobs1-gated", "run " + quoted(demo_suite().string()) + " --jobs 1 --quiet --full --baseline " +
                                             quoted(baseline.string()));
+}
+/// The demo gated against demo_baseline() in verify mode (the default with --baseline).
+inline const CachedRun& demo_verified(int jobs) {
+  const fs::path baseline = demo_baseline();
+  return cached_run("demo-verified-jobs" + std::to_string(jobs), "run " + quoted(demo_suite().string()) + " --jobs " +
+                                                                     std::to_string(jobs) + " --quiet --baseline " +
+                                                                     quoted(baseline.string()));
 }
 
 inline const CachedRun& gate_small_first() {

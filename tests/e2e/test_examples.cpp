@@ -122,7 +122,7 @@ TEST_CASE("examples: the PyTorch minibatch trainer, default settings: sensible e
   const std::string suite = quoted((example("torch_minibatch") / "suite.json").string());
   const std::string baseline = quoted((example("torch_minibatch") / "baseline.json").string());
   const CliResult run =
-      e2e::stepgate("run " + suite + " --baseline " + baseline + " --out r --jobs 2 --quiet", dir.path());
+      e2e::stepgate("run " + suite + " --full --baseline " + baseline + " --out r --jobs 2 --quiet", dir.path());
   INFO(run.out << run.err);
   report_time("example torch_minibatch: full search, unchanged", run.seconds);
   CHECK(run.exit_code == 0);  // an unchanged re-run passes the gate
@@ -173,18 +173,42 @@ TEST_CASE("examples: the PyTorch minibatch trainer, default settings: sensible e
   for (const json& x : case_of(r, "tagger-steps/none/hb-0.9")["runs"])
     if (x["rate"].get<double>() > 4) CHECK(x["outcome"] == "diverged");
 
+  // Verify mode (the default with a baseline): an unchanged re-run is verified in at most 4 runs
+  // per case and seed (the baseline records which seed set each boundary), and the full search's
+  // edges lie in the intervals the probes proved.
+  const CliResult verify =
+      e2e::stepgate("run " + suite + " --baseline " + baseline + " --out v --jobs 2 --quiet", dir.path());
+  INFO(verify.out << verify.err);
+  report_time("example torch_minibatch: verify mode, unchanged", verify.seconds);
+  CHECK(verify.exit_code == 0);
+  long probes = 0, searched = 0;
+  for (const json& c : read_json(dir / "v" / "results.json")["cases"]) {
+    INFO("case " << c["id"] << ": " << c["verification"]["disagreement"]);
+    REQUIRE(c["verification"]["verified"] == true);
+    CHECK(c["runs"].size() <= 4 * c["summary"]["seeds"].size());
+    const double edge = case_of(r, c["id"].get<std::string>())["summary"]["edge"];
+    CHECK(c["verification"]["edge_probes"][0].get<double>() <= edge);
+    CHECK(edge < c["verification"]["edge_probes"][1].get<double>());
+    probes += static_cast<long>(c["runs"].size());
+    searched += static_cast<long>(case_of(r, c["id"].get<std::string>())["runs"].size());
+  }
+  std::printf("[e2e verify] torch_minibatch: %ld runs searched in full (%.0f s), %ld runs verified (%.0f s)\n", searched,
+              run.seconds, probes, verify.seconds);
+  CHECK(probes * 5 <= searched);
+
   // Planted: the loss summed over the batch of 64, not averaged. Momentum SGD's edge falls by
   // about 64 (manual check: 0.036 to 0.0006); Adam is invariant to the loss's scale.
   const fs::path planted = planted_suite("torch_minibatch", "--sum-loss", dir.path());
   const CliResult changed =
       e2e::stepgate("run " + quoted(planted.string()) + " --baseline " + baseline + " --out sum --jobs 2 --quiet", dir.path());
   INFO(changed.out << changed.err);
-  report_time("example torch_minibatch: full search, loss summed", changed.seconds);
+  report_time("example torch_minibatch: verify mode, loss summed", changed.seconds);
   CHECK(changed.exit_code == 1);
   const std::string md = read_text(dir / "sum" / "report.md");
   const json after = read_json(dir / "sum" / "results.json");
   for (const std::string id : {"tagger-steps/none/hb-0.9", "tagger-heldout/none/hb-0.9"}) {
     INFO("case " << id);
+    CHECK(case_of(after, id)["verification"]["verified"] == false);  // a probe disagreed: searched
     CHECK(has_finding(case_section(md, id), "fail", "edge_moved"));
     CHECK(case_of(after, id)["summary"]["edge"].get<double>() < case_of(r, id)["summary"]["edge"].get<double>() / 10);
   }

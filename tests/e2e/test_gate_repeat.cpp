@@ -12,6 +12,7 @@ TEST_CASE("gate: ten re-runs of an unchanged suite all pass", "[e2e]") {
   REQUIRE(first.at("cases").size() == 5);
   TempDir tmp("repeat");
   double seconds = 0.0;
+  json verified;
   for (int i = 0; i < 10; ++i) {
     INFO("repeat " << i);
     const fs::path out = tmp / ("run-" + std::to_string(i));
@@ -23,10 +24,22 @@ TEST_CASE("gate: ten re-runs of an unchanged suite all pass", "[e2e]") {
     const CliResult check = expect_exit(
         "check " + quoted((out / "results.json").string()) + " --baseline " + quoted(baseline.string()), tmp.path(), 0);
     CHECK(check.out.find("verdict: pass") != std::string::npos);
-    // Same seeds: the located ranges are the same numbers, not just within tolerance.
+    // Verify mode (the default with a baseline): every case is verified, and the same seeds give
+    // the same probes, so every re-run's summaries are the same numbers, not just within tolerance.
     const json again = read_json(out / "results.json");
-    for (std::size_t c = 0; c < first.at("cases").size(); ++c)
-      CHECK(again["cases"][c].at("summary") == first["cases"][c].at("summary"));
+    if (i == 0) verified = again;
+    for (std::size_t c = 0; c < first.at("cases").size(); ++c) {
+      CHECK(again["cases"][c].at("verification").at("verified") == true);
+      CHECK(again["cases"][c].at("summary") == verified["cases"][c].at("summary"));
+    }
   }
+  // Searched in full (--full), a re-run locates the same numbers as the accepted first run.
+  const fs::path out = tmp / "full";
+  expect_exit("run " + quoted(e2e_suite("gate-small.json").string()) + " --quiet --full --baseline " +
+                  quoted(baseline.string()) + " --out " + quoted(out.string()),
+              tmp.path(), 0);
+  const json full = read_json(out / "results.json");
+  for (std::size_t c = 0; c < first.at("cases").size(); ++c)
+    CHECK(full["cases"][c].at("summary") == first["cases"][c].at("summary"));
   report_time("10 gated re-runs of gate-small", seconds);
 }

@@ -117,10 +117,28 @@ TEST_CASE("reference: suites/reference.json re-run passes its accepted baseline 
   // unchanged re-run must pass every rule, and the noisy runs say their noise level.
   TempDir tmp("reference-suite");
   const fs::path baseline = source_dir() / "references" / "reference.baseline.json";
-  const CliResult r = expect_exit("run " + quoted((source_dir() / "suites" / "reference.json").string()) +
-                                      " --quiet --jobs 2 --baseline " + quoted(baseline.string()) + " --out out",
+  const std::string suite = quoted((source_dir() / "suites" / "reference.json").string());
+  // Verify mode first: every case verified against its accepted boundaries.
+  const CliResult v = expect_exit("run " + suite + " --quiet --jobs 2 --baseline " + quoted(baseline.string()) +
+                                      " --out verified",
                                   tmp.path(), 0);
-  report_time("reference suite, gated", r.seconds);
+  report_time("reference suite, verified", v.seconds);
+  long probes = 0;
+  for (const json& c : read_json(tmp.path() / "verified" / "results.json").at("cases")) {
+    INFO("case " << c.at("id") << ": " << c.at("verification").at("disagreement"));
+    CHECK(c.at("verification").at("verified") == true);
+    probes += static_cast<long>(c.at("runs").size());
+  }
+  // Then the full search, whose blow-up the mean-square limit is checked against.
+  const CliResult r = expect_exit("run " + suite + " --quiet --jobs 2 --full --baseline " + quoted(baseline.string()) +
+                                      " --out out",
+                                  tmp.path(), 0);
+  report_time("reference suite, searched in full", r.seconds);
+  long searched = 0;
+  for (const json& c : read_json(tmp.path() / "out" / "results.json").at("cases"))
+    searched += static_cast<long>(c.at("runs").size());
+  std::printf("[e2e verify] reference suite: %ld runs searched in full, %ld runs verified\n", searched, probes);
+  CHECK(probes * 5 <= searched);
   const json results = read_json(tmp.path() / "out" / "results.json");
   for (const std::string id : {"diabetes-ols-sgd/std/sgd-16-independent", "breast-cancer-logit-sgd/std/sgd-16"}) {
     INFO("case " << id);

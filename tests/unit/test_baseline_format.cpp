@@ -15,7 +15,8 @@ json v2_case() {
   return {{"id", "bowl/none/gd"}, {"data_sha256", nullptr}, {"floor", 0.001}, {"edge", 1.9},
           {"edge_bracket", {1.9, 1.92}}, {"blowup", 2.0}, {"best_rate", 1.0}, {"best_iterations", 12.0},
           {"pinned", 0.5}, {"pinned_iterations", 40.0}, {"headroom", 3.8}, {"min_lre", nullptr},
-          {"edge_spread", 1.0}, {"precision", 0.01}, {"predicted_blowup", 2.0}, {"ragged_top", nullptr}};
+          {"edge_spread", 1.0}, {"precision", 0.01}, {"predicted_blowup", 2.0}, {"ragged_top", nullptr},
+          {"edge_seed", 2}, {"floor_seed", nullptr}};
 }
 
 json v2_baseline() {
@@ -43,6 +44,24 @@ TEST_CASE("baseline: format 2 writes host facts under host and null for no hash"
   CHECK_FALSE(again.contains("platform"));
   CHECK(again["cases"][0]["data_sha256"].is_null());
   CHECK(again == v2_baseline());
+  CHECK(b.cases[0].edge_seed == std::optional<std::uint64_t>(2));
+  CHECK_FALSE(b.cases[0].floor_seed.has_value());
+}
+
+TEST_CASE("baseline: a baseline without the boundary seeds (before verify mode) is read without them", "[baseline]") {
+  json old = v2_baseline();
+  old["cases"][0].erase("edge_seed");
+  old["cases"][0].erase("floor_seed");
+  const Baseline b = baseline_from_json(old, "b.json");
+  CHECK_FALSE(b.cases[0].edge_seed.has_value());
+  json bad = v2_baseline();
+  bad["cases"][0]["edge_seed"] = -1;
+  try {
+    baseline_from_json(bad, "b.json");
+    FAIL("a negative seed was read");
+  } catch (const InputError& e) {
+    CHECK_THAT(e.text(), Catch::Contains("b.json#/cases/0/edge_seed"));
+  }
 }
 
 TEST_CASE("baseline: a baseline of stepgate 0.1 is still read", "[baseline]") {
@@ -59,6 +78,7 @@ TEST_CASE("baseline: a baseline of stepgate 0.1 is still read", "[baseline]") {
   CHECK(b.cases[0].min_lre == 7.5);
   json expected = v2_baseline();
   expected["cases"][0]["min_lre"] = 7.5;
+  expected["cases"][0]["edge_seed"] = 2;
   CHECK(to_json(b) == expected);  // written again, it is format 2
 
   // Format 1 keeps its own key: "host" in a format 1 file is not read as the host facts.

@@ -116,6 +116,17 @@ Results sample_results(long trace_length = 100000) {
   diverged.record.overshoot = kMissing;
   a.runs.push_back(std::move(diverged));
   a.runs.push_back(run(1e-3, Outcome::slow, RunRole::fixed, {}));
+  a.runs.push_back(run(0.9, Outcome::converged, RunRole::verify, {}));
+  BaselineCheck check;  // a check that disagreed: the case was then searched
+  check.disagreement = "the rate just inside the edge 0.9524 was slow for seed 3";
+  check.baseline_edge = 1.0;
+  check.baseline_floor = kMissing;
+  check.edge_inside = 1.0 / 1.05;
+  check.edge_outside = 1.05 * 1.01;
+  check.runs = 2;
+  check.probes = {{ProbeKind::pinned, 0.5, kBigSeed, Outcome::converged, true},
+                  {ProbeKind::edge_inside, 1.0 / 1.05, 3, Outcome::slow, false}};
+  a.verification = check;
   r.cases.push_back(std::move(a));
 
   CaseResult b;
@@ -182,6 +193,20 @@ TEST_CASE("results: to_json -> dump -> parse -> results_from_json -> to_json is 
   CHECK_FALSE(back.cases[1].summary.pinned_outcome.has_value());
   CHECK(back.cases[1].error == r.cases[1].error);
   CHECK(back.shard == "1/2");
+  // The baseline check comes back field by field; a case without one has null.
+  REQUIRE(a.verification.has_value());
+  CHECK_FALSE(a.verification->verified);
+  CHECK(a.verification->disagreement == r.cases[0].verification->disagreement);
+  CHECK(same_bits(a.verification->edge_inside, 1.0 / 1.05));
+  CHECK(std::isnan(a.verification->floor_inside));
+  REQUIRE(a.verification->probes.size() == 2);
+  CHECK(a.verification->probes[0].seed == kBigSeed);
+  CHECK(a.verification->probes[1].kind == ProbeKind::edge_inside);
+  CHECK(a.verification->probes[1].outcome == Outcome::slow);
+  CHECK_FALSE(a.verification->probes[1].as_expected);
+  CHECK(a.runs.back().role == RunRole::verify);
+  CHECK(first["cases"][1]["verification"].is_null());
+  CHECK(first["cases"][0]["verification"]["proves"].get<std::string>().find("searched: the baseline check disagreed") == 0);
 }
 
 TEST_CASE("results: every field of the docs/design.md contract is present by name", "[results]") {
@@ -352,6 +377,14 @@ TEST_CASE("results: malformed documents name the JSON pointer of the bad field",
        [](json& j) { j["cases"][0]["runs"][0]["trace"][3] = {3}; }},
       {"/cases/0/runs/0/trace/2/1", "expected a number or null, found \"x\"",
        [](json& j) { j["cases"][0]["runs"][0]["trace"][2][1] = "x"; }},
+      {"/cases/0/verification/probes/1/kind", "a probe kind",
+       [](json& j) { j["cases"][0]["verification"]["probes"][1]["kind"] = "middle"; }},
+      {"/cases/0/verification/verified", "expected true or false",
+       [](json& j) { j["cases"][0]["verification"]["verified"] = "yes"; }},
+      {"/cases/0/verification/edge_probes", "a pair",
+       [](json& j) { j["cases"][0]["verification"]["edge_probes"] = {1.0}; }},
+      {"/cases/0/verification/probes/0/outcome", "found \"fine\"",
+       [](json& j) { j["cases"][0]["verification"]["probes"][0]["outcome"] = "fine"; }},
       {"/cases/0/runs/0/converged_at", "found true",
        [](json& j) { j["cases"][0]["runs"][0]["converged_at"] = true; }},
   };

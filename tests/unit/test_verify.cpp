@@ -39,8 +39,18 @@ VerifyTargets targets_of(const CaseSummary& s) {
   VerifyTargets t;
   t.edge = s.edge;
   t.edge_hi = s.edge_hi;
+  t.ragged_top = s.ragged_top;
   t.floor = s.floor;
   t.best_rate = s.best_rate;
+  return t;
+}
+
+// The seeds that set the edge and the floor, as an accepted baseline records them.
+VerifyTargets with_boundary_seeds(VerifyTargets t, const CaseSummary& s) {
+  for (const SeedSummary& seed : s.seeds) {
+    if (!t.edge_seed && seed.edge == s.edge) t.edge_seed = seed.seed;
+    if (!t.floor_seed && seed.floor == s.floor) t.floor_seed = seed.seed;
+  }
   return t;
 }
 
@@ -63,6 +73,12 @@ TEST_CASE("verify: probe rates follow the tolerances and the search precision", 
   CHECK(std::isnan(p.reference));
   CHECK(probe_rates(t, rates, true).reference == 1.0);
 
+  SECTION("with a ragged zone the outside probe goes above its top, as the gate compares zones") {
+    t.ragged_top = 2.5;
+    const ProbeRates q = probe_rates(t, rates, false);
+    CHECK(q.edge_inside == Approx(2.0 / 1.05));
+    CHECK(q.edge_outside == Approx(2.5 * 1.05 * 1.01));
+  }
   SECTION("an edge at the top of the grid is probed at itself, with nothing outside") {
     t.edge_hi = kMissing;
     const ProbeRates q = probe_rates(t, rates, false);
@@ -145,6 +161,11 @@ TEST_CASE("verify: an unchanged case is verified in at most 4 runs per seed, as 
   // Theory is computed as the search computes it.
   CHECK(v.verified->theory.predicted_blowup == Approx(searched.theory.predicted_blowup));
 
+  SECTION("knowing which seed set each boundary, each outside probe runs once") {
+    const VerifyOutput known = verify_case(*problem, in, with_boundary_seeds(t, searched.summary));
+    REQUIRE(known.verified);
+    CHECK(known.check.runs == 3 * static_cast<int>(in.seeds.size()) + 2);
+  }
   SECTION("the same bits twice") {
     const VerifyOutput again = verify_case(*problem, in, t);
     REQUIRE(again.verified);
