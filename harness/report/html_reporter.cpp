@@ -110,7 +110,10 @@ std::string summary_section(const ReportInput& in) {
                                      : with_was(s.edge, b ? b->edge : kMissing);
     if (!std::isnan(s.ragged_top)) edge_cell += "<span class=\"was\">ragged to " + html_number(s.ragged_top) + "</span>";
     const Severity* w = worst(in.gate.of_case(c.id));
-    out += fmt::format("<tr><td><a href=\"#case-{}\">{}</a></td>", i + 1, esc(c.id));
+    // A case id breaks after its slashes (problem/, scaling/) before it breaks inside a name.
+    std::string id = esc(c.id);
+    for (std::size_t at = id.find('/'); at != std::string::npos; at = id.find('/', at + 6)) id.insert(at + 1, "<wbr>");
+    out += fmt::format("<tr><td><a href=\"#case-{}\">{}</a></td>", i + 1, id);
     if (!c.error.empty()) {
       out += "<td colspan=\"6\" class=\"error\">not run</td>";
     } else {

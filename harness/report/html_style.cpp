@@ -25,7 +25,7 @@ code, .mono { font-family:"DejaVu Sans Mono", Menlo, Consolas, monospace; font-s
 table { border-collapse:collapse; width:100%; }
 th, td { padding:5px 8px; border-bottom:1px solid var(--line); text-align:right; white-space:nowrap; }
 th { font-size:12px; color:var(--muted); font-weight:600; }
-th:first-child, td:first-child { text-align:left; white-space:normal; overflow-wrap:anywhere; }
+th:first-child, td:first-child { text-align:left; white-space:normal; overflow-wrap:break-word; }
 td.sev { text-align:center; }
 tbody tr:hover { background:#f3f5f9; }
 a { color:var(--now); text-decoration:none; } a:hover { text-decoration:underline; }
