@@ -99,7 +99,7 @@ TEST_CASE("verify mode: the unchanged demo is verified in a fraction of the runs
   }
 }
 
-TEST_CASE("verify mode: a planted change is searched and fails naming the new edge; the rest stays verified", "[e2e][verify]") {
+TEST_CASE("verify mode: a planted change is searched and fails naming the new edge while the rest stays verified", "[e2e][verify]") {
   TempDir tmp("verify-planted");
   // bowl-50's curvature x1.5 moves every bowl-50 edge down by 1/1.5.
   const fs::path suite = demo_copy(tmp.path(), [](json& s) { problem_of(s, "bowl-50")["L"] = 1.5; });
@@ -130,7 +130,7 @@ TEST_CASE("verify mode: a planted change is searched and fails naming the new ed
   CHECK(md.find("baseline check: searched: the baseline check disagreed") != std::string::npos);
 }
 
-TEST_CASE("verify mode: rates.verify false searches that problem; --full needs a baseline", "[e2e][verify]") {
+TEST_CASE("verify mode: rates.verify false searches that problem and --full needs a baseline", "[e2e][verify]") {
   TempDir tmp("verify-off");
   const fs::path suite =
       demo_copy(tmp.path(), [](json& s) { problem_of(s, "bowl-200")["rates"] = json{{"verify", false}}; });

@@ -177,7 +177,7 @@ TEST_CASE("verify: an unchanged case is verified in at most 4 runs per seed, as 
   }
 }
 
-TEST_CASE("verify: a pass proves the edge is within edge_moved; a larger move disagrees", "[verify]") {
+TEST_CASE("verify: a pass proves the edge is within edge_moved and a larger move disagrees", "[verify]") {
   // The baseline is the search at L = 1; the current problem's curvature moves the edge (2/L) by
   // the factors below. Whenever verification passes, the current problem's full search must
   // place its edge within the gate's allowance (1.05 x 1.01) of the baseline's, and a move
