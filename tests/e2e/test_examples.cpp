@@ -183,7 +183,8 @@ TEST_CASE("examples: the PyTorch minibatch trainer, default settings: sensible e
   report_time("example torch_minibatch: verify mode, unchanged", verify.seconds);
   CHECK(verify.exit_code == 0);
   long probes = 0, searched = 0;
-  for (const json& c : read_json(dir / "v" / "results.json")["cases"]) {
+  const json verified = read_json(dir / "v" / "results.json");  // kept alive for the loop
+  for (const json& c : verified["cases"]) {
     INFO("case " << c["id"] << ": " << c["verification"]["disagreement"]);
     REQUIRE(c["verification"]["verified"] == true);
     CHECK(c["runs"].size() <= 5 * c["summary"]["seeds"].size());
