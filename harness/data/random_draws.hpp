@@ -35,6 +35,15 @@ class NormalDraws {
     return radius * std::cos(angle);
   }
 
+  /// Moves a fresh stream on by `count` normals, so that the next call returns the one a
+  /// fresh stream would return after `count` calls: a long stream can be drawn in parts in
+  /// parallel with the same bits. Each pair costs two raw draws and no transcendental.
+  void skip(std::uint64_t count) {
+    rng_.discard(2 * (count / 2));
+    has_spare_ = false;
+    if (count % 2 == 1) (void)next();  // the pair's first half; its spare comes next
+  }
+
   std::mt19937_64& engine() { return rng_; }
 
  private:

@@ -15,7 +15,7 @@ using LongMat = Eigen::Matrix<long double, Eigen::Dynamic, Eigen::Dynamic>;
 
 class LeastSquares final : public detail::LinearModel {
  public:
-  LeastSquares(const Dataset& data, const LinearModelOptions& opt) : LinearModel(data, opt, 1) {
+  LeastSquares(Dataset&& data, const LinearModelOptions& opt) : LinearModel(std::move(data), opt, 1) {
     const Index n = Xaug_.rows(), p = Xaug_.cols();
     use_gram_ = opt.gram_ratio > 0.0 && double(n) >= opt.gram_ratio * double(p);
     if (use_gram_) {
@@ -188,8 +188,8 @@ Optimum LeastSquares::solve() const {
 
 }  // namespace
 
-std::unique_ptr<Problem> make_least_squares(const Dataset& data, const LinearModelOptions& opt) {
-  return std::make_unique<LeastSquares>(data, opt);
+std::unique_ptr<Problem> make_least_squares(Dataset data, const LinearModelOptions& opt) {
+  return std::make_unique<LeastSquares>(std::move(data), opt);
 }
 
 }  // namespace stepgate

@@ -1,9 +1,11 @@
 #include "stepgate/problems/linear_common.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <random>
 #include <stdexcept>
 #include <string>
+#include <vector>
 
 #include <tbb/blocked_range.h>
 #include <tbb/parallel_for.h>
@@ -13,11 +15,58 @@
 
 namespace stepgate::detail {
 
-Mat augment_with_ones(const Mat& X, bool intercept) {
-  Mat out(X.rows(), X.cols() + (intercept ? 1 : 0));
-  out.leftCols(X.cols()) = X;
-  if (intercept) out.col(X.cols()).setOnes();
-  return out;
+Mat augment_with_ones(Mat X, bool intercept) {
+  if (!intercept) return X;
+  // Column-major with the rows unchanged: Eigen's conservativeResize keeps the columns where
+  // they are and reallocates the block (realloc, which moves a large mapping's pages instead of
+  // copying them), so no second copy of the features is held.
+  const Index d = X.cols();
+  X.conservativeResize(Eigen::NoChange, d + 1);
+  X.col(d).setOnes();
+  return X;
+}
+
+void weighted_gram(const Mat& X, const RowWeights& row_weights, double weight, Mat& out) {
+  const Index n = X.rows(), p = X.cols();
+  constexpr Index kBlock = 1024;  // rows per block: its scaled copy (1024 x p) stays in L2 for p ~ 50
+  const Index blocks = std::max<Index>(1, (n + kBlock - 1) / kBlock);
+  const Index by_memory = std::max<Index>(1, Index(8'000'000) / std::max<Index>(1, p * p));  // 64 MB of partial sums
+  const Index groups = std::min<Index>({8, blocks, by_memory});
+  std::vector<Mat> partial(static_cast<std::size_t>(groups));
+  auto one = [&](Index g) {
+    Mat& S = partial[std::size_t(g)];
+    S.setZero(p, p);
+    Mat scaled;
+    Vec c;
+    if (row_weights) scaled.resize(std::min(kBlock, n), p), c.resize(std::min(kBlock, n));
+    for (Index b = g * blocks / groups; b < (g + 1) * blocks / groups; ++b) {
+      const Index i0 = b * kBlock, m = std::min(kBlock, n - i0);
+      if (m <= 0) break;
+      const auto Xb = X.middleRows(i0, m);
+      if (row_weights) {
+        row_weights(i0, Xb, c.head(m));
+        scaled.topRows(m).noalias() = c.head(m).asDiagonal() * Xb;
+        S.noalias() += Xb.transpose() * scaled.topRows(m);
+      } else {
+        S.noalias() += Xb.transpose() * Xb;
+      }
+    }
+  };
+  if (groups == 1) {
+    one(0);
+  } else {
+    tbb::this_task_arena::isolate([&] {
+      tbb::parallel_for(tbb::blocked_range<Index>(0, groups, 1),
+                        [&](const tbb::blocked_range<Index>& r) {
+                          for (Index g = r.begin(); g < r.end(); ++g) one(g);
+                        },
+                        tbb::simple_partitioner());
+    });
+  }
+  out = std::move(partial[0]);
+  for (Index g = 1; g < groups; ++g) out += partial[std::size_t(g)];
+  out *= weight;
+  out.triangularView<Eigen::StrictlyUpper>() = out.transpose();  // the lower triangle, mirrored: exactly symmetric
 }
 
 void gather_rows(const Mat& X, std::span<const Index> rows, Mat& out) {
@@ -30,19 +79,20 @@ void gather_rows(const Mat& X, std::span<const Index> rows, Mat& out) {
   }
 }
 
-LinearModel::LinearModel(const Dataset& data, const LinearModelOptions& opt, Index outputs)
-    : Xaug_(augment_with_ones(data.X, opt.intercept)),
+LinearModel::LinearModel(Dataset&& data, const LinearModelOptions& opt, Index outputs)
+    : Xaug_(augment_with_ones(std::move(data.X), opt.intercept)),
       y_(data.y),
       opt_(opt),
-      features_(data.X.cols()),
+      features_(Xaug_.cols() - (opt.intercept ? 1 : 0)),
       outputs_(outputs),
-      rows_per_output_(data.X.cols() + (opt.intercept ? 1 : 0)),
-      data_weight_(opt.reduction == Reduction::mean ? 1.0 / double(data.X.rows()) : 1.0) {
+      rows_per_output_(Xaug_.cols()),
+      data_weight_(opt.reduction == Reduction::mean ? 1.0 / double(Xaug_.rows()) : 1.0) {
+  data.X.resize(0, 0);  // moved from: say so, whatever the moved-from state
   const std::string who = "data set '" + data.name + "': ";
-  if (data.X.rows() == 0) throw std::invalid_argument(who + "has no rows");
-  if (data.y.size() != data.X.rows())
+  if (Xaug_.rows() == 0) throw std::invalid_argument(who + "has no rows");
+  if (data.y.size() != Xaug_.rows())
     throw std::invalid_argument(who + std::to_string(data.y.size()) + " targets for " +
-                                std::to_string(data.X.rows()) + " rows");
+                                std::to_string(Xaug_.rows()) + " rows");
   if (!(opt.l2 >= 0.0) || !std::isfinite(opt.l2))
     throw std::invalid_argument(who + "l2 must be finite and >= 0");
   if (!(opt.init_scale >= 0.0)) throw std::invalid_argument(who + "init_scale must be >= 0");
@@ -112,9 +162,8 @@ double LinearModel::gram_lambda_max() const {
   std::call_once(gram_once_, [this] {
     const Index p = Xaug_.cols();
     if (p <= 4000) {
-      Mat G(p, p);
-      G.setZero();
-      G.selfadjointView<Eigen::Lower>().rankUpdate(Xaug_.transpose());
+      Mat G;
+      weighted_gram(Xaug_, {}, 1.0, G);
       gram_lambda_max_ = Eigen::SelfAdjointEigenSolver<Mat>(G, Eigen::EigenvaluesOnly)
                              .eigenvalues()
                              .maxCoeff();

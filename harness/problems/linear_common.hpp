@@ -15,8 +15,22 @@
 
 namespace stepgate::detail {
 
-/// [X 1] when `intercept`, else a copy of X: n x (d + intercept).
-Mat augment_with_ones(const Mat& X, bool intercept);
+/// [X 1] when `intercept`, else X: n x (d + intercept). Takes X over (pass std::move(X) to
+/// avoid a copy): the ones column is appended in place, growing X's block by realloc, so a
+/// moved-in data set is never held twice.
+Mat augment_with_ones(Mat X, bool intercept);
+
+/// Fills c (m entries) with the weights of rows [i0, i0 + m) of X, whose block is X_block
+/// (read while it is in cache).
+using RowWeights = std::function<void(Index i0, const Eigen::Ref<const Mat>& X_block, Eigen::Ref<Vec> c)>;
+
+/// out = weight · Xᵀ·diag(c)·X (p x p, both triangles), c_i from `row_weights` (null: all 1,
+/// XᵀX): the dense Hessian of a linear model, Σ_i c_i x_i x_iᵀ. Blocks of rows, each scaled in
+/// a small reused buffer (never an n x p temporary), summed in a fixed number of row groups in
+/// parallel on the caller's task arena and then in group order: the same bits for any number
+/// of threads. The groups depend only on n and p (at most 8, fewer when p x p partial sums
+/// would pass 64 MB).
+void weighted_gram(const Mat& X, const RowWeights& row_weights, double weight, Mat& out);
 
 /// out = the rows `rows` of X, in that order (resized to |rows| x X.cols()).
 void gather_rows(const Mat& X, std::span<const Index> rows, Mat& out);
@@ -39,7 +53,10 @@ void sum_over_row_blocks(Index n, Index block, double weight, Vec& cost, Eigen::
 /// Base of the three linear models. Parameters: a (d [+1]) x outputs matrix, column-major.
 class LinearModel : public Problem {
  public:
-  LinearModel(const Dataset& data, const LinearModelOptions& opt, Index outputs);
+  /// Takes the features over from `data` (data.X is left empty; its targets, name and row
+  /// locations stay for the derived model's messages): a data set passed by move to a make_*
+  /// factory is never copied.
+  LinearModel(Dataset&& data, const LinearModelOptions& opt, Index outputs);
 
   Index dim() const override { return rows_per_output_ * outputs_; }
   Index samples() const override { return Xaug_.rows(); }

@@ -32,8 +32,8 @@ Index class_count(const Dataset& data, Index classes) {
 
 class Softmax final : public detail::LinearModel {
  public:
-  Softmax(const Dataset& data, const LinearModelOptions& opt, Index classes)
-      : LinearModel(data, opt, class_count(data, classes)), label_(y_.size()) {
+  Softmax(Dataset&& data, const LinearModelOptions& opt, Index classes)
+      : LinearModel(std::move(data), opt, class_count(data, classes)), label_(y_.size()) {
     for (Index i = 0; i < y_.size(); ++i) label_[i] = Index(y_[i]);
   }
 
@@ -83,14 +83,18 @@ class Softmax final : public detail::LinearModel {
     const Index C = outputs_, q = rows_per_output_;
     Mat P = Xaug_ * Eigen::Map<const Mat>(w.data(), q, C);
     probabilities(P);
-    Mat H(dim(), dim());
+    Mat H(dim(), dim()), block;
     Vec weight(Xaug_.rows());
     for (Index a = 0; a < C; ++a)
       for (Index b = 0; b <= a; ++b) {
+        // Block (a, b): s·Xᵀ·diag(δ_ab·p_a − p_a·p_b)·X, in blocks of rows (weighted_gram).
         weight = -P.col(a).cwiseProduct(P.col(b));
         if (a == b) weight += P.col(a);
-        H.block(a * q, b * q, q, q).noalias() = data_weight() * (Xaug_.transpose() * weight.asDiagonal() * Xaug_);
-        if (a != b) H.block(b * q, a * q, q, q) = H.block(a * q, b * q, q, q).transpose();
+        detail::weighted_gram(Xaug_, [&](Index i0, const Eigen::Ref<const Mat>&, Eigen::Ref<Vec> c) {
+          c = weight.segment(i0, c.size());
+        }, data_weight(), block);
+        H.block(a * q, b * q, q, q) = block;
+        if (a != b) H.block(b * q, a * q, q, q) = block.transpose();
       }
     Vec ridge = Vec::Zero(dim());
     add_ridge(Vec::Ones(dim()), ridge);
@@ -234,8 +238,8 @@ class Softmax final : public detail::LinearModel {
 
 }  // namespace
 
-std::unique_ptr<Problem> make_softmax(const Dataset& data, const LinearModelOptions& opt, Index classes) {
-  return std::make_unique<Softmax>(data, opt, classes);
+std::unique_ptr<Problem> make_softmax(Dataset data, const LinearModelOptions& opt, Index classes) {
+  return std::make_unique<Softmax>(std::move(data), opt, classes);
 }
 
 }  // namespace stepgate

@@ -44,13 +44,15 @@ std::unique_ptr<Problem> build_custom(const ProblemSpec& p, const Dataset* data,
   return problem;
 }
 
-std::unique_ptr<Problem> build(const ProblemSpec& p, const Dataset* data, const std::string& where) {
+// `data` (null for kinds without one) is moved into a built-in linear model, which takes its
+// features over: a data set is then held once, as the model's [X 1].
+std::unique_ptr<Problem> build(const ProblemSpec& p, Dataset* data, const std::string& where) {
   if (p.kind == ProblemKind::custom) return build_custom(p, data, where);
   try {
     switch (p.kind) {
-      case ProblemKind::least_squares: return make_least_squares(*data, p.linear);
-      case ProblemKind::logistic: return make_logistic(*data, p.linear);
-      case ProblemKind::softmax: return make_softmax(*data, p.linear, p.classes);
+      case ProblemKind::least_squares: return make_least_squares(std::move(*data), p.linear);
+      case ProblemKind::logistic: return make_logistic(std::move(*data), p.linear);
+      case ProblemKind::softmax: return make_softmax(std::move(*data), p.linear, p.classes);
       case ProblemKind::quadratic: return make_quadratic(p.quadratic);
       case ProblemKind::test_function: return make_test_function(p.function);
       case ProblemKind::command: return nullptr;  // runs come from the user's program (run/command_runner)
@@ -142,9 +144,10 @@ static DatasetInfo describe(const DatasetSpec& spec, const Dataset& d) {
 
 PreparedSweep prepare_problems(const Suite& suite, const Plan& plan) {
   std::map<std::string, Dataset> raw;  // loaded once per dataset
-  // Problems (with their own copy of the features) still to build per data set: the raw copy
-  // is moved into the last one rather than copied, so that at most two copies of a data set
-  // are held at once (raw or scaled, and the problem's [X 1]), not three.
+  // Problems still to build per data set: the raw copy is moved into the last one rather than
+  // copied, and a built-in linear model takes its (scaled) features over in place, so a data
+  // set used by one problem and scaling is held once; used by several, once more per problem
+  // built so far (each holds its own scaled [X 1]).
   std::map<std::string, int> pending;
   {
     std::set<PreparedKey> seen;
@@ -184,12 +187,12 @@ PreparedSweep prepare_problems(const Suite& suite, const Plan& plan) {
                          fmt::format("{} ({}; data from {}; used by {})", e.message(), e.where(),
                                      spec.path.empty() ? "the suite's generator" : spec.path, where));
       }
-      prepared.problem = build(p, &data, where);
       prepared.map = data.map;
       prepared.dataset = p.dataset;
       prepared.data_sha256 = data.sha256;
       if (p.reference)
         prepared.reference = align_reference(*p.reference, data, p.linear.intercept, where + "/reference");
+      prepared.problem = build(p, &data, where);  // last: a linear model takes data's features over
     } else {
       prepared.problem = build(p, nullptr, where);
       prepared.map = FeatureMap::identity(0);

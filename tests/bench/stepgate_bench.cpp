@@ -11,20 +11,32 @@
 // them, --jobs 1 and 2), growth (medium at 50k..400k rows, small at 10..300 rates) and gemm
 // (dense 2000 x 2000 products on all cores: Eigen as built, and OpenBLAS through numpy).
 //
+// Whole-process time is the headline: each workload is also written as a suite and run by
+// `stepgate run` in its own process (start, suite check, reading or generating and scaling the
+// data, the reference optimum, theory, runs, reports), and each peer is timed as its own
+// process too (Python's start, imports, loading the data, the loop). The parts are printed
+// beside it: stepgate's set-up and runs as measured in this process, the rest by difference.
+//
 // How the peers are compared: stepgate runs each workload with its real stopping rules
 // (confirmed convergence, divergence, budget); each peer then runs the same runs one at a time
 // for exactly the iterations stepgate took, computing cost and gradient at every step, and
 // reports its final costs. A ratio is printed only when every final cost agrees (relative
 // 1e-9, or 1e-6 for diverged runs, whose growth magnifies the rounding of either side).
 // For medium and large the peers time a few runs and are scaled by iterations (stated).
+#include <fcntl.h>
+#include <spawn.h>
 #include <sys/resource.h>
+#include <sys/wait.h>
 #include <unistd.h>
 
 #include <algorithm>
 #include <chrono>
 #include <cmath>
 #include <cstdio>
+#include <cerrno>
 #include <cstdlib>
+#include <cstring>
+#include <iterator>
 #include <filesystem>
 #include <fstream>
 #include <functional>
@@ -46,8 +58,9 @@
 #include "stepgate/data/scaling.hpp"
 #include "stepgate/problems/linear_models.hpp"
 #include "stepgate/run/batch.hpp"
-#include "stepgate/run/child_process.hpp"
 #include "stepgate/sweep/run_suite.hpp"
+
+extern char** environ;
 
 using namespace stepgate;
 using nlohmann::json;
@@ -65,6 +78,7 @@ struct Options {
   bool quick = false;
   bool peers = true;  // --no-peers: stepgate's own figures only (no numpy or PyTorch loop)
   std::string python = "/usr/bin/python3";
+  fs::path program = STEPGATE_PROGRAM;  // the stepgate program timed as a whole process
   fs::path source = STEPGATE_SOURCE_DIR;
   bool wants(const std::string& name) const { return only.empty() || only.count(name) > 0; }
 };
@@ -82,7 +96,101 @@ struct Workload {
   int seeds = 1;
   RunSettings settings;
   double flops_per_lane_eval = 0;  // matrix-product flops of one cost-and-gradient evaluation
+  // The same workload as a suite for `stepgate run`: its data set and its problem's own keys.
+  json dataset, problem_keys = json::object(), scalings = json::object();
 };
+
+// Set-up measured in this process, the parts beside the whole-process figure.
+struct Setup {
+  double data = 0, model = 0, optimum = 0;  // reading or generating and scaling; building the model; J*
+  double total() const { return data + model + optimum; }
+};
+
+// ---- a child process, timed whole -------------------------------------------------------
+
+struct Timed {
+  double seconds = NAN;   // wall time from spawn to exit
+  long peak_kib = 0;      // the child's peak resident memory (wait4)
+  int exit_code = -1;     // -1: killed by a signal, or not started
+  std::string output;     // its standard output
+  std::string error;      // why it did not run, or its standard error's tail
+};
+
+Timed timed_child(const std::vector<std::string>& argv, const fs::path& scratch, const std::string& tag) {
+  Timed t;
+  const fs::path out = scratch / (tag + ".stdout"), err = scratch / (tag + ".stderr");
+  posix_spawn_file_actions_t actions;
+  posix_spawn_file_actions_init(&actions);
+  posix_spawn_file_actions_addopen(&actions, 1, out.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
+  posix_spawn_file_actions_addopen(&actions, 2, err.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
+  std::vector<char*> args;
+  for (const std::string& a : argv) args.push_back(const_cast<char*>(a.c_str()));
+  args.push_back(nullptr);
+  pid_t pid = 0;
+  const auto t0 = Clock::now();
+  const int spawned = posix_spawn(&pid, args[0], &actions, nullptr, args.data(), environ);
+  posix_spawn_file_actions_destroy(&actions);
+  if (spawned != 0) {
+    t.error = fmt::format("cannot start {}: {}", argv[0], std::strerror(spawned));
+    return t;
+  }
+  int status = 0;
+  rusage usage{};
+  while (::wait4(pid, &status, 0, &usage) < 0 && errno == EINTR) {}
+  t.seconds = since(t0);
+  t.peak_kib = usage.ru_maxrss;
+  t.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+  std::ifstream o(out), e(err);
+  t.output.assign(std::istreambuf_iterator<char>(o), {});
+  std::string tail((std::istreambuf_iterator<char>(e)), {});
+  if (tail.size() > 400) tail = tail.substr(tail.size() - 400);
+  if (t.exit_code < 0 || (t.exit_code != 0 && t.exit_code != 1)) t.error = fmt::format("exit {}: {}", t.exit_code, tail);
+  return t;
+}
+
+// `stepgate run` on the workload written as a suite: the figure a user's CI job pays.
+struct Whole {
+  Timed timed;
+  long runs = 0, iterations = 0;
+  double sweep_seconds = NAN;  // results.json wall_seconds: preparation and cases, without start and reports
+};
+
+Whole run_whole(const Options& opt, const Workload& w, const std::string& tag, const fs::path& scratch) {
+  const bool momentum = w.optimizer.kind == OptimizerKind::momentum;
+  const std::string optimizer = momentum ? "hb" : "gd";
+  json problem = w.problem_keys;
+  problem["name"] = "workload";
+  problem["kind"] = w.problem_kind;
+  problem["dataset"] = "data";
+  problem["optimizers"] = {optimizer};
+  problem["pinned"] = w.rates.front();  // one of the fixed rates: no extra run
+  json suite = {{"format", "stepgate.suite/1"},
+                {"name", "bench-" + tag},
+                {"datasets", {{"data", w.dataset}}},
+                {"defaults", {{"seeds", w.seeds},
+                              {"budget", w.settings.budget},
+                              {"rates", {{"grid", nullptr}, {"fixed", w.rates}, {"locate_edge", false},
+                                         {"locate_floor", false}, {"locate_blowup", false},
+                                         {"lanes", std::min<std::size_t>(16, w.rates.size())}}}}},
+                {"problems", {problem}}};
+  if (!w.scalings.empty()) suite["scalings"] = w.scalings;
+  if (momentum) suite["optimizers"] = {{"hb", {{"kind", "momentum"}, {"beta", w.optimizer.beta}}}};
+  const fs::path suite_path = scratch / ("suite-" + tag + ".json"), out = scratch / ("out-" + tag);
+  std::ofstream(suite_path) << suite.dump(1);
+  Whole r;
+  r.timed = timed_child({opt.program.string(), "run", suite_path.string(), "--out", out.string(), "--quiet"}, scratch, tag);
+  if (!r.timed.error.empty()) return r;
+  try {
+    std::ifstream in(out / "results.json");
+    const json results = json::parse(in);
+    r.sweep_seconds = results.at("wall_seconds").get<double>();
+    for (const json& c : results.at("cases"))
+      for (const json& run : c.at("runs")) r.runs += 1, r.iterations += run.at("steps").get<long>();
+  } catch (const std::exception& e) {
+    r.timed.error = std::string("results.json unreadable: ") + e.what();
+  }
+  return r;
+}
 
 struct Measured {
   double seconds = 0;
@@ -123,7 +231,8 @@ Measured run_workload(const Workload& w) {
 
 struct PeerResult {
   std::string name, note;
-  double seconds = NAN;  // scaled to all runs
+  double seconds = NAN;        // the loop, scaled to all runs
+  double whole_seconds = NAN;  // the whole process: its start, imports and data loading, and the scaled loop
   bool agreed = false;
   double worst_relative = 0;
   // The peer runs to the budget where stepgate proved a run slow and stopped it (a loop without
@@ -138,19 +247,25 @@ void write_doubles(const fs::path& path, const double* data, std::size_t n) {
   if (!out) throw std::runtime_error("cannot write " + path.string());
 }
 
-std::optional<json> run_python(const Options& opt, const std::vector<std::string>& args, std::string& error) {
+// A Python script as its own process: its last line of output as JSON, and its wall time.
+std::optional<json> run_python(const Options& opt, const std::vector<std::string>& args, std::string& error,
+                               const fs::path& scratch, double* wall = nullptr) {
   std::vector<std::string> argv = {opt.python};
   argv.insert(argv.end(), args.begin(), args.end());
+  const Timed t = timed_child(argv, scratch, "python");
+  if (t.exit_code != 0) {
+    error = t.error.empty() ? fmt::format("exit {}", t.exit_code) : t.error;
+    return std::nullopt;
+  }
+  const std::size_t end = t.output.find_last_not_of('\n');
+  if (end == std::string::npos) {
+    error = "no output";
+    return std::nullopt;
+  }
+  const std::size_t begin = t.output.rfind('\n', end);
   try {
-    ChildProcess child({argv, "", {}, false});
-    std::vector<std::string> lines;
-    while (child.read_lines(lines, std::chrono::milliseconds(1000))) {}
-    const ChildExit e = child.wait();
-    if (e.signalled || e.code != 0 || lines.empty()) {
-      error = fmt::format("exit {}: {}", e.code, child.stderr_tail());
-      return std::nullopt;
-    }
-    return json::parse(lines.back());
+    if (wall) *wall = t.seconds;
+    return json::parse(t.output.substr(begin == std::string::npos ? 0 : begin + 1, end + 1 - (begin == std::string::npos ? 0 : begin + 1)));
   } catch (const std::exception& e) {
     error = e.what();
     return std::nullopt;
@@ -197,18 +312,22 @@ std::vector<PeerResult> run_peers(const Options& opt, const Workload& w, const M
   const double scale = double(all_ours) / double(std::max(1L, chosen_ours));
 
   std::vector<PeerResult> out;
-  for (const std::string& peer : {"numpy_loop.py", "torch_loop.py"}) {
+  for (const std::string peer : {"numpy_loop.py", "torch_loop.py"}) {
     PeerResult r;
     r.name = peer == std::string("numpy_loop.py") ? "numpy" : "torch";
     std::string error;
-    const auto res = run_python(opt, {(opt.source / "tests/bench/peers" / peer).string(), (scratch / "job.json").string()}, error);
+    double wall = NAN;
+    const auto res = run_python(opt, {(opt.source / "tests/bench/peers" / peer).string(), (scratch / "job.json").string()}, error,
+                                scratch, &wall);
     if (!res) {
       r.note = "not run: " + error.substr(0, 200);
       out.push_back(r);
       continue;
     }
     r.name = res->at("peer").get<std::string>();
-    r.seconds = res->at("seconds").get<double>() * scale;
+    const double loop = res->at("seconds").get<double>();
+    r.seconds = loop * scale;
+    r.whole_seconds = wall + loop * (scale - 1.0);  // the process as timed, with the loop scaled to all runs
     r.peer_iterations = chosen_steps;
     r.our_iterations = chosen_ours;
     r.proven_slow = proven;
@@ -232,10 +351,13 @@ std::vector<PeerResult> run_peers(const Options& opt, const Workload& w, const M
 
 // ---- the table -----------------------------------------------------------------------------
 
+// Prints a workload's figures: the whole process first (stepgate run, and each peer as a
+// process), its parts beside it, then the runs alone against the loops alone.
 json report(const std::string& name, const Workload& w, const Measured& m, const std::vector<PeerResult>& peers,
-            double setup_seconds) {
+            const Setup& setup, const Whole& whole) {
+  const double whole_s = whole.timed.seconds;
   json j = {{"workload", name},
-            {"setup_seconds", setup_seconds},
+            {"setup", {{"data_seconds", setup.data}, {"model_seconds", setup.model}, {"optimum_seconds", setup.optimum}}},
             {"seconds", m.seconds},
             {"runs", m.runs},
             {"lane_iterations", m.lane_iterations},
@@ -245,28 +367,51 @@ json report(const std::string& name, const Workload& w, const Measured& m, const
     j["gflops"] = w.flops_per_lane_eval * double(m.lane_iterations + m.runs) / m.seconds / 1e9;
   std::printf("\n%s: %s, %s, %zu rates x %d seeds, budget %ld\n", name.c_str(), w.name.c_str(),
               w.optimizer_label.c_str(), w.rates.size(), w.seeds, w.settings.budget);
-  std::printf("  stepgate: %.3f s for %ld runs, %ld lane-iterations (%.0f runs/s, %.3g lane-iterations/s", m.seconds,
-              m.runs, m.lane_iterations, m.runs / m.seconds, double(m.lane_iterations) / m.seconds);
+  if (!whole.timed.error.empty()) {
+    std::printf("  stepgate run, whole process: not measured: %s\n", whole.timed.error.c_str());
+  } else {
+    const double rest = whole_s - setup.total() - m.seconds;
+    std::printf("  stepgate run, whole process: %.3f s (%ld runs, %ld iterations; peak memory %.0f MiB)\n", whole_s,
+                whole.runs, whole.iterations, double(whole.timed.peak_kib) / 1024.0);
+    std::printf("    parts: data %.3f s, model %.3f s, reference optimum %.3f s, runs %.3f s; the rest %.3f s "
+                "(start, suite check, theory, reports; by difference)\n",
+                setup.data, setup.model, setup.optimum, m.seconds, rest);
+    j["whole_seconds"] = whole_s;
+    j["whole_runs"] = whole.runs;
+    j["whole_iterations"] = whole.iterations;
+    j["whole_peak_mib"] = double(whole.timed.peak_kib) / 1024.0;
+    j["sweep_seconds"] = whole.sweep_seconds;
+    j["rest_seconds"] = rest;
+  }
+  std::printf("    runs alone: %ld runs, %ld lane-iterations in %.3f s (%.0f runs/s, %.3g lane-iterations/s", m.runs,
+              m.lane_iterations, m.seconds, m.runs / m.seconds, double(m.lane_iterations) / m.seconds);
   if (j.contains("gflops")) std::printf(", %.1f GFLOP/s in matrix products", j["gflops"].get<double>());
-  std::printf("); setup %.2f s\n", setup_seconds);
+  std::printf(")\n");
   for (const PeerResult& p : peers) {
     json pj = {{"peer", p.name}, {"note", p.note}, {"final_costs_agree", p.agreed}, {"worst_relative_difference", p.worst_relative}};
     if (std::isnan(p.seconds)) {
-      std::printf("  %-28s %s\n", p.name.c_str(), p.note.c_str());
+      std::printf("  %-34s %s\n", p.name.c_str(), p.note.c_str());
     } else if (!p.agreed) {
-      std::printf("  %-28s %.3f s, NO RATIO: final costs differ (worst relative %.2e)\n", p.name.c_str(), p.seconds,
-                  p.worst_relative);
-      pj["seconds"] = p.seconds;
+      std::printf("  %-34s whole process %.3f s, NO RATIO: final costs differ (worst relative %.2e)\n", p.name.c_str(),
+                  p.whole_seconds, p.worst_relative);
+      pj["whole_seconds"] = p.whole_seconds;
     } else {
-      std::printf("  %-28s %.3f s -> stepgate %.1fx faster (final costs agree to %.1e)%s%s\n", p.name.c_str(),
-                  p.seconds, p.seconds / m.seconds, p.worst_relative, p.note.empty() ? "" : "; ", p.note.c_str());
+      pj["whole_seconds"] = p.whole_seconds;
       pj["seconds"] = p.seconds;
-      pj["ratio"] = p.seconds / m.seconds;
+      pj["loop_ratio"] = p.seconds / m.seconds;
+      std::printf("  %-34s whole process %.3f s (start and loading %.3f s, loop %.3f s)", p.name.c_str(), p.whole_seconds,
+                  p.whole_seconds - p.seconds, p.seconds);
+      if (whole.timed.error.empty()) {
+        pj["ratio"] = p.whole_seconds / whole_s;
+        std::printf(" -> stepgate %.1fx faster", p.whole_seconds / whole_s);
+      }
+      std::printf("; loop alone against runs alone %.1fx (final costs agree to %.1e)%s%s\n", p.seconds / m.seconds,
+                  p.worst_relative, p.note.empty() ? "" : "; ", p.note.c_str());
       if (p.proven_slow > 0) {
         // The same runs at the same number of iterations: what the loop itself is worth.
         const double same_work = p.seconds * double(p.our_iterations) / double(p.peer_iterations);
-        std::printf("  %-28s   %d runs proven slow were stopped by stepgate and run to the budget (%ld) by the peer, "
-                    "as a loop without the proof must; per iteration stepgate is %.1fx faster\n",
+        std::printf("  %-34s   %d runs proven slow were stopped by stepgate and run to the budget (%ld) by the peer, "
+                    "as a loop without the proof must; per iteration the runs are %.1fx faster than the loop\n",
                     "", p.proven_slow, m.budget, same_work / m.seconds);
         pj["proven_slow_runs"] = p.proven_slow;
         pj["ratio_per_iteration"] = same_work / m.seconds;
@@ -288,12 +433,6 @@ Mat with_ones(const Mat& X) {
   out.leftCols(X.cols()) = X;
   out.col(X.cols()).setOnes();
   return out;
-}
-
-long peak_rss_kib() {
-  rusage u{};
-  getrusage(RUSAGE_SELF, &u);
-  return u.ru_maxrss;
 }
 
 double fitted_exponent(const std::vector<double>& x, const std::vector<double>& t) {
@@ -319,7 +458,7 @@ Dataset diabetes(const Options& opt) {
   return d;
 }
 
-Workload small_workload(const Problem& p, const Dataset& d, int rates) {
+Workload small_workload(const Options& opt, const Problem& p, const Dataset& d, int rates) {
   Workload w;
   w.name = "least squares, diabetes (442 x 10) standardized";
   w.problem_kind = "least_squares";
@@ -329,6 +468,9 @@ Workload small_workload(const Problem& p, const Dataset& d, int rates) {
   w.y = d.y;
   w.rates = log_rates(1e-3, 3.0, rates);
   w.seeds = 5;
+  w.dataset = {{"csv", (opt.source / "suites/data/diabetes.csv").string()}, {"target", "progression"}};
+  w.scalings = {{"std", {{"kind", "standardize"}}}};
+  w.problem_keys = {{"init_scale", 0.1}, {"scalings", {"std"}}};
   w.settings.budget = 2000;
   w.settings.keep_final_params = false;
   return w;
@@ -353,6 +495,7 @@ Workload medium_workload(const Problem& p, const Dataset& d, bool momentum) {
   w.y = d.y;
   w.rates = log_rates(1e-2, 30.0, 16);
   w.settings.budget = 200;
+  w.dataset = {{"generate", {{"kind", "logistic"}, {"rows", d.rows()}, {"features", 50}, {"seed", 2026}, {"intercept", -0.3}}}};
   w.settings.keep_final_params = false;
   if (momentum) {
     w.optimizer.kind = OptimizerKind::momentum;
@@ -382,9 +525,10 @@ int main(int argc, char** argv) {
     else if (a == "--no-peers") opt.peers = false;
     else if (a == "--python") opt.python = value();
     else if (a == "--source") opt.source = value();
+    else if (a == "--program") opt.program = value();
     else if (a == "-h" || a == "--help") {
       std::printf("stepgate-bench [--json FILE] [--only small|medium|large|search|growth|gemm]... [--quick] "
-                  "[--no-peers] [--python PATH] [--source DIR]\n");
+                  "[--no-peers] [--python PATH] [--source DIR] [--program PATH]\n");
       return 0;
     } else {
       std::fprintf(stderr, "stepgate-bench: unknown argument '%s'\n", a.c_str());
@@ -409,15 +553,18 @@ int main(int argc, char** argv) {
     if (!fs::exists(images)) {
       std::printf("\nlarge: skipped, %s is missing (scripts/setup --fashion installs it)\n", images.c_str());
     } else {
-      const long before = peak_rss_kib();
-      auto t0 = Clock::now();
       Workload w;
+      Setup setup;
       std::unique_ptr<Problem> p;
       {
+        auto t0 = Clock::now();
         Dataset d = load_idx_dataset(images, labels, "fashion-mnist", 1.0 / 255.0, opt.quick ? 10000 : 0);
-        p = make_softmax(d, {}, 10);
-        w.Xaug = with_ones(d.X);
+        setup.data = since(t0);
+        w.Xaug = with_ones(d.X);  // the peers' copy, written for them below
         w.y = d.y;
+        t0 = Clock::now();
+        p = make_softmax(std::move(d), {}, 10);
+        setup.model = since(t0);
       }
       w.name = fmt::format("softmax, Fashion-MNIST {} x {}, 10 classes", w.Xaug.rows(), w.Xaug.cols() - 1);
       w.problem_kind = "softmax";
@@ -431,15 +578,16 @@ int main(int argc, char** argv) {
       w.settings.outcome.target = 0.0;
       w.settings.skip_optimum = true;
       w.flops_per_lane_eval = 4.0 * double(w.Xaug.rows()) * double(w.Xaug.cols()) * 10.0;
-      const double setup = since(t0);
+      w.dataset = {{"idx", {{"images", images}, {"labels", labels}}}, {"pixel_scale", 1.0 / 255.0}};
+      if (opt.quick) w.dataset["max_rows"] = 10000;
+      w.problem_keys = {{"classes", 10}, {"optimum", "skip"}, {"outcome", {{"criterion", "cost"}, {"target", 0.0}}}};
+      const Whole whole = run_whole(opt, w, "large", scratch);
       const Measured m = run_workload(w);
-      const long peak = peak_rss_kib();
       const double data_mib = double(w.Xaug.rows()) * double(w.Xaug.cols() - 1) * 8.0 / 1048576.0;
-      json j = report("large", w, m, run_peers(opt, w, m, 2, scratch), setup);
-      j["peak_rss_mib"] = double(peak) / 1024.0;
+      json j = report("large", w, m, run_peers(opt, w, m, 2, scratch), setup, whole);
       j["data_mib"] = data_mib;
-      std::printf("  peak memory %.0f MiB (%.0f MiB before), data %.0f MiB in double precision: %.2fx\n", peak / 1024.0,
-                  before / 1024.0, data_mib, peak / 1024.0 / data_mib);
+      std::printf("  peak memory of stepgate run %.0f MiB, the data %.0f MiB in double precision: %.2fx\n",
+                  double(whole.timed.peak_kib) / 1024.0, data_mib, double(whole.timed.peak_kib) / 1024.0 / data_mib);
       out["workloads"].push_back(j);
     }
   }
@@ -459,7 +607,7 @@ int main(int argc, char** argv) {
     }
     const double eigen_gflops = 2.0 * double(n) * double(n) * double(n) * threads / best / 1e9;
     std::string error;
-    const auto numpy = run_python(opt, {(opt.source / "tests/bench/peers/gemm_limit.py").string()}, error);
+    const auto numpy = run_python(opt, {(opt.source / "tests/bench/peers/gemm_limit.py").string()}, error, scratch);
     std::printf("\ngemm: dense %ld x %ld float64 on %u cores: Eigen %.1f GFLOP/s", long(n), long(n), threads, eigen_gflops);
     json j = {{"workload", "gemm"}, {"eigen_gflops", eigen_gflops}};
     if (numpy) {
@@ -473,28 +621,45 @@ int main(int argc, char** argv) {
   }
 
   if (opt.wants("small")) {
-    const auto t0 = Clock::now();
+    Setup setup;
+    auto t0 = Clock::now();
     const Dataset d = diabetes(opt);
+    setup.data = since(t0);
     LinearModelOptions lo;
     lo.init_scale = 0.1;  // seeds start apart, so five seeds are five different runs
+    t0 = Clock::now();
     const auto p = make_least_squares(d, lo);
-    Workload w = small_workload(*p, d, 30);
-    const double setup = since(t0);
+    setup.model = since(t0);
+    t0 = Clock::now();
+    (void)p->optimum();  // J* for the gap criterion (closed form)
+    setup.optimum = since(t0);
+    Workload w = small_workload(opt, *p, d, 30);
+    const Whole whole = run_whole(opt, w, "small", scratch);
     const Measured m = run_workload(w);
-    out["workloads"].push_back(report("small", w, m, run_peers(opt, w, m, 0, scratch), setup));
+    out["workloads"].push_back(report("small", w, m, run_peers(opt, w, m, 0, scratch), setup, whole));
   }
 
   if (opt.wants("medium")) {
-    const auto t0 = Clock::now();
+    Setup setup;
+    auto t0 = Clock::now();
     const Dataset d = generated_logistic(opt.quick ? 20000 : 200000);
+    setup.data = since(t0);
+    t0 = Clock::now();
     const auto p = make_logistic(d, {});
-    (void)p->optimum();  // J* for the gap criterion: setup, computed once per case by the sweep too
-    const double setup = since(t0);
+    setup.model = since(t0);
+    t0 = Clock::now();
+    (void)p->optimum();  // J* for the gap criterion: computed once per case by the sweep too
+    setup.optimum = since(t0);
     for (bool momentum : {false, true}) {
       Workload w = medium_workload(*p, d, momentum);
+      const std::string tag = momentum ? "medium (heavy ball)" : "medium (gd)";
+      const Whole whole = run_whole(opt, w, momentum ? "medium-hb" : "medium-gd", scratch);
       const Measured m = run_workload(w);
-      out["workloads"].push_back(report(momentum ? "medium (heavy ball)" : "medium (gd)", w, m,
-                                        run_peers(opt, w, m, 2, scratch), setup));
+      json j = report(tag, w, m, run_peers(opt, w, m, 2, scratch), setup, whole);
+      if (whole.timed.error.empty())
+        std::printf("  set-up (data, model, reference optimum) %.3f s: %.1f%% of the whole process\n", setup.total(),
+                    100.0 * setup.total() / whole.timed.seconds);
+      out["workloads"].push_back(j);
     }
   }
 
@@ -519,7 +684,7 @@ int main(int argc, char** argv) {
     const auto p = make_least_squares(d, lo);
     std::vector<double> rs, rt;
     for (int rates : {10, 30, 100, 300}) {
-      const Measured m = run_workload(small_workload(*p, d, rates));
+      const Measured m = run_workload(small_workload(opt, *p, d, rates));
       std::printf("  %10d %10.3f %14.0f\n", rates, m.seconds, m.runs / m.seconds);
       rs.push_back(rates);
       rt.push_back(m.seconds);

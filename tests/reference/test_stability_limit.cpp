@@ -154,7 +154,7 @@ TEST_CASE("stability limit: gd's edge on breast cancer logistic and iris softmax
 
 TEST_CASE("stability limit: gd's edge on the demo's renewals logistic (finite-difference Hessian)", "[stability]") {
   // As suites/demo.json: 3000 rows, 5 features, seed 77, intercept -0.3; standardize; l2 1e-3.
-  const GeneratedSpec g{.kind = GeneratedSpec::logistic, .rows = 3000, .features = 5, .seed = 77, .intercept = -0.3};
+  const GeneratedSpec g{.kind = GeneratedSpec::logistic, .rows = 3000, .features = 5, .seed = 77, .weights = {}, .intercept = -0.3, .feature_scales = {}};
   LinearModelOptions opt;
   opt.l2 = 1e-3;
   const auto problem = make_logistic(standardized(generate_dataset(g, "renewals")), opt);

@@ -4,10 +4,14 @@
 #include <cstring>
 #include <sstream>
 
+#include <tbb/task_arena.h>
+
 #include "stepgate/core/error.hpp"
+#include "stepgate/core/seed.hpp"
 #include "stepgate/core/feature_map.hpp"
 #include "stepgate/data/column_stats.hpp"
 #include "stepgate/data/generate.hpp"
+#include "stepgate/data/random_draws.hpp"
 #include "stepgate/data/scaling.hpp"
 #include "data_test_support.hpp"
 
@@ -228,4 +232,32 @@ TEST_CASE("generated logistic data: label rate matches the mean probability", "[
   CHECK(((g.data.y.array() == 0.0) || (g.data.y.array() == 1.0)).all());
   const double se = std::sqrt((prob.array() * (1 - prob.array())).sum()) / double(spec.rows);
   CHECK(std::abs(g.data.y.mean() - prob.mean()) < 5 * se);
+}
+
+TEST_CASE("generated data: drawn in parallel parts, the same bits as one stream on 1 and 2 threads", "[data]") {
+  // generate() splits the rows into parts, each moving its own stream on (NormalDraws::skip);
+  // the features must be exactly the draws of one stream in row order, for any split.
+  GeneratedSpec spec;
+  spec.kind = GeneratedSpec::logistic;
+  spec.rows = 3 * 4096 + 17;  // several parts, an odd number of draws before each later part
+  spec.features = 3;
+  spec.seed = 9;
+  NormalDraws stream(derive_seed({std::string_view("features"), spec.seed}));
+  Mat want(spec.rows, spec.features);
+  for (Index i = 0; i < want.rows(); ++i)
+    for (Index j = 0; j < want.cols(); ++j) want(i, j) = stream.next();
+  for (int threads : {1, 2}) {
+    Generated g;
+    tbb::task_arena(threads).execute([&] { g = generate(spec, "parts"); });
+    INFO(threads << " threads");
+    CHECK((g.data.X.array() == want.array()).all());
+  }
+  // skip(k) then next() is the k-th draw, for even and odd k.
+  for (std::uint64_t k : {0u, 1u, 2u, 7u, 1000u}) {
+    NormalDraws fresh(5), moved(5);
+    for (std::uint64_t i = 0; i < k; ++i) (void)fresh.next();
+    moved.skip(k);
+    CHECK(moved.next() == fresh.next());
+    CHECK(moved.next() == fresh.next());
+  }
 }

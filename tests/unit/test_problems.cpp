@@ -211,7 +211,7 @@ void check_all(const Problem& p, const Mat& W) {
 }
 
 /// Sum reduction = n · mean in the data term; a mini-batch of every row gives the full gradient.
-void check_reductions(const Dataset& data, std::unique_ptr<Problem> (*make)(const Dataset&, const LinearModelOptions&),
+void check_reductions(const Dataset& data, std::unique_ptr<Problem> (*make)(Dataset, const LinearModelOptions&),
                       const Mat& W) {
   LinearModelOptions mean_opt, sum_opt;
   mean_opt.l2 = sum_opt.l2 = 0.0;
@@ -387,7 +387,7 @@ TEST_CASE("softmax: derivatives, lanes, reductions, minimum-norm optimum", "[pro
       CHECK(W.rowwise().sum().norm() <= 1e-8 * W.norm());
     }
   }
-  check_reductions(data, [](const Dataset& d, const LinearModelOptions& o) { return make_softmax(d, o); },
+  check_reductions(data, [](Dataset d, const LinearModelOptions& o) { return make_softmax(std::move(d), o); },
                    lanes_around(Vec::Zero(12), 1.0, 8));
   Dataset bad = data;
   bad.y[5] = 1.5;
