@@ -30,9 +30,10 @@ Krylov lanczos_basis(const Problem& problem, const Vec& w, const CurvatureOption
   q.normalize();
   Vec alpha(m), beta(m), z(p);
   Index steps = 0;
+  const auto H = problem.hessian_at(w);  // what the products at w share, prepared once
   for (Index j = 0; j < m; ++j) {
     Q.col(j) = q;
-    problem.hessian_vector(w, q, z);
+    H(q, z);
     alpha[j] = q.dot(z);
     // Full reorthogonalisation against all previous vectors (twice is enough: Kahan's rule).
     for (int pass = 0; pass < 2; ++pass) z.noalias() -= Q.leftCols(j + 1) * (Q.leftCols(j + 1).transpose() * z);

@@ -29,7 +29,7 @@ std::string hex32(std::uint32_t v) {
 }  // namespace
 
 IdxArray read_idx(const std::string& path, int expected_dims) {
-  const std::string bytes = read_text_file(path);
+  std::string bytes = read_text_file(path);
   const auto expected_magic = static_cast<std::uint32_t>(0x0800 | expected_dims);
   const std::string what = expected_dims == 1   ? "a 1-D unsigned-byte array (labels)"
                            : expected_dims == 3 ? "a 3-D unsigned-byte array (images)"
@@ -66,7 +66,8 @@ IdxArray read_idx(const std::string& path, int expected_dims) {
     throw InputError(at_byte(path, header_size + count),
                      "found " + std::to_string(available - count) +
                          " bytes after the data; expected the file to end there");
-  array.values.assign(bytes.begin() + static_cast<std::ptrdiff_t>(header_size), bytes.end());
+  array.first = header_size;
+  array.bytes = std::move(bytes);
   return array;
 }
 
@@ -98,9 +99,9 @@ Dataset load_idx_dataset(const std::string& images_path, const std::string& labe
   data.X.resize(n, d);
   data.y.resize(n);
   for (Index i = 0; i < n; ++i) {
-    const std::uint8_t* pixels = images.values.data() + i * d;
+    const std::uint8_t* pixels = images.values() + i * d;
     for (Index j = 0; j < d; ++j) data.X(i, j) = pixels[j] * pixel_scale;
-    data.y(i) = labels.values[static_cast<std::size_t>(i)];
+    data.y(i) = labels.values()[i];
   }
   data.features.reserve(static_cast<std::size_t>(d));
   for (Index r = 0; r < height; ++r)

@@ -16,7 +16,10 @@ namespace stepgate {
 /// An unsigned-byte IDX array: dimensions and the values in row-major order.
 struct IdxArray {
   std::vector<std::uint32_t> dims;
-  std::vector<std::uint8_t> values;
+  std::string bytes;      ///< the whole file as read (kept, not copied: images are large)
+  std::size_t first = 0;  ///< where the values start in `bytes` (after the header)
+  /// The values, row-major, product(dims) of them.
+  const std::uint8_t* values() const { return reinterpret_cast<const std::uint8_t*>(bytes.data()) + first; }
 };
 
 /// Reads an unsigned-byte IDX array whose magic must be 0x0000 08 `expected_dims`.

@@ -8,6 +8,10 @@ void Problem::gradient_rows(const Mat&, std::span<const Index>, Mat&, Scratch&) 
   throw std::logic_error("problem '" + std::string(kind()) + "' has no samples to draw mini-batches from");
 }
 
+std::function<void(const Vec& v, Vec& out)> Problem::hessian_at(const Vec& w) const {
+  return [this, w](const Vec& v, Vec& out) { hessian_vector(w, v, out); };
+}
+
 Mat Problem::hessian(const Vec& w) const {
   const Index p = dim();
   Mat H(p, p);

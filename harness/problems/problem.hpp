@@ -7,6 +7,7 @@
 // mutable working memory lives in the caller's Scratch.
 #pragma once
 #include <cstdint>
+#include <functional>
 #include <optional>
 #include <span>
 #include <string>
@@ -97,6 +98,10 @@ class Problem {
 
   /// Hessian-vector product ∇²J(w) v.
   virtual void hessian_vector(const Vec& w, const Vec& v, Vec& out) const = 0;
+
+  /// v ↦ ∇²J(w)·v at one fixed w, for many products there (Lanczos): what every product at w
+  /// shares (softmax's class probabilities) is computed once. Default: hessian_vector.
+  virtual std::function<void(const Vec& v, Vec& out)> hessian_at(const Vec& w) const;
 
   /// Dense Hessian at w. Default: p Hessian-vector products with unit vectors (symmetrised).
   virtual Mat hessian(const Vec& w) const;
