@@ -245,7 +245,7 @@ class Softmax final : public detail::LinearModel {
 
   std::optional<Optimum> solve() const {
     detail::NewtonOracle oracle = newton_oracle([this](const Vec& w) { return hessian(w); });
-    // Newton-CG (p > 2000): the probabilities once per Newton step, for every product and the
+    // Newton-CG (p > 256, NewtonOracle::dense_limit): the probabilities once per Newton step, for every product and the
     // preconditioner, not once per product.
     oracle.prepare = [this](const Vec& w) {
       auto P = std::make_shared<const Mat>(probabilities_at(w));

@@ -59,7 +59,7 @@ struct SuiteRun {
 
   /// 3 when a case could not be run; otherwise 0 when the verdict passes and 1 when it fails.
   /// Without a baseline the verdict has only the rules that need none (pinned headroom,
-  /// reference digits, theory). `stepgate run` without --baseline exits 0 whatever the verdict.
+  /// reference digits, theory); `stepgate run` exits with this code with or without a baseline.
   int verdict_exit_code() const;
 };
 

@@ -456,7 +456,7 @@ TEST_CASE("iris subsets: existence of optima, softmax with two classes equals lo
   const Mat W = softmax2->w.reshaped(5, 2);
   CHECK((W.col(1) - W.col(0) - o->w).norm() <= 1e-8 * o->w.norm());
 
-  // Newton-CG with Hessian-vector products (used for p > 2000) reaches the same optimum.
+  // Newton-CG with Hessian-vector products (used for p > 256) reaches the same optimum.
   detail::NewtonOracle oracle;
   oracle.cost_grad = [&](const Vec& w, Vec& g) {
     g = grad(*logistic, w);
