@@ -120,7 +120,7 @@ int accept_command(const Args& args) {
   }
   const Baseline baseline = baseline_from_results(results, utc_now());
   std::string existing;
-  if (::access(record_target.c_str(), F_OK) == 0) existing = read_input_file(record_target);
+  if (::access(record_target.c_str(), F_OK) == 0) existing = read_input_file(record_target, ReadAs::previous_output);
   OutputSet outputs(folders.front().path());
   outputs.stage(baseline_path, json_file_text(to_json(baseline)));
   outputs.stage(record_path, append_record(existing, name, render_record_entry(results, baseline)));

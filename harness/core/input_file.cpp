@@ -6,6 +6,8 @@
 
 #include <cerrno>
 #include <cstring>
+#include <mutex>
+#include <vector>
 
 #include <fmt/format.h>
 
@@ -25,7 +27,38 @@ mode_t checked_mode(const std::string& path) {
   return st.st_mode;
 }
 
+struct RememberedInput {
+  dev_t dev;
+  ino_t ino;
+  std::string path;
+};
+
+std::mutex inputs_mutex;
+std::vector<RememberedInput>& remembered_inputs() {
+  static std::vector<RememberedInput> inputs;
+  return inputs;
+}
+
 }  // namespace
+
+void remember_input(const std::string& path) {
+  struct stat st {};
+  if (path.empty() || ::stat(path.c_str(), &st) != 0) return;
+  const std::lock_guard lock(inputs_mutex);
+  for (const RememberedInput& r : remembered_inputs())
+    if (r.dev == st.st_dev && r.ino == st.st_ino && r.path == path) return;
+  remembered_inputs().push_back({st.st_dev, st.st_ino, path});
+}
+
+std::string input_path_of(unsigned long dev, unsigned long ino) {
+  const std::lock_guard lock(inputs_mutex);
+  for (const RememberedInput& r : remembered_inputs()) {
+    if (r.dev != dev || r.ino != ino) continue;
+    struct stat st {};
+    if (::stat(r.path.c_str(), &st) == 0 && st.st_dev == r.dev && st.st_ino == r.ino) return r.path;
+  }
+  return "";
+}
 
 std::string file_kind(unsigned mode) {
   if (S_ISDIR(mode)) return "a directory";
@@ -37,10 +70,14 @@ std::string file_kind(unsigned mode) {
   return "not a regular file";
 }
 
-void check_input_file(const std::string& path) { checked_mode(path); }
+void check_input_file(const std::string& path) {
+  checked_mode(path);
+  remember_input(path);
+}
 
-std::string read_input_file(const std::string& path) {
+std::string read_input_file(const std::string& path, ReadAs as) {
   const mode_t mode = checked_mode(path);
+  if (as == ReadAs::input) remember_input(path);
   const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
   if (fd < 0) throw InputError(path, fmt::format("cannot read the file: {}", std::strerror(errno)));
   std::string content;

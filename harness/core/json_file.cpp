@@ -34,14 +34,19 @@ std::string parse_error_reason(const json::parse_error& e) {
 }  // namespace
 
 json read_json_file(const std::string& path) {
+  finish_interrupted_commit(path);  // never half of an interrupted set
   const std::string text = read_input_file(path);
   check_json_limits(text, path);
+  json parsed;
   try {
-    return json::parse(text);
+    parsed = json::parse(text);
   } catch (const json::parse_error& e) {
     // e.byte counts the characters read, the offending one included (1-based).
     throw InputError(path + ":" + text_position(text, e.byte > 0 ? e.byte - 1 : 0), parse_error_reason(e));
   }
+  if (const std::string twice = first_repeated_key(text); !twice.empty())
+    throw InputError(path + "#" + twice, "found this key a second time in its object; expected each key once");
+  return parsed;
 }
 
 Results read_results(const std::string& path) { return results_from_json(read_json_file(path), path); }

@@ -4,6 +4,10 @@
 #include <cmath>
 #include <cstdlib>
 #include <optional>
+#include <set>
+#include <vector>
+
+#include <nlohmann/json.hpp>
 
 #include <fmt/format.h>
 
@@ -75,5 +79,78 @@ void check_json_limits(std::string_view text, const std::string& file) {
 }
 
 bool within_json_limits(std::string_view text) { return !first_violation(text); }
+
+namespace {
+
+// Walks the document as nlohmann's SAX parser reads it, with the pointer of where it is, and
+// stops at the first key seen twice in one object.
+class RepeatedKeyFinder : public nlohmann::json_sax<nlohmann::json> {
+ public:
+  std::string found;
+  bool null() override { return value(); }
+  bool boolean(bool) override { return value(); }
+  bool number_integer(number_integer_t) override { return value(); }
+  bool number_unsigned(number_unsigned_t) override { return value(); }
+  bool number_float(number_float_t, const string_t&) override { return value(); }
+  bool string(string_t&) override { return value(); }
+  bool binary(binary_t&) override { return value(); }
+  bool start_object(std::size_t) override { return open(true); }
+  bool start_array(std::size_t) override { return open(false); }
+  bool end_object() override { return close(); }
+  bool end_array() override { return close(); }
+  bool key(string_t& k) override {
+    Frame& top = stack_.back();
+    top.key = k;
+    if (top.keys.insert(k).second) return true;
+    for (const Frame& f : stack_) found += f.token;
+    found += escape(k);
+    return false;  // stop here
+  }
+  bool parse_error(std::size_t, const std::string&, const nlohmann::detail::exception&) override { return false; }
+
+ private:
+  struct Frame {
+    bool object = false;
+    std::string token;  // how the parent reaches this container
+    std::set<std::string> keys;
+    std::string key;
+    std::size_t index = 0;
+  };
+  static std::string escape(const std::string& key) {  // RFC 6901
+    std::string t = "/";
+    for (char c : key) t += c == '~' ? std::string("~0") : c == '/' ? std::string("~1") : std::string(1, c);
+    return t;
+  }
+  std::string child_token() const {
+    if (stack_.empty()) return "";
+    const Frame& top = stack_.back();
+    return top.object ? escape(top.key) : "/" + std::to_string(top.index);
+  }
+  bool value() {
+    if (!stack_.empty() && !stack_.back().object) ++stack_.back().index;
+    return true;
+  }
+  bool open(bool object) {
+    Frame f;
+    f.object = object;
+    f.token = child_token();
+    stack_.push_back(std::move(f));
+    return true;
+  }
+  bool close() {
+    stack_.pop_back();
+    return value();
+  }
+  std::vector<Frame> stack_;
+};
+
+}  // namespace
+
+std::string first_repeated_key(std::string_view text) {
+  if (text.find('"') == std::string_view::npos) return "";
+  RepeatedKeyFinder finder;
+  nlohmann::json::sax_parse(text, &finder, nlohmann::json::input_format_t::json, false);
+  return finder.found;
+}
 
 }  // namespace stepgate

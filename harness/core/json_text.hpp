@@ -25,4 +25,10 @@ void check_json_limits(std::string_view text, const std::string& file);
 /// The same as a test: true when check_json_limits would pass (for a program's output lines).
 bool within_json_limits(std::string_view text);
 
+/// The JSON pointer of the first key that appears a second time in one object of `text`
+/// ("/cases/3/id"), or "" when every object's keys are distinct (or `text` is not JSON: the
+/// parser reports that). nlohmann keeps the last of two equal keys silently; every reader of
+/// a user's JSON refuses them instead.
+std::string first_repeated_key(std::string_view text);
+
 }  // namespace stepgate

@@ -6,6 +6,8 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include <csignal>
+#include <cstdlib>
 #include <cerrno>
 #include <cstring>
 #include <filesystem>
@@ -94,7 +96,16 @@ std::string output_target(const std::string& path, const std::string& where) {
       p = link.is_absolute() ? link : p.parent_path() / link;
       continue;
     }
-    if (S_ISREG(st.st_mode)) return p.string();
+    if (S_ISREG(st.st_mode)) {
+      // Never onto a file this command reads (the suite, a data set, the results or baseline
+      // being reported): compared by device and inode, so hard links and symlinks are seen.
+      if (const std::string input = input_path_of(st.st_dev, st.st_ino); !input.empty())
+        throw InputError(place(where, path),
+                         fmt::format("{}is the file this command reads as {}; an output is never written onto an "
+                                     "input: choose another path",
+                                     p.string() == path ? "" : "links to " + p.string() + ", which ", input));
+      return p.string();
+    }
     throw InputError(place(where, path), fmt::format("{}{}; an output must be a regular file or not exist yet",
                                                      p.string() == path ? "is " : "links to " + p.string() + ", ",
                                                      file_kind(st.st_mode)));
@@ -129,39 +140,80 @@ void OutputSet::stage(const std::string& path, const std::string& text) {
   paths_.push_back(path);
 }
 
+namespace {
+
+// Test hook (tests/catalogue, e2e): STEPGATE_TEST_KILL_IN_COMMIT=N kills the process with
+// SIGKILL after N renames of a commit of several files, as a power cut or `kill -9` would.
+long kill_after_renames() {
+  const char* v = std::getenv("STEPGATE_TEST_KILL_IN_COMMIT");
+  if (v == nullptr || *v == '\0') return -1;
+  char* end = nullptr;
+  const long n = std::strtol(v, &end, 10);
+  return *end == '\0' && n >= 0 ? n : -1;
+}
+
+bool same_folder(const fs::path& a, const fs::path& b) {
+  std::error_code ec;
+  return fs::equivalent(a, b, ec) || fs::absolute(a).lexically_normal() == fs::absolute(b).lexically_normal();
+}
+
+// Writes the manifest into `dir` under a staged name and renames it into place.
+void place_manifest(const fs::path& dir, const std::string& text) {
+  const fs::path manifest = dir / kManifest;
+  const std::string temp = (dir / fmt::format("{}.staged-{}", kManifest, ::getpid())).string();
+  write_whole_file(temp, text, 0644, temp);
+  if (::rename(temp.c_str(), manifest.c_str()) != 0) {
+    const int error = errno;
+    ::unlink(temp.c_str());
+    throw ToolError(fmt::format("cannot commit the outputs in {}: {}", dir.string(), std::strerror(error)));
+  }
+  fsync_folder(dir);
+}
+
+}  // namespace
+
 std::vector<std::string> OutputSet::commit() {
-  const fs::path manifest = fs::path(manifest_dir_) / kManifest;
   const bool several = staged_.size() > 1;
+  // The manifest goes into the set's folder (the commit point) and a copy into every other
+  // folder a target is in, so that a reader of any file of the set sees an unfinished commit.
+  std::vector<fs::path> folders{fs::path(manifest_dir_)};
   if (several) {
-    nlohmann::json renames = nlohmann::json::array();
+    for (const auto& [staged, target] : staged_) {
+      fs::path folder = fs::path(target).parent_path();
+      if (folder.empty()) folder = ".";
+      bool known = false;
+      for (const fs::path& f : folders) known = known || same_folder(f, folder);
+      if (!known) folders.push_back(folder);
+    }
+    nlohmann::json renames = nlohmann::json::array(), listed = nlohmann::json::array();
     for (const auto& [staged, target] : staged_)
       renames.push_back({fs::absolute(staged).string(), fs::absolute(target).string()});
-    const std::string temp = (fs::path(manifest_dir_) / fmt::format("{}.staged-{}", kManifest, ::getpid())).string();
-    write_whole_file(temp, nlohmann::json{{"renames", renames}}.dump() + "\n", 0644, temp);
-    if (::rename(temp.c_str(), manifest.c_str()) != 0) {
-      const int error = errno;
-      ::unlink(temp.c_str());
-      throw ToolError(fmt::format("cannot commit the outputs in {}: {}", manifest_dir_, std::strerror(error)));
-    }
-    fsync_folder(manifest_dir_);  // the commit point: from here on the set is finished, if need be by the next run
+    for (const fs::path& f : folders) listed.push_back(fs::absolute(f).lexically_normal().string());
+    const std::string text = nlohmann::json{{"renames", renames}, {"folders", listed}}.dump() + "\n";
+    place_manifest(folders.front(), text);  // the commit point: from here on the set is finished, if need be by a reader
+    for (std::size_t i = 1; i < folders.size(); ++i) place_manifest(folders[i], text);
   }
   committed_ = true;
+  const long kill_after = several ? kill_after_renames() : -1;
+  long renamed = 0;
   for (const auto& [staged, target] : staged_) {
+    if (renamed++ == kill_after) ::kill(::getpid(), SIGKILL);
     if (::rename(staged.c_str(), target.c_str()) != 0)
       throw ToolError(fmt::format("cannot rename {} to {}: {}", staged, target, std::strerror(errno)));
     fsync_folder(fs::path(target).parent_path());
   }
-  if (several) {
-    ::unlink(manifest.c_str());
-    fsync_folder(manifest_dir_);
-  }
+  if (several)  // the copies first, the commit point's manifest last
+    for (std::size_t i = folders.size(); i-- > 0;) {
+      ::unlink((folders[i] / kManifest).c_str());
+      fsync_folder(folders[i]);
+    }
   return paths_;
 }
 
 void recover_output_folder(const std::string& dir) {
   const fs::path manifest = fs::path(dir) / kManifest;
   if (::access(manifest.c_str(), F_OK) == 0) {
-    const nlohmann::json j = nlohmann::json::parse(read_input_file(manifest.string()), nullptr, false);
+    const nlohmann::json j = nlohmann::json::parse(read_input_file(manifest.string(), ReadAs::previous_output), nullptr, false);
     if (j.is_object() && j.contains("renames") && j["renames"].is_array())
       for (const nlohmann::json& r : j["renames"])
         if (r.is_array() && r.size() == 2 && r[0].is_string() && r[1].is_string()) {
@@ -169,6 +221,14 @@ void recover_output_folder(const std::string& dir) {
           if (::access(staged.c_str(), F_OK) == 0 && ::rename(staged.c_str(), target.c_str()) != 0)
             throw ToolError(fmt::format("cannot finish an interrupted commit ({} to {}): {}", staged, target,
                                         std::strerror(errno)));
+        }
+    // The copies in the set's other folders, then this one.
+    if (j.is_object() && j.contains("folders") && j["folders"].is_array())
+      for (const nlohmann::json& f : j["folders"])
+        if (f.is_string() && !same_folder(f.get<std::string>(), dir)) {
+          const fs::path copy = fs::path(f.get<std::string>()) / kManifest;
+          ::unlink(copy.c_str());
+          fsync_folder(copy.parent_path());
         }
     ::unlink(manifest.c_str());
     fsync_folder(dir);
@@ -181,12 +241,47 @@ void recover_output_folder(const std::string& dir) {
   }
 }
 
+void finish_interrupted_commit(const std::string& path) {
+  std::vector<fs::path> dirs{fs::path(path).parent_path()};
+  std::error_code ec;
+  if (const fs::path real = fs::canonical(path, ec); !ec) dirs.push_back(real.parent_path());
+  for (fs::path& dir : dirs) {
+    if (dir.empty()) dir = ".";
+    if (::access((dir / kManifest).c_str(), F_OK) != 0) continue;
+    const int fd = ::open(dir.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
+    if (fd < 0) throw InputError(path, fmt::format("its folder holds an unfinished commit of outputs that cannot be "
+                                                   "finished ({}); expected a whole set", std::strerror(errno)));
+    // A writer holds the folder's lock while it commits (milliseconds); a killed one holds nothing.
+    bool finished = false;
+    for (int attempt = 0; attempt < 100 && !finished; ++attempt) {
+      if (::access((dir / kManifest).c_str(), F_OK) != 0) {
+        finished = true;
+      } else if (::flock(fd, LOCK_EX | LOCK_NB) == 0) {
+        try {
+          recover_output_folder(dir.string());
+        } catch (const std::exception& e) {
+          ::close(fd);
+          throw InputError(path, fmt::format("its folder holds a commit of outputs that was interrupted between its "
+                                             "renames, and it cannot be finished: {}", e.what()));
+        }
+        finished = true;
+      } else {
+        ::usleep(50'000);
+      }
+    }
+    ::close(fd);  // releases the lock
+    if (!finished)
+      throw InputError(path, fmt::format("another stepgate process has been committing outputs in {} for 5 s; try "
+                                         "again when it has finished", dir.string()));
+  }
+}
+
 OutputFolder::OutputFolder(const std::string& dir, const std::string& where) : dir_(dir.empty() ? "." : dir) {
   std::error_code ec;
   const std::string at = place(where, dir_);
   if (struct stat st {}; ::stat(dir_.c_str(), &st) == 0 && !S_ISDIR(st.st_mode))
     throw InputError(at, fmt::format("is {}; expected a folder for the outputs", file_kind(st.st_mode)));
-  fs::create_directories(dir_, ec);
+  created_ = fs::create_directories(dir_, ec);
   if (ec) throw InputError(at, fmt::format("cannot create the output folder: {}", ec.message()));
   fd_ = ::open(dir_.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
   if (fd_ < 0) throw InputError(at, fmt::format("cannot open the output folder: {}", std::strerror(errno)));
@@ -213,20 +308,28 @@ OutputFolder::OutputFolder(const std::string& dir, const std::string& where) : d
   recover_output_folder(dir_);
 }
 
-OutputFolder::OutputFolder(OutputFolder&& other) noexcept : dir_(std::move(other.dir_)), fd_(other.fd_) { other.fd_ = -1; }
+OutputFolder::OutputFolder(OutputFolder&& other) noexcept : dir_(std::move(other.dir_)), fd_(other.fd_), created_(other.created_) {
+  other.fd_ = -1;
+  other.created_ = false;
+}
 
 OutputFolder& OutputFolder::operator=(OutputFolder&& other) noexcept {
   if (this != &other) {
     if (fd_ >= 0) ::close(fd_);
     dir_ = std::move(other.dir_);
     fd_ = other.fd_;
+    created_ = other.created_;
     other.fd_ = -1;
+    other.created_ = false;
   }
   return *this;
 }
 
 OutputFolder::~OutputFolder() {
   if (fd_ >= 0) ::close(fd_);  // closing the descriptor releases the flock
+  // A folder made for a command that then wrote nothing (bad input found later) is not left
+  // behind; rmdir removes only an empty folder.
+  if (created_) ::rmdir(dir_.c_str());
 }
 
 void write_file_committed(const std::string& path, const std::string& text) {

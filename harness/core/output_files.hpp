@@ -5,7 +5,9 @@
 //    second run on the same folder fails at once, not after the sweep;
 //  - the files of one command are staged beside their targets, flushed, and committed together:
 //    a manifest is written (the commit point), then each staged file is renamed over its target.
-//    A kill between renames is finished by the next command that locks the folder (roll forward);
+//    A kill between renames is finished by the next command that locks the folder or reads a
+//    file of the set (roll forward); a set spread over several folders (accept: baseline and
+//    record) leaves a copy of the manifest in each;
 //    a failure before the commit point (full disk) removes the staged files and leaves the old
 //    set untouched.
 #pragma once
@@ -54,7 +56,8 @@ void recover_output_folder(const std::string& dir);
 /// An output folder, created if missing, checked writable and locked for this process
 /// (flock on the folder itself: no lock file is left behind). Throws InputError(where, ...)
 /// when the folder cannot be created or written, is not a folder, or another stepgate process
-/// holds it. The lock is released when the object is destroyed (or the process dies).
+/// holds it. The lock is released when the object is destroyed (or the process dies); a folder
+/// it created is removed then if it is still empty.
 class OutputFolder {
  public:
   OutputFolder(const std::string& dir, const std::string& where);
@@ -68,7 +71,16 @@ class OutputFolder {
  private:
   std::string dir_;
   int fd_ = -1;
+  bool created_ = false;  ///< made by this object: removed again if it is still empty
 };
+
+/// Before reading `path` (results, a baseline): when its folder, or the folder of its target,
+/// holds the manifest of a commit interrupted between its renames, finishes that commit under
+/// the folder's lock, so that no reader ever sees a mixed set (new results beside old reports,
+/// a new baseline beside an old record). Waits up to 5 s for a writer that is committing now.
+/// InputError(path, ...) when the commit cannot be finished (a read-only folder, a writer that
+/// does not finish).
+void finish_interrupted_commit(const std::string& path);
 
 /// Writes one file on its own: stage, then commit (what write_text_atomically does).
 void write_file_committed(const std::string& path, const std::string& text);

@@ -9,6 +9,7 @@
 #include <stdexcept>
 
 #include "stepgate/core/error.hpp"
+#include "stepgate/core/input_file.hpp"
 
 namespace stepgate {
 namespace {
@@ -41,6 +42,7 @@ std::string sha256_hex(std::string_view bytes) {
 }
 
 std::string sha256_file(const std::string& path) {
+  remember_input(path);
   std::unique_ptr<std::FILE, FileClose> file(std::fopen(path.c_str(), "rb"));
   if (!file) throw InputError(path, std::string("cannot open the file: ") + std::strerror(errno));
   std::unique_ptr<EVP_MD_CTX, MdCtxFree> ctx(EVP_MD_CTX_new());

@@ -1,15 +1,19 @@
 #include "stepgate/run/child_process.hpp"
 
 #include <algorithm>
+#include <atomic>
 #include <cerrno>
 #include <csignal>
 #include <cstring>
+#include <dirent.h>
 #include <fcntl.h>
 #include <poll.h>
 #include <sys/prctl.h>
 #include <sys/wait.h>
 #include <thread>
 #include <unistd.h>
+
+#include <fmt/format.h>
 
 #include "stepgate/core/error.hpp"
 
@@ -49,6 +53,46 @@ void close_fd(int& fd) {
   fd = -1;
 }
 
+constexpr const char* kTagName = "STEPGATE_PROCESS_TAG";
+
+// A tag no other child of any stepgate process shares: this process's id and a counter.
+std::string new_tag() {
+  static std::atomic<long> counter{0};
+  return fmt::format("{}.{}", ::getpid(), counter.fetch_add(1) + 1);
+}
+
+// The processes (other than this one) whose environment holds the entry NAME=tag exactly.
+// Processes of other users cannot be read and are not ours; a zombie has no environment.
+std::vector<pid_t> tagged_processes(const std::string& tag) {
+  const std::string entry = std::string(kTagName) + "=" + tag;
+  std::vector<pid_t> found;
+  DIR* proc = ::opendir("/proc");
+  if (proc == nullptr) return found;
+  std::string env;
+  char buf[65536];
+  while (const dirent* e = ::readdir(proc)) {
+    char* end = nullptr;
+    const long pid = std::strtol(e->d_name, &end, 10);
+    if (pid <= 0 || *end != '\0' || pid == ::getpid()) continue;
+    const int fd = ::open(fmt::format("/proc/{}/environ", pid).c_str(), O_RDONLY | O_CLOEXEC);
+    if (fd < 0) continue;
+    env.clear();
+    for (ssize_t got; env.size() < (std::size_t{4} << 20) && (got = ::read(fd, buf, sizeof buf)) > 0;)
+      env.append(buf, static_cast<std::size_t>(got));
+    ::close(fd);
+    for (std::size_t at = 0; at < env.size();) {
+      const std::size_t stop = std::min(env.find('\0', at), env.size());
+      if (env.compare(at, stop - at, entry) == 0) {
+        found.push_back(static_cast<pid_t>(pid));
+        break;
+      }
+      at = stop + 1;
+    }
+  }
+  ::closedir(proc);
+  return found;
+}
+
 std::vector<std::string> merged_environment(const std::map<std::string, std::string>& extra) {
   std::map<std::string, std::string> env;
   for (char** e = environ; e && *e; ++e) {
@@ -69,7 +113,10 @@ ChildProcess::ChildProcess(const ChildOptions& o) {
   std::signal(SIGPIPE, SIG_IGN);  // a child that closed its stdin must not kill the tool
   become_subreaper();
   // Everything the child needs is built before fork: after it, only async-signal-safe calls.
-  std::vector<std::string> env_strings = merged_environment(o.env);
+  tag_ = new_tag();
+  std::map<std::string, std::string> env = o.env;
+  env[kTagName] = tag_;
+  std::vector<std::string> env_strings = merged_environment(env);
   std::vector<char*> argv, envp;
   for (const std::string& a : o.argv) argv.push_back(const_cast<char*>(a.c_str()));
   argv.push_back(nullptr);
@@ -132,7 +179,7 @@ ChildProcess::~ChildProcess() {
   if (!exit_ && pid_ > 0) {
     ::kill(-pid_, SIGKILL);
     try_reap(true);
-    reap_group(pid_);
+    end_descendants();
   }
   close_fd(out_);
   close_fd(err_);
@@ -140,7 +187,11 @@ ChildProcess::~ChildProcess() {
 }
 
 bool ChildProcess::read_lines(std::vector<std::string>& lines, std::chrono::milliseconds timeout) {
-  if (out_ < 0) return false;
+  if (out_ < 0) {  // only waiting now (for the exit, or the caller's timeout)
+    if (err_ >= 0) drain_stderr_for(static_cast<int>(timeout.count()));
+    else std::this_thread::sleep_for(timeout);
+    return false;
+  }
   pollfd fds[2] = {{out_, POLLIN, 0}, {err_, POLLIN, 0}};
   const int n = ::poll(fds, err_ >= 0 ? 2 : 1, static_cast<int>(timeout.count()));
   if (n < 0 && errno != EINTR) throw ToolError(std::string("command: poll failed: ") + std::strerror(errno));
@@ -153,26 +204,53 @@ bool ChildProcess::read_lines(std::vector<std::string>& lines, std::chrono::mill
       close_fd(out_);
       return false;
     }
-    bytes_ += got;
-    std::size_t start = 0;
-    for (std::size_t i = 0; i < static_cast<std::size_t>(got); ++i)
-      if (buf[i] == '\n') {
-        partial_.append(buf + start, i - start);
-        lines.push_back(std::move(partial_));
-        partial_.clear();
-        start = i + 1;
-      }
-    partial_.append(buf + start, static_cast<std::size_t>(got) - start);
-    // A line without end counts as output too; it is bounded by the caller's size cap.
+    take_output(buf, static_cast<std::size_t>(got), lines);
   }
   return true;
 }
 
+void ChildProcess::take_output(const char* buf, std::size_t got, std::vector<std::string>& lines) {
+  bytes_ += static_cast<long>(got);
+  std::size_t start = 0;
+  for (std::size_t i = 0; i < got; ++i)
+    if (buf[i] == '\n') {
+      partial_.append(buf + start, i - start);
+      lines.push_back(std::move(partial_));
+      partial_.clear();
+      start = i + 1;
+    }
+  partial_.append(buf + start, got - start);
+  // A line without end counts as output too; it is bounded by the caller's size cap.
+}
+
+std::optional<ChildExit> ChildProcess::exited() { return try_reap(false); }
+
+void ChildProcess::read_rest(std::vector<std::string>& lines, long max_bytes) {
+  const long start = bytes_;
+  while (out_ >= 0 && bytes_ - start <= max_bytes) {
+    pollfd p{out_, POLLIN, 0};
+    if (::poll(&p, 1, 0) <= 0 || !(p.revents & (POLLIN | POLLHUP))) break;  // nothing more now
+    char buf[65536];
+    const ssize_t got = ::read(out_, buf, sizeof buf);
+    if (got <= 0) {
+      close_fd(out_);
+      break;
+    }
+    take_output(buf, static_cast<std::size_t>(got), lines);
+  }
+  if (!partial_.empty()) lines.push_back(std::move(partial_)), partial_.clear();
+  drain_stderr_for(0);
+}
+
 void ChildProcess::drain_stderr_for(int wait_ms) {
+  // At most wait_ms in all: a descendant that keeps writing to stderr cannot hold the tool here.
+  const auto until = std::chrono::steady_clock::now() + std::chrono::milliseconds(wait_ms);
   while (err_ >= 0) {
+    const auto left = std::chrono::duration_cast<std::chrono::milliseconds>(until - std::chrono::steady_clock::now());
     pollfd p{err_, POLLIN, 0};
-    if (::poll(&p, 1, wait_ms) <= 0) return;
+    if (::poll(&p, 1, static_cast<int>(std::max<long>(0, left.count()))) <= 0) return;
     drain_stderr();
+    if (left.count() <= 0) return;
   }
 }
 
@@ -216,6 +294,32 @@ std::optional<ChildExit> ChildProcess::try_reap(bool block) {
   return exit_;
 }
 
+void ChildProcess::end_descendants() {
+  ::kill(-pid_, SIGKILL);
+  std::vector<pid_t> killed;
+  for (int round = 0; round < 20; ++round) {
+    const std::vector<pid_t> found = tagged_processes(tag_);
+    if (found.empty()) break;
+    for (pid_t p : found) {
+      ::kill(p, SIGKILL);
+      killed.push_back(p);
+    }
+    std::this_thread::sleep_for(std::chrono::milliseconds(2));
+  }
+  reap_group(pid_);
+  // Those that became the tool's children (orphans come to a subreaper) are reaped; for the
+  // others waitpid says ECHILD at once.
+  const auto until = std::chrono::steady_clock::now() + std::chrono::milliseconds(500);
+  while (!killed.empty() && std::chrono::steady_clock::now() < until) {
+    std::erase_if(killed, [](pid_t p) {
+      int status = 0;
+      const pid_t r = ::waitpid(p, &status, WNOHANG);
+      return r == p || (r < 0 && errno != EINTR);
+    });
+    if (!killed.empty()) std::this_thread::sleep_for(std::chrono::milliseconds(2));
+  }
+}
+
 ChildExit ChildProcess::stop(double grace) {
   if (!exit_) {
     ::kill(-pid_, SIGTERM);
@@ -228,15 +332,14 @@ ChildExit ChildProcess::stop(double grace) {
   }
   ::kill(-pid_, SIGKILL);  // the child if it ignored SIGTERM, and whatever it left in its group
   try_reap(true);
-  reap_group(pid_);
+  end_descendants();
   drain_stderr_for(0);
   return *exit_;
 }
 
 ChildExit ChildProcess::wait() {
   try_reap(true);
-  ::kill(-pid_, SIGKILL);
-  reap_group(pid_);
+  end_descendants();
   drain_stderr_for(100);
   return *exit_;
 }

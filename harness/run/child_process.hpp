@@ -1,6 +1,10 @@
 // A child process in a process group of its own, with its stdout and stderr read through pipes
 // (POSIX). The group is what gets stopped, so grandchildren a trainer started go with it; every
-// child is reaped. Not thread-safe per object; many objects may live on many threads.
+// child is reaped. A descendant that left the group (setsid, a double fork) is still found: each
+// child carries a tag in its environment (STEPGATE_PROCESS_TAG), which its descendants inherit,
+// and every process carrying the tag is killed when the child is stopped or has exited. Only a
+// descendant that clears its environment escapes this. Not thread-safe per object; many
+// objects may live on many threads.
 #pragma once
 #include <chrono>
 #include <map>
@@ -35,15 +39,24 @@ class ChildProcess {
   ChildProcess& operator=(const ChildProcess&) = delete;
 
   /// Waits up to `timeout` for output; appends complete stdout lines (without '\n') to `lines`.
-  /// Returns false once stdout is closed and drained (the child exited or closed it).
+  /// Returns false once stdout is closed and drained (the child closed it, or it and every
+  /// process holding the pipe exited); then it only waits. A closed stdout does not mean the
+  /// child has ended: see exited().
   bool read_lines(std::vector<std::string>& lines, std::chrono::milliseconds timeout);
+  /// The child's exit, without waiting (reaps it when it has exited); nullopt while it runs.
+  /// A run ends when its process exits, even if a grandchild still holds the pipe open.
+  std::optional<ChildExit> exited();
+  /// After exited(): appends what stdout holds now, without waiting for more (a last line
+  /// without '\n' included). Bounded by `max_bytes`.
+  void read_rest(std::vector<std::string>& lines, long max_bytes);
   /// Writes text to the child's stdin (serving mode); false when the pipe is closed.
   bool write(const std::string& text);
   void close_stdin();
   /// SIGTERM to the group, then SIGKILL after `grace` seconds if the child has not exited;
   /// always SIGKILL to the group at the end (leftover grandchildren). Reaps the child.
   ChildExit stop(double grace);
-  /// Waits for the child to exit (after stdout closed), then SIGKILLs what is left of its group.
+  /// Waits for the child to exit, then SIGKILLs what is left of its group and its tagged
+  /// descendants.
   ChildExit wait();
   /// Bytes read so far from stdout and stderr together.
   long bytes_read() const { return bytes_; }
@@ -56,7 +69,12 @@ class ChildProcess {
   /// Reads what stderr still holds, waiting up to `wait_ms` for each further chunk.
   void drain_stderr_for(int wait_ms);
   std::optional<ChildExit> try_reap(bool block);
+  /// SIGKILL to the group and to every process carrying this child's tag; reaps those that
+  /// became the tool's children.
+  void end_descendants();
+  void take_output(const char* buf, std::size_t got, std::vector<std::string>& lines);
   pid_t pid_ = -1;
+  std::string tag_;  ///< this child's STEPGATE_PROCESS_TAG value
   int out_ = -1, err_ = -1, in_ = -1;
   std::string partial_, err_text_;
   long bytes_ = 0;

@@ -6,6 +6,7 @@
 #include <cmath>
 #include <cstring>
 #include <filesystem>
+#include <limits>
 #include <optional>
 #include <unistd.h>
 
@@ -76,6 +77,9 @@ struct RunState {
   long line_number = 0;
   long bytes_at_start = 0;
   std::optional<long> last_iter;
+  std::optional<double> first_cost;  // of iter's first line: the scale of "below the optimum"
+  long stride = 1;        // largest step between logged iterations (a trainer may log every N)
+  bool params_seen = false;
   std::string fault;      // non-empty: protocol fault, timeout, size cap, process fault
   bool stop_sent = false; // serving: {"stop": id} written, waiting for its end line
 };
@@ -168,6 +172,8 @@ struct CommandSession::Impl {
   }
 
   // One line of a run's output (serving mode: with "run" already matched and removed).
+  // Anything that breaks the protocol (README, "The trainer protocol") makes the run failed
+  // with a reason saying what, never a number taken on trust.
   void take(RunState& s, RunRecord& r, const std::string& raw, const json* parsed) {
     ++s.line_number;
     if (!parsed) {
@@ -178,36 +184,52 @@ struct CommandSession::Impl {
       }
     }
     const json j = parsed ? *parsed : parse_line(raw);
-    if (j.is_discarded() || !j.is_object()) {
-      s.fault = fmt::format("protocol error at output line {}: not a JSON object: {:.120}", s.line_number, raw);
-      return;
-    }
+    const auto error = [&](const std::string& what) {
+      s.fault = fmt::format("protocol error at output line {}: {}", s.line_number, what);
+    };
+    if (j.is_discarded() || !j.is_object()) return error(fmt::format("not a JSON object: {:.120}", raw));
+    if (const std::string twice = first_repeated_key(raw); !twice.empty())
+      return error(fmt::format("the key {} is given twice in one object; expected each key once", twice));
     if (j.contains("params")) {
       const json& p = j["params"];
-      if (!p.is_array()) {
-        s.fault = fmt::format("protocol error at output line {}: \"params\" must be an array of numbers", s.line_number);
-        return;
-      }
+      if (!p.is_array()) return error("\"params\" must be an array of numbers");
       r.final_params.resize(static_cast<Index>(p.size()));
-      for (std::size_t i = 0; i < p.size(); ++i)
+      for (std::size_t i = 0; i < p.size(); ++i) {
+        if (!p[i].is_number() && !p[i].is_null())  // null: a non-finite value written by Python as NaN
+          return error(fmt::format("\"params\"[{}] is {}; expected a number", i, p[i].dump().substr(0, 40)));
         r.final_params[static_cast<Index>(i)] = p[i].is_number() ? p[i].get<double>() : kMissing;
+      }
+      s.params_seen = true;
       return;
     }
+    if (s.params_seen) return error("a cost line after the final \"params\" line; expected params last");
     if (s.monitor->decided()) return;  // decided: only a params line still matters
     if (!j.contains("iter") || !j["iter"].is_number_integer() || !j.contains("cost") ||
-        !(j["cost"].is_number() || j["cost"].is_null())) {
-      s.fault = fmt::format("protocol error at output line {}: expected {{\"iter\": integer, \"cost\": number}}, found {:.120}",
-                            s.line_number, raw);
-      return;
-    }
-    const long iter = j["iter"].get<long>();
-    if (s.last_iter && iter <= *s.last_iter) {
-      s.fault = fmt::format("protocol error at output line {}: iter {} does not increase (previous {})", s.line_number,
-                            iter, *s.last_iter);
-      return;
-    }
+        !(j["cost"].is_number() || j["cost"].is_null()))
+      return error(fmt::format("expected {{\"iter\": integer, \"cost\": number}}, found {:.120}", raw));
+    const long iter = j["iter"].is_number_unsigned() && j["iter"].get<std::uint64_t>() > std::uint64_t(kMaxBudget) * 4
+                          ? std::numeric_limits<long>::max()
+                          : j["iter"].get<long>();
+    if (iter < 0) return error(fmt::format("iter {} is negative; expected iterations counted from 0", iter));
+    if (iter > settings.budget)
+      return error(fmt::format("iter {} is past the budget of {} iterations; expected at most the budget "
+                               "({{budget}} in the argv, \"budget\" in a request)", iter, settings.budget));
+    if (s.last_iter && iter <= *s.last_iter)
+      return error(fmt::format("iter {} does not increase (previous {})", iter, *s.last_iter));
+    if (s.last_iter) s.stride = std::max(s.stride, iter - *s.last_iter);
     s.last_iter = iter;
     const double cost = j["cost"].is_null() ? kMissing : j["cost"].get<double>();
+    if (!s.first_cost) s.first_cost = cost;
+    // A cost below the known optimum means the optimum or the cost is wrong; taken on trust it
+    // would read as convergence. Not for costs read as noise (a minibatch can go below it).
+    if (has_optimum && std::isfinite(cost) && settings.outcome.noise != NoiseMode::on) {
+      const double scale = std::max({std::abs(c.spec.optimum), std::isfinite(*s.first_cost) ? std::abs(*s.first_cost - c.spec.optimum) : 0.0,
+                                     std::numeric_limits<double>::min()});
+      if (cost < c.spec.optimum - 1e-6 * scale)
+        return error(fmt::format("cost {} is below the stated optimum {} (by more than 1e-6 of the starting gap); "
+                                 "expected costs at or above it: check \"optimum\" and the cost the program writes",
+                                 exact_number(cost), exact_number(c.spec.optimum)));
+    }
     double grad = kMissing;
     if (j.contains("grad_norm") && j["grad_norm"].is_number()) grad = j["grad_norm"].get<double>();
     const TracePoint point{iter, cost, has_optimum ? cost - c.spec.optimum : kMissing, grad};
@@ -241,6 +263,11 @@ struct CommandSession::Impl {
     if (fault.empty() && !s.monitor->decided()) {
       if (!process_fault.empty()) fault = process_fault;
       else if (r.trace.empty()) fault = "no output: the program wrote no {\"iter\": k, \"cost\": J} line";
+      // Ended before its budget without a decision: not "slow: budget used". A program that
+      // logs every N iterations may end up to N − 1 short of the budget.
+      else if (s.last_iter && settings.budget - *s.last_iter >= s.stride)
+        fault = fmt::format("ended early: the last line was iteration {} of a budget of {}, and no outcome was "
+                            "decided (the program stopped before its budget)", *s.last_iter, settings.budget);
     }
     if (!fault.empty()) {
       // The reason alone says what went wrong (runs that failed alike share it); the evidence
@@ -293,7 +320,11 @@ struct CommandSession::Impl {
       for (Active& a : active) {
         RunRecord& r = records[a.state.index];
         std::vector<std::string> lines;
-        const bool open = a.child->read_lines(lines, wait);
+        a.child->read_lines(lines, wait);
+        // The run ends when its process exits, not when the pipe closes: a grandchild (a data
+        // loader's worker) may hold the pipe open, and a program may close stdout and go on.
+        const bool gone = a.child->exited().has_value();
+        if (gone) a.child->read_rest(lines, c.spec.max_output);
         for (const std::string& line : lines) {
           if (!a.state.fault.empty() || (a.state.monitor->decided() && !keeps_running(a.state))) break;
           take(a.state, r, line, nullptr);
@@ -302,7 +333,7 @@ struct CommandSession::Impl {
           a.child->stop(c.spec.grace);
           close(a.state, r, "", a.child->stderr_tail());
           a.child.reset();
-        } else if (!open) {
+        } else if (gone) {
           const ChildExit ex = a.child->wait();
           close(a.state, r, exit_fault(ex, "the program"), a.child->stderr_tail());
           a.child.reset();
@@ -380,6 +411,8 @@ struct CommandSession::Impl {
         RunRecord& r = records[s.index];
         std::vector<std::string> lines;
         const bool open = sv.child->read_lines(lines, wait);
+        const bool gone = sv.child->exited().has_value();  // even if a grandchild holds the pipe
+        if (gone) sv.child->read_rest(lines, c.spec.max_output);
         bool ended = false;
         for (const std::string& line : lines) {
           const auto first = line.find_first_not_of(" \t\r");
@@ -388,13 +421,15 @@ struct CommandSession::Impl {
             continue;
           }
           json j = parse_line(line);
-          if (j.is_discarded() || !j.is_object() || !j.contains("run")) {
+          if (j.is_discarded() || !j.is_object() || !j.contains("run") || !j["run"].is_number_integer() ||
+              j["run"].get<long>() > s.id || j["run"].get<long>() < 1) {
             if (!s.stop_sent && s.fault.empty())
-              s.fault = fmt::format("protocol error at output line {}: expected a JSON object with \"run\", found {:.120}",
-                                    s.line_number + 1, line);
+              s.fault = fmt::format("protocol error at output line {}: expected a JSON object with \"run\": the "
+                                    "integer id of a request sent (this run's is {}), found {:.120}",
+                                    s.line_number + 1, s.id, line);
             break;
           }
-          if (j["run"] != json(s.id)) continue;  // a late line of an earlier run
+          if (j["run"].get<long>() != s.id) continue;  // a late line of an earlier run
           if (j.contains("end") && j["end"] == true) {
             ended = true;
             break;
@@ -412,7 +447,7 @@ struct CommandSession::Impl {
           sv.run.reset();
           continue;
         }
-        if (!open) {
+        if (!open || gone) {
           fail_server(sv, "");
           continue;
         }

@@ -109,7 +109,7 @@ Journal::Journal(std::string path, bool resume) : path_(std::move(path)), resume
   std::tie(kill_after_, kill_torn_) = kill_point();
   if (!resume_ || ::access(path_.c_str(), F_OK) != 0) return;
   existed_ = true;
-  const std::string text = read_input_file(path_);
+  const std::string text = read_input_file(path_, ReadAs::previous_output);
   struct Partial {
     std::vector<std::optional<RunRecord>> lanes;
     std::size_t filled = 0;
@@ -129,6 +129,11 @@ Journal::Journal(std::string path, bool resume) : path_(std::move(path)), resume
       if (last) break;  // torn while being written: dropped
       throw InputError(where, "found a line that is not a JSON object; expected a journal entry (the journal is damaged: "
                               "run again without --resume)");
+    }
+    if (const std::string twice = first_repeated_key(body); !twice.empty()) {
+      if (last) break;
+      throw InputError(where + " #" + twice, "found this key a second time in its object; expected each key once (the "
+                                             "journal is damaged: run again without --resume)");
     }
     if (line == 1) {
       header_ = std::move(j);

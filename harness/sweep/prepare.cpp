@@ -106,11 +106,11 @@ static void produce(const DatasetSpec& spec) {
   ChildProcess child(o);
   const auto started = std::chrono::steady_clock::now();
   std::vector<std::string> lines;
-  bool open = true;
-  while (open) {
+  // Until the command exits (a closed stdout is not its end), or its timeout.
+  while (!child.exited()) {
     lines.clear();
-    open = child.read_lines(lines, std::chrono::milliseconds(100));
-    if (open && std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count() > c.timeout) {
+    child.read_lines(lines, std::chrono::milliseconds(100));
+    if (std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count() > c.timeout) {
       child.stop(c.grace);
       throw InputError(where, fmt::format("the produce command did not finish within {:g} s (stopped); stderr: {}",
                                           c.timeout, child.stderr_tail()));

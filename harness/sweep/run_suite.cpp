@@ -5,6 +5,7 @@
 #include <fmt/format.h>
 
 #include "stepgate/core/error.hpp"
+#include "stepgate/core/input_file.hpp"
 #include "stepgate/core/interrupt.hpp"
 #include "stepgate/core/output_files.hpp"
 #include "stepgate/report/reporter.hpp"
@@ -44,6 +45,12 @@ SuiteRun run_suite(const std::string& suite_path, const RunSuiteOptions& options
     plan = shard_of(plan, k, n);
     plan_cases = std::move(all_cases);
     sweep.shard = fmt::format("{}/{}", k, n);
+  }
+  // The data sets are read later, in the sweep; remembered now, so that an output linked onto
+  // one is refused before any run (output_target), not after the sweep.
+  for (const auto& [name, d] : run.suite.datasets) {
+    remember_input(d.path);
+    remember_input(d.labels_path);
   }
   // The output folder is checked and locked before any work: an unusable --out, or another
   // run writing there, is found now rather than after the sweep.

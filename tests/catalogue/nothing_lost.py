@@ -1,0 +1,391 @@
+"""The second hostile-input campaign: nothing lost, nothing left behind.
+
+Entries for the classes of defects of that campaign, added to the catalogue by catalogue.py
+(`c` below is that module: Entry, the starting suites, the cache). Each class has its section:
+  1. an output that is (a link to, a hard link of) a file the command reads is refused;
+  2. a commit killed between its renames is finished by the next reader, never read mixed;
+  3. trainer and produce processes: the timeout holds, a run ends when its process exits,
+     and no process started for a suite outlives it;
+  4. trainer output that breaks the protocol makes the run failed with a reason saying what.
+"""
+import hashlib
+import json
+import os
+import subprocess
+import time
+from pathlib import Path
+
+NEVER_ONTO = "never written onto an input"
+
+
+# ---------------------------------------------------------------------------------------------
+# 1. Outputs onto inputs.
+
+def onto_inputs(c):
+    E = []
+    DIR = c.DIR
+
+    def link(target, name, hard=False):
+        def setup(ctx):
+            ctx.p(name).parent.mkdir(parents=True, exist_ok=True)
+            if hard:
+                os.link(ctx.p(target), ctx.p(name))
+            else:
+                os.symlink(os.path.relpath(ctx.p(target), ctx.p(name).parent), ctx.p(name))
+        return setup
+
+    def run_entry(name, files, setup, err, argv_more=()):
+        return c.Entry(name, ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1", *argv_more], 2,
+                       err=err, files=files, setup=setup, max_seconds=1.5, timeout=10)
+
+    E.append(run_entry("run-results-json-links-to-the-suite", {"suite.json": c.slow_suite(), "out/": DIR},
+                       link("suite.json", "out/results.json"), ["results.json", "suite.json", NEVER_ONTO]))
+    E.append(run_entry("run-results-json-is-a-hard-link-of-the-suite", {"suite.json": c.slow_suite(), "out/": DIR},
+                       link("suite.json", "out/results.json", hard=True), ["results.json", "suite.json", NEVER_ONTO]))
+    E.append(run_entry("run-report-md-links-to-the-data-set",
+                       lambda ctx: {**c.plant_files(), "out/": DIR},
+                       link("plant.csv", "out/report.md"), ["report.md", "plant.csv", NEVER_ONTO]))
+    E.append(run_entry("run-junit-links-to-the-baseline-being-gated-against",
+                       lambda ctx: {"suite.json": ctx.cache.tiny()["suite"], "base.json": ctx.cache.tiny()["baseline"],
+                                    "out/": DIR},
+                       link("base.json", "out/junit.xml"), ["junit.xml", "base.json", NEVER_ONTO],
+                       argv_more=("--baseline", "base.json")))
+    results = lambda ctx: {"r.json": ctx.cache.tiny()["results"], "base.json": ctx.cache.tiny()["baseline"],
+                           "rep/": DIR}
+    E.append(c.Entry("report-md-links-to-its-own-results", ["report", "r.json", "--out", "rep"], 2,
+                     err=["report.md", "r.json", NEVER_ONTO], files=results, setup=link("r.json", "rep/report.md")))
+    E.append(c.Entry("report-html-links-to-the-baseline", ["report", "r.json", "--baseline", "base.json", "--out", "rep"],
+                     2, err=["report.html", "base.json", NEVER_ONTO], files=results,
+                     setup=link("base.json", "rep/report.html")))
+    E.append(c.Entry("report-junit-in-the-results-folder-is-a-hard-link-of-the-results",
+                     ["report", "out/results.json"], 2, err=["junit.xml", "results.json", NEVER_ONTO],
+                     files=lambda ctx: {"out/results.json": ctx.cache.tiny()["results"]},
+                     setup=link("out/results.json", "out/junit.xml", hard=True)))
+    acc = lambda ctx: {"r.json": ctx.cache.tiny()["results"]}
+    E.append(c.Entry("accept-baseline-is-a-hard-link-of-the-results",
+                     ["accept", "r.json", "--baseline", "b.json", "--record", "rec.md"], 2,
+                     err=["b.json", "r.json", NEVER_ONTO], files=acc, setup=link("r.json", "b.json", hard=True)))
+    E.append(c.Entry("accept-record-is-a-hard-link-of-the-results",
+                     ["accept", "r.json", "--baseline", "b.json", "--record", "rec.md"], 2,
+                     err=["rec.md", "r.json", NEVER_ONTO], files=acc, setup=link("r.json", "rec.md", hard=True)))
+    shards = lambda ctx: {"s1/results.json": ctx.cache.shards()[0], "s2/results.json": ctx.cache.shards()[1],
+                          "m/": DIR}
+    E.append(c.Entry("merge-report-links-to-a-shard", ["merge", "s1/results.json", "s2/results.json", "--out", "m"], 2,
+                     err=["report.md", "s1/results.json", NEVER_ONTO], files=shards,
+                     setup=link("s1/results.json", "m/report.md")))
+    return E
+
+
+# ---------------------------------------------------------------------------------------------
+# 2. A commit killed between its renames.
+
+KILL = "STEPGATE_TEST_KILL_IN_COMMIT"
+
+
+def run_hooked(c, ctx, argv, renames=1):
+    """Runs stepgate with the test hook that SIGKILLs it after `renames` renames of a commit."""
+    code, _, err, _, _ = c.run_binary(argv, ctx.tmp, 120, {KILL: str(renames)})
+    if code != -9:
+        raise c.SetupError(f"setup: the hooked {' '.join(argv)} exited {code}, expected SIGKILL: "
+                           f"{(err.strip().splitlines() or [''])[0]}")
+
+
+def run_plain(c, ctx, argv):
+    code, _, err, _, _ = c.run_binary(argv, ctx.tmp, 120)
+    if code not in (0, 1):
+        raise c.SetupError(f"setup: {' '.join(argv)} exited {code}: {(err.strip().splitlines() or [''])[0]}")
+
+
+def remember_staged(ctx, folders):
+    """{target: sha256 of its staged content} for every manifest in `folders` (relative)."""
+    staged = {}
+    for folder in folders:
+        manifest = ctx.p(folder) / ".stepgate-commit"
+        if not manifest.exists():
+            raise C.SetupError(f"setup: no commit manifest in {folder} after the kill")
+        for src, dst in json.loads(manifest.read_text())["renames"]:
+            if os.path.exists(src):
+                staged[dst] = hashlib.sha256(Path(src).read_bytes()).hexdigest()
+    if not staged:
+        raise C.SetupError("setup: the kill left nothing staged")
+    ctx.state["staged"] = staged
+    ctx.state["folders"] = folders
+
+
+def finished_whole(ctx, code):
+    """Every target holds what was staged for it; no manifest, no staged file is left."""
+    problems = []
+    for target, digest in ctx.state["staged"].items():
+        if not os.path.exists(target):
+            problems.append(f"{target} missing")
+        elif hashlib.sha256(Path(target).read_bytes()).hexdigest() != digest:
+            problems.append(f"{os.path.relpath(target, ctx.tmp)} does not hold the interrupted commit's content "
+                            "(a mixed set)")
+    for folder in ctx.state["folders"]:
+        for name in os.listdir(ctx.p(folder)):
+            if name == ".stepgate-commit" or ".staged-" in name:
+                problems.append(f"{folder}/{name} left behind")
+    return problems
+
+
+def interrupted_commits(c):
+    E = []
+
+    def run_then_killed_run(ctx):
+        suite = c.quad_suite()
+        ctx.write("suite.json", suite)
+        run_plain(c, ctx, ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1"])
+        run_plain(c, ctx, ["accept", "out/results.json", "--baseline", "base.json", "--record", "rec.md"])
+        suite["defaults"]["budget"] = 250  # other results, so that a mixed set would show
+        ctx.write("suite.json", suite)
+        run_hooked(c, ctx, ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1"])
+        remember_staged(ctx, ["out"])
+
+    readers = [
+        ("check", ["check", "out/results.json", "--baseline", "base.json"], (0, 1), ["out/*"]),
+        ("report", ["report", "out/results.json", "--out", "rep"], 0, ["out/*", "rep", "rep/*"]),
+        ("accept", ["accept", "out/results.json", "--baseline", "b2.json", "--record", "r2.md"], 0,
+         ["out/*", "b2.json", "r2.md"]),
+        ("run-resume", ["run", "suite.json", "--out", "out", "--resume", "--quiet", "--jobs", "1"], (0, 1), ["out/*"]),
+    ]
+    def run_again_whole(ctx, code):
+        # `run --resume` finishes the commit, then writes a new set of its own: whole, and of
+        # the changed suite.
+        problems = [f"out/{n} left behind" for n in os.listdir(ctx.p("out")) if n == ".stepgate-commit" or ".staged-" in n]
+        said = json.loads(ctx.p("out/results.json").read_text())["suite"]["sha256"]
+        now = hashlib.sha256(ctx.p("suite.json").read_bytes()).hexdigest()
+        return problems + ([] if said == now else ["results.json is not of the changed suite"])
+
+    for name, argv, code, allow in readers:
+        E.append(c.Entry(f"{name}-finishes-a-run-commit-killed-between-renames", argv, code, setup=run_then_killed_run,
+                         check=run_again_whole if name == "run-resume" else finished_whole, allow=allow,
+                         finishes_commit=True, timeout=60))
+
+    def merge_then_killed_merge(ctx):
+        shards = ctx.cache.shards()
+        ctx.write("s1/results.json", shards[0])
+        ctx.write("s2/results.json", shards[1])
+        run_plain(c, ctx, ["merge", "s1/results.json", "s2/results.json", "--out", "m"])
+        run_hooked(c, ctx, ["merge", "s1/results.json", "s2/results.json", "--out", "m"], renames=2)
+        remember_staged(ctx, ["m"])
+
+    E.append(c.Entry("report-finishes-a-merge-commit-killed-between-renames", ["report", "m/results.json"], 0,
+                     setup=merge_then_killed_merge, check=finished_whole, allow=["m/*"], finishes_commit=True))
+    E.append(c.Entry("merge-again-finishes-a-merge-commit-killed-between-renames",
+                     ["merge", "s1/results.json", "s2/results.json", "--out", "m"], 0,
+                     setup=merge_then_killed_merge, allow=["m/*"], finishes_commit=True,
+                     check=lambda ctx, code: [f"m/{n} left behind" for n in os.listdir(ctx.p("m"))
+                                              if n == ".stepgate-commit" or ".staged-" in n]))
+
+    def accept_then_killed_accept(ctx):
+        ctx.write("r.json", ctx.cache.tiny()["results"])
+        (ctx.p("refs")).mkdir()
+        (ctx.p("recs")).mkdir()
+        run_plain(c, ctx, ["accept", "r.json", "--baseline", "refs/base.json", "--record", "recs/rec.md"])
+        time.sleep(1.1)  # another "accepted" second: the second baseline differs from the first
+        run_hooked(c, ctx, ["accept", "r.json", "--baseline", "refs/base.json", "--record", "recs/rec.md"])
+        remember_staged(ctx, ["refs", "recs"])
+
+    E.append(c.Entry("check-finishes-an-accept-killed-between-baseline-and-record",
+                     ["check", "r.json", "--baseline", "refs/base.json"], (0, 1), setup=accept_then_killed_accept,
+                     check=finished_whole, allow=["refs/*", "recs/*"], finishes_commit=True))
+    E.append(c.Entry("accept-again-finishes-an-accept-killed-between-baseline-and-record",
+                     ["accept", "r.json", "--baseline", "refs/base.json", "--record", "recs/rec.md"], 0,
+                     setup=accept_then_killed_accept, allow=["refs/*", "recs/*"], finishes_commit=True,
+                     check=lambda ctx, code: [f"{f}/.stepgate-commit left behind" for f in ("refs", "recs")
+                                              if ctx.p(f"{f}/.stepgate-commit").exists()]
+                     + ([] if ctx.p("recs/rec.md").read_text().count("## ") >= 3 else
+                        ["the record lost an entry: expected the first, the interrupted and the new one"])))
+    return E
+
+
+# ---------------------------------------------------------------------------------------------
+# 3. Trainer and produce processes.
+
+# Every trainer writes the ids of the processes it starts (and its own) into pids/, so that the
+# check can see that none is left once stepgate has exited.
+TRAINER_HEAD = """import json, os, subprocess, sys, time
+pids = os.path.join(os.path.dirname(os.path.abspath(__file__)), "pids")
+os.makedirs(pids, exist_ok=True)
+def keep(pid): open(os.path.join(pids, str(pid)), "w").close()
+keep(os.getpid())
+def say(k, cost): print(json.dumps({"iter": k, "cost": cost}), flush=True)
+def converge():
+    w = 1.0
+    for k in range(61):
+        say(k, w * w / 2); w *= 0.5
+"""
+
+TRAINERS = {
+    # closes stdout after two lines and goes on running: the timeout must still hold
+    "closes-stdout-and-runs-on": TRAINER_HEAD + """say(0, 0.5); say(1, 0.4)
+os.close(1)
+time.sleep(1000)
+""",
+    # converges, exits, and leaves a worker that holds the pipe open (as a data loader's may)
+    "worker-holds-the-pipe-after-the-trainer-exits": TRAINER_HEAD + """w = subprocess.Popen(["sleep", "1000"])
+keep(w.pid)
+converge()
+""",
+    # converges and leaves a process in a session of its own
+    "setsid-child-outlives-the-trainer": TRAINER_HEAD + """w = subprocess.Popen(["sleep", "1000"], start_new_session=True,
+                     stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+keep(w.pid)
+converge()
+""",
+    # converges and leaves a daemon (fork, setsid, fork again)
+    "double-forked-daemon-outlives-the-trainer": TRAINER_HEAD + """r, wfd = os.pipe()
+if os.fork() == 0:
+    os.setsid()
+    if os.fork() == 0:
+        os.close(r); os.write(wfd, str(os.getpid()).encode()); os.close(wfd)
+        os.closerange(0, 3); time.sleep(1000); os._exit(0)
+    os._exit(0)
+os.close(wfd); keep(int(os.read(r, 32) or b"0")); os.close(r)
+converge()
+""",
+    # hangs with a process in a session of its own: the timeout kills both
+    "setsid-child-of-a-hanging-trainer": TRAINER_HEAD + """w = subprocess.Popen(["sleep", "1000"], start_new_session=True,
+                     stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+keep(w.pid)
+say(0, 0.5)
+time.sleep(1000)
+""",
+}
+
+
+def command_suite(ctx, script, timeout=2.0):
+    return {"format": "stepgate.suite/1", "name": "cat-procs",
+            "defaults": {"seeds": 1, "budget": 60, "rates": {"grid": None, "fixed": [0.5]}},
+            "problems": [{"name": "t", "kind": "command", "optimum": 0.0, "optimizers": ["gd"],
+                          "command": {"argv": ["/usr/bin/python3", str(ctx.p(script)), "--lr", "{rate}"],
+                                      "timeout": timeout, "grace": 0.5}}]}
+
+
+def none_left(ctx):
+    """The processes listed in pids/ have all ended (a zombie counts as ended)."""
+    time.sleep(0.3)  # SIGKILL is asynchronous
+    left = []
+    folder = ctx.p("pids")
+    for name in (os.listdir(folder) if folder.exists() else []):
+        pid = int(name)
+        try:
+            state = Path(f"/proc/{pid}/stat").read_text().rsplit(")", 1)[1].split()[0]
+        except (FileNotFoundError, ProcessLookupError, IndexError):
+            continue
+        if state != "Z":
+            left.append(pid)
+            try:
+                os.kill(pid, 9)  # do not let the catalogue leave it either
+            except OSError:
+                pass
+    return [f"processes left running after stepgate exited: {left}"] if left else []
+
+
+def run_outcome(expected_outcome, reason=None):
+    def check(ctx, code):
+        problems = none_left(ctx)
+        path = ctx.p("out/results.json")
+        if not path.exists():
+            return problems + ["out/results.json not written"]
+        run = json.loads(path.read_text())["cases"][0]["runs"][0]
+        if run["outcome"] != expected_outcome:
+            problems.append(f"the run is {run['outcome']} ({run.get('reason', '')}), expected {expected_outcome}")
+        if reason and reason not in run.get("reason", ""):
+            problems.append(f"the run's reason {run.get('reason')!r} lacks {reason!r}")
+        return problems
+    return check
+
+
+def trainer_processes(c):
+    E = []
+    for name, outcome, reason, seconds in (
+            ("closes-stdout-and-runs-on", "failed", "timeout", 6),
+            ("worker-holds-the-pipe-after-the-trainer-exits", "converged", None, 5),
+            ("setsid-child-outlives-the-trainer", "converged", None, 5),
+            ("double-forked-daemon-outlives-the-trainer", "converged", None, 5),
+            ("setsid-child-of-a-hanging-trainer", "failed", "timeout", 6)):
+        E.append(c.Entry(f"trainer-{name}", ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1"], (0, 1),
+                         files=lambda ctx, n=name: {"trainer.py": TRAINERS[n],
+                                                    "suite.json": command_suite(ctx, "trainer.py")},
+                         check=run_outcome(outcome, reason), allow=["out", "out/*", "pids", "pids/*"],
+                         max_seconds=seconds, timeout=30))
+
+    def produce_suite(script):
+        def files(ctx):
+            s = c.plant_suite()
+            s["datasets"]["plant"]["csv"] = "made.csv"
+            s["datasets"]["plant"]["produce"] = {"argv": ["/usr/bin/python3", str(ctx.p("make.py"))],
+                                                 "cwd": str(ctx.tmp), "timeout": 2}
+            return {"suite.json": s, "plant.csv": c.plant_csv(), "make.py": script}
+        return files
+
+    make_head = TRAINER_HEAD + "import shutil\nshutil.copy('plant.csv', 'made.csv')\n"
+    E.append(c.Entry("produce-closes-stdout-and-runs-on", ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1"],
+                     2, err=["produce", "2 s"],
+                     files=produce_suite(make_head + "os.close(1)\ntime.sleep(1000)\n"),
+                     check=lambda ctx, code: none_left(ctx), allow_on_error=["made.csv", "pids", "pids/*"],
+                     max_seconds=6, timeout=30))
+    E.append(c.Entry("produce-leaves-a-setsid-child", ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1"],
+                     (0, 1), files=produce_suite(make_head + """w = subprocess.Popen(["sleep", "1000"], start_new_session=True,
+                     stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+keep(w.pid)
+"""), check=lambda ctx, code: none_left(ctx), allow=["made.csv", "out", "out/*", "pids", "pids/*"], timeout=60))
+    return E
+
+
+# ---------------------------------------------------------------------------------------------
+# 4. Trainer output that breaks the protocol.
+
+PROTOCOL = {
+    # name: (trainer body after TRAINER_HEAD, fragment of the failed run's reason)
+    "negative-iter": ("say(-1, 0.5)\nsay(0, 0.4)\n", "negative"),
+    "iter-past-the-budget": ("for k in range(70): say(k, 0.5)\n", "past the budget"),
+    "cost-after-params": ("say(0, 0.5); say(1, 0.5)\nprint(json.dumps({'params': [1.0]}), flush=True)\nsay(2, 0.5)\n",
+                          "after the final"),
+    "cost-below-the-stated-optimum": ("say(0, 0.5); say(1, 0.25); say(2, -0.125)\n", "below the stated optimum"),
+    "a-key-given-twice": ("print('{\"iter\": 0, \"cost\": 0.5, \"cost\": 0.0}', flush=True)\n", "twice"),
+    "params-not-numbers": ("say(0, 0.5)\nprint(json.dumps({'params': [1.0, 'x']}), flush=True)\n", "expected a number"),
+    "exits-after-20-of-60-iterations": ("for k in range(21): say(k, 0.5)\n", "ended early"),
+    "exits-after-iteration-0": ("say(0, 0.5)\n", "ended early"),
+}
+
+SERVING_STRING_RUN = TRAINER_HEAD + """for line in sys.stdin:
+    q = json.loads(line)
+    if "run" not in q: continue
+    for k in range(61):
+        print(json.dumps({"run": str(q["run"]), "iter": k, "cost": 0.5}), flush=True)
+    print(json.dumps({"run": str(q["run"]), "end": True}), flush=True)
+"""
+
+
+def protocol_breaks(c):
+    E = []
+    for name, (body, reason) in PROTOCOL.items():
+        E.append(c.Entry(f"trainer-protocol-{name}", ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1"],
+                         (0, 1), files=lambda ctx, b=body: {"trainer.py": TRAINER_HEAD + b,
+                                                            "suite.json": command_suite(ctx, "trainer.py", 20)},
+                         check=run_outcome("failed", reason), allow=["out", "out/*", "pids", "pids/*"],
+                         max_seconds=10, timeout=40))
+
+    def serving(ctx):
+        s = command_suite(ctx, "trainer.py", 20)
+        s["problems"][0]["command"]["argv"] = ["/usr/bin/python3", str(ctx.p("trainer.py"))]
+        s["problems"][0]["command"]["serve"] = True
+        return {"trainer.py": SERVING_STRING_RUN, "suite.json": s}
+
+    # Each run used to wait out its whole timeout (20 s here) for a line with its id.
+    E.append(c.Entry("trainer-protocol-serving-reply-run-id-is-a-string",
+                     ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1"], (0, 1), files=serving,
+                     check=run_outcome("failed", "integer id"), allow=["out", "out/*", "pids", "pids/*"],
+                     max_seconds=10, timeout=40))
+    return E
+
+
+C = None  # the catalogue module, set by entries()
+
+
+def entries(c):
+    global C
+    C = c
+    return onto_inputs(c) + interrupted_commits(c) + trainer_processes(c) + protocol_breaks(c)
