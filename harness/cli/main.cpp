@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "stepgate/cli/commands.hpp"
+#include "stepgate/core/input_file.hpp"
 #include "stepgate/core/visible_output.hpp"
 #include "stepgate/core/error.hpp"
 
@@ -48,6 +49,7 @@ int main(int argc, char** argv) {
   const std::string command = all.front();
   const cli::Args args(all.begin() + 1, all.end());
   try {
+    const CommandInputs inputs;  // what the command reads is never overwritten by what it writes
     if (command == "--help" || command == "-h" || command == "help") {
       std::cout << kUsage << "\n";
       return kExitPass;

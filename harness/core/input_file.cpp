@@ -34,6 +34,7 @@ struct RememberedInput {
 };
 
 std::mutex inputs_mutex;
+int scope_depth = 0;  // CommandInputs alive (under inputs_mutex)
 std::vector<RememberedInput>& remembered_inputs() {
   static std::vector<RememberedInput> inputs;
   return inputs;
@@ -41,10 +42,21 @@ std::vector<RememberedInput>& remembered_inputs() {
 
 }  // namespace
 
+CommandInputs::CommandInputs() {
+  const std::lock_guard lock(inputs_mutex);
+  ++scope_depth;
+}
+
+CommandInputs::~CommandInputs() {
+  const std::lock_guard lock(inputs_mutex);
+  if (--scope_depth == 0) remembered_inputs().clear();
+}
+
 void remember_input(const std::string& path) {
   struct stat st {};
   if (path.empty() || ::stat(path.c_str(), &st) != 0) return;
   const std::lock_guard lock(inputs_mutex);
+  if (scope_depth == 0) return;
   for (const RememberedInput& r : remembered_inputs())
     if (r.dev == st.st_dev && r.ino == st.st_ino && r.path == path) return;
   remembered_inputs().push_back({st.st_dev, st.st_ino, path});

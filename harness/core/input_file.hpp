@@ -19,9 +19,22 @@ enum class ReadAs { input, previous_output };
 /// unreadable, not a regular file (a fifo is allowed), or a pipe longer than kMaxPipeBytes.
 std::string read_input_file(const std::string& path, ReadAs as = ReadAs::input);
 
-/// Remembers `path` (after following symlinks: its device and inode) as a file this process
-/// reads, so that no output is ever written onto it (output_target refuses). Every reader of a
-/// user's file calls it; a missing path is ignored. Thread-safe.
+/// While one lives, the files read are remembered as the inputs of one command (a CLI command,
+/// one run_suite call); when the outermost one ends they are forgotten, so that a program doing
+/// many things in turn (a test, a user's tool on the library) may write what it read earlier.
+/// Outside every scope nothing is remembered. Nests; not per thread (one command at a time).
+class CommandInputs {
+ public:
+  CommandInputs();
+  ~CommandInputs();
+  CommandInputs(const CommandInputs&) = delete;
+  CommandInputs& operator=(const CommandInputs&) = delete;
+};
+
+/// Within a CommandInputs scope: remembers `path` (after following symlinks: its device and
+/// inode) as a file this command reads, so that no output is ever written onto it
+/// (output_target refuses). Every reader of a user's file calls it; a missing path is ignored.
+/// Thread-safe.
 void remember_input(const std::string& path);
 
 /// The path under which this process read the file with device `dev` and inode `ino`, or ""

@@ -1,3 +1,4 @@
+#include <cmath>
 #include <set>
 
 #include <fmt/format.h>
@@ -9,6 +10,7 @@
 #include "stepgate/core/json_node.hpp"
 #include "stepgate/core/optimizer_spec_json.hpp"
 #include "stepgate/core/run_record_json.hpp"
+#include "stepgate/core/safe_range_check.hpp"
 
 namespace stepgate {
 
@@ -68,7 +70,11 @@ ReferenceSummary read_reference(const JsonField& f) {
 SeedSummary read_seed(const JsonField& f) {
   SeedSummary s;
   s.seed = f["seed"].integer_as<std::uint64_t>();
-  for (const auto& field : seed_number_fields()) s.*field.member = f[field.key].number_or_missing();
+  for (const auto& field : seed_number_fields()) {
+    s.*field.member = f[field.key].number_or_missing();
+    if (const double v = s.*field.member; !std::isnan(v) && !(std::isfinite(v) && v > 0.0))
+      f[field.key].expected("a rate > 0 or null");
+  }
   read_bracket(f["edge_bracket"], s.edge_lo, s.edge_hi);
   s.runs = f["runs"].integer_as<int>();
   return s;
@@ -80,8 +86,11 @@ CaseSummary read_summary(const JsonField& f) {
   read_bracket(f["edge_bracket"], s.edge_lo, s.edge_hi);
   if (const JsonField zone = f["ragged_zone"]; !zone.is_null()) {
     if (zone.array_size() != 2) zone.expected("[edge, highest converged rate] or null");
+    const double start = zone[0].number_or_missing();
+    if (!(start == s.edge)) zone[0].expected(fmt::format("the edge {} (the zone starts at the edge)", s.edge));
     s.ragged_top = zone[1].number_or_missing();
   }
+  check_safe_range(s, f);
   if (const JsonField po = f["pinned_outcome"]; !po.is_null()) s.pinned_outcome = read_outcome(po);
   s.runs = f["runs"].integer_as<int>();
   if (const JsonField ref = f["reference"]; !ref.is_null()) s.reference = read_reference(ref);
@@ -122,6 +131,36 @@ BaselineCheck read_verification(const JsonField& f) {
   return v;
 }
 
+// What the summary says of the runs must be so in the runs: a seed's edge is a rate where that
+// seed's run converged, the top of its bracket one where it did not, and the pinned outcome is
+// the worst outcome at the pinned rate. (Every run's outcome changed under an unchanged summary
+// is refused here.)
+void check_summary_against_runs(const CaseResult& c, const JsonField& f) {
+  const auto run_at = [&](long seed_index, double rate, bool want_converged) {
+    for (const StoredRun& r : c.runs)
+      if (r.record.seed_index == seed_index && r.record.rate == rate &&
+          (r.record.outcome == Outcome::converged) == want_converged)
+        return true;
+    return false;
+  };
+  const JsonField seeds = f["summary"]["seeds"];
+  for (std::size_t i = 0; i < c.summary.seeds.size(); ++i) {
+    const SeedSummary& x = c.summary.seeds[i];
+    if (!std::isnan(x.edge) && !run_at(static_cast<long>(i), x.edge, true))
+      seeds[i]["edge"].expected("a rate at which a run of this seed converged (no run of it did)");
+    if (!std::isnan(x.edge_hi) && !run_at(static_cast<long>(i), x.edge_hi, false))
+      seeds[i]["edge_bracket"].expected("[lo, hi] with hi a rate at which a run of this seed did not converge");
+  }
+  if (!std::isnan(c.summary.pinned)) {
+    std::optional<Outcome> worst;
+    for (const StoredRun& r : c.runs)
+      if (r.record.rate == c.summary.pinned && (!worst || r.record.outcome > *worst)) worst = r.record.outcome;
+    if (worst && c.summary.pinned_outcome != worst)
+      f["summary"]["pinned_outcome"].expected(fmt::format("'{}', the worst outcome of the runs at the pinned rate",
+                                                          to_string(*worst)));
+  }
+}
+
 CaseResult read_case(const JsonField& f) {
   CaseResult c;
   c.id = f["id"].string();
@@ -141,6 +180,7 @@ CaseResult read_case(const JsonField& f) {
   if (f.has("wall_seconds")) c.wall_seconds = f["wall_seconds"].number_or_missing();  // timing only
   const JsonField runs = f["runs"];
   for (std::size_t i = 0; i < runs.array_size(); ++i) c.runs.push_back(read_run(runs[i]));
+  check_summary_against_runs(c, f);
   return c;
 }
 

@@ -1,6 +1,8 @@
 #include "stepgate/core/run_record_json.hpp"
 
 #include <cmath>
+
+#include <fmt/format.h>
 #include <limits>
 
 namespace stepgate {
@@ -104,6 +106,13 @@ RunRecord run_record_from(const JsonField& f, const RunRecordStyle& style) {
     r.final_params.resize(static_cast<Index>(params.array_size()));
     for (std::size_t i = 0; i < params.array_size(); ++i) r.final_params[static_cast<Index>(i)] = number_from_json(params[i], style);
   }
+  // Values that cannot be: refused where they are, not trusted.
+  if (!(std::isfinite(r.rate) && r.rate > 0.0)) f["rate"].expected("a rate > 0");
+  if (r.steps < 0) f["steps"].expected("a number of iterations >= 0");
+  if (r.outcome == Outcome::converged && !r.iterations)
+    f["converged_at"].expected("the iteration it converged at (a converged run has one)");
+  if (r.iterations && (*r.iterations < 0 || *r.iterations > r.steps))
+    f["converged_at"].expected(fmt::format("an iteration from 0 to the run's steps ({})", r.steps));
   return r;
 }
 

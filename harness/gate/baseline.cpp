@@ -5,6 +5,8 @@
 
 #include <fmt/format.h>
 
+#include "stepgate/core/safe_range_check.hpp"
+
 #include "stepgate/core/error.hpp"
 #include "stepgate/core/json_node.hpp"
 
@@ -102,6 +104,7 @@ Baseline baseline_from_json(const json& j, const std::string& path) {
     x.min_lre = c[v1 ? "reference_digits" : "min_lre"].number_or_missing();
     x.predicted_blowup = c["predicted_blowup"].number_or_missing();
     if (c.has("ragged_top")) x.ragged_top = c["ragged_top"].number_or_missing();  // absent before 0.2
+    check_safe_range(x, c, "ragged_top");
     for (auto [key, member] : {std::pair{"edge_seed", &BaselineCase::edge_seed}, std::pair{"floor_seed", &BaselineCase::floor_seed}})
       if (c.has(key) && !c[key].is_null()) x.*member = c[key].seed();  // absent before verify mode
     b.cases.push_back(std::move(x));

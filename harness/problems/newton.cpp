@@ -1,6 +1,7 @@
 #include "stepgate/problems/newton.hpp"
 
 #include <cmath>
+#include <deque>
 
 namespace stepgate::detail {
 namespace {
@@ -65,6 +66,8 @@ Vec dense_direction(const NewtonOracle& o, const Vec& w, const Vec& g) {
 NewtonResult newton_minimise(const NewtonOracle& o, Vec w0) {
   NewtonResult res;
   res.w = std::move(w0);
+  std::deque<Vec> recent;  // the iterates of the last kDrift accepted steps, oldest first
+  constexpr std::size_t kDrift = 5;
   Vec g(res.w.size()), g_try(res.w.size());
   res.cost = o.cost_grad(res.w, g);
   res.grad_norm = g.norm();
@@ -90,6 +93,8 @@ NewtonResult newton_minimise(const NewtonOracle& o, Vec w0) {
         accepted = cost_try <= res.cost + 1e-4 * t * slope;
       }
       if (accepted) {
+        if (recent.size() == kDrift) recent.pop_front();
+        recent.push_back(res.w);
         res.last_step = t * d.norm();
         res.w = std::move(w_try);
         res.cost = cost_try;
@@ -101,6 +106,19 @@ NewtonResult newton_minimise(const NewtonOracle& o, Vec w0) {
     if (!accepted) break;
   }
   res.settled = res.last_step <= 1e-6 * (1.0 + res.w.norm());
+  // The steps can also collapse where no minimiser exists: on separable data the curvature
+  // along the separating direction underflows, and Newton's steps shrink although the iterates
+  // were drifting along it. A convex function whose minimum is attained rises when one moves
+  // far from the minimiser; if it does not rise along the recent drift (a recession
+  // direction), the infimum is not attained.
+  if (res.settled && !recent.empty()) {
+    const Vec drift = res.w - recent.front();
+    if (const double size = drift.norm(); size > 0.0) {
+      Vec far = res.w + (std::max(1.0, res.w.norm()) / size) * drift, g_far(res.w.size());
+      const double cost_far = o.cost_grad(far, g_far);
+      if (!(cost_far > res.cost + 1e-12 * std::max(std::abs(res.cost), 1e-300))) res.settled = false;
+    }
+  }
   return res;
 }
 

@@ -48,9 +48,11 @@ struct NewtonResult {
   int steps = 0;
   long cg_iterations = 0;  ///< Hessian-vector products of Newton-CG over all steps (0: dense)
   /// The steps collapsed (last ≤ 1e-6·(1 + ‖w‖)), as they do when Newton converges
-  /// quadratically. When the infimum is not attained (separable data without l2) the steps
-  /// stay of constant size while ‖w‖ grows, and this stays false (even if the gradient
-  /// underflows to 0 on the way).
+  /// quadratically, and the cost rises when one moves far (by max(1, ‖w‖)) along the drift of
+  /// the last five steps. When the infimum is not attained (separable data without l2) the
+  /// steps stay of constant size while ‖w‖ grows, or collapse only because the curvature along
+  /// the separating direction underflows; then the cost does not rise along that drift, and
+  /// this is false (even if the gradient underflows to 0 on the way).
   bool settled = false;
 };
 

@@ -10,6 +10,7 @@
 #include <fmt/format.h>
 
 #include "stepgate/analysis/curvature.hpp"
+#include "stepgate/core/error.hpp"
 #include "stepgate/analysis/reference.hpp"
 #include "stepgate/analysis/safe_range.hpp"
 #include "stepgate/analysis/seed_level.hpp"
@@ -27,6 +28,23 @@ std::uint64_t run_seed(const std::string& case_id, std::uint64_t seed_number) {
 
 namespace detail {
 
+// A kept batch (a journal being resumed) must be the batch the plan asks for: its rates in
+// order, this seed's derived seed, at most the budget's steps. Anything else is a journal of
+// another plan or a damaged one: refused, never used.
+void Searcher::check_kept(const std::vector<RunRecord>& kept, const std::vector<double>& todo, const BatchSeed& seed) const {
+  for (std::size_t j = 0; j < kept.size(); ++j) {
+    const RunRecord& k = kept[j];
+    std::string why;
+    if (k.rate != todo[j]) why = fmt::format("rate {} where the plan asks for {}", k.rate, todo[j]);
+    else if (k.seed != seed.seed) why = fmt::format("rng_seed {} where this case and seed derive {}", k.seed, seed.seed);
+    else if (k.steps > in_.run.budget) why = fmt::format("{} steps, above the budget of {}", k.steps, in_.run.budget);
+    if (!why.empty())
+      throw InputError(in_.store->where(), fmt::format("a kept run of case {} (seed {}) has {}; this journal does not "
+                                                       "belong to this plan (run again without --resume)",
+                                                       in_.case_id, seed.index + 1, why));
+  }
+}
+
 std::vector<Outcome> Searcher::run(SeedRuns& s, const std::vector<double>& rates, RunRole role) {
   std::vector<double> todo;
   for (double r : rates)
@@ -36,6 +54,7 @@ std::vector<Outcome> Searcher::run(SeedRuns& s, const std::vector<double>& rates
     if (in_.store) kept = in_.store->recall(s.seed.index, todo);
     std::vector<RunRecord> records;
     if (kept && kept->size() == todo.size()) {
+      check_kept(*kept, todo, s.seed);
       records = std::move(*kept);
     } else {
       records = runner_ ? runner_(todo, s.seed)

@@ -30,6 +30,8 @@ class RunStore {
   virtual std::optional<std::vector<RunRecord>> recall(long seed_index, std::span<const double> rates) = 0;
   /// Keeps a finished batch; when it returns, the runs are on disk and count as done.
   virtual void keep(long seed_index, std::span<const double> rates, const std::vector<RunRecord>& records) = 0;
+  /// Where the kept runs come from, for messages (the journal's path).
+  virtual std::string where() const = 0;
 };
 
 struct CaseSearchInput {

@@ -63,6 +63,8 @@ class Searcher {
   Outcome outcome(std::size_t index) const { return order_[index].record.outcome; }
   // Runs the rates not yet run for this seed as one batch; answers the outcome of each rate.
   std::vector<Outcome> run(SeedRuns& s, const std::vector<double>& rates, RunRole role);
+  /// InputError naming the store when a recalled batch is not the batch asked for.
+  void check_kept(const std::vector<RunRecord>& kept, const std::vector<double>& todo, const BatchSeed& seed) const;
   Bracket narrow(SeedRuns& s, double lo, double hi, RunRole role, bool (*lower)(Outcome));
   void locate_seed(SeedRuns& s, std::optional<std::size_t> best_grid);
   std::optional<std::size_t> best_grid_index() const;

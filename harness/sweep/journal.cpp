@@ -59,6 +59,8 @@ class CaseJournal final : public RunStore {
     return journal_.recall(batch_key(case_, seed_index, rates));
   }
 
+  std::string where() const override { return journal_.path(); }
+
   void keep(long seed_index, std::span<const double> rates, const std::vector<RunRecord>& records) override {
     json rate_list = json::array();
     for (double r : rates) rate_list.push_back(number_json(r, kJournalStyle));
@@ -149,6 +151,9 @@ Journal::Journal(std::string path, bool resume) : path_(std::move(path)), resume
         if (rates.empty() || lane >= rates.size()) e["lane"].expected("a lane of the batch's rates");
         Partial& p = partial[batch_key(case_id, seed_index, rates)];
         RunRecord record = run_record_from(e["run"], kJournalStyle);
+        if (record.rate != rates[lane])
+          e["run"]["rate"].expected(fmt::format("the rate of its lane, {} (rates[{}])", rates[lane], lane));
+        if (record.seed_index != seed_index) e["run"]["seed_index"].expected(fmt::format("the entry's seed_index {}", seed_index));
         const bool whole = !p.lanes.empty() && p.filled == p.lanes.size();  // a later copy changes nothing
         if (!whole) {
           if (p.lanes.empty() || p.lanes[lane]) p.lanes.assign(rates.size(), std::nullopt), p.filled = 0;  // run again after a cut

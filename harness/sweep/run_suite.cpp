@@ -23,6 +23,7 @@ SuiteRun run_suite(const std::string& suite_path, const RunSuiteOptions& options
   if (options.jobs < 0 || options.jobs > kMaxJobs)
     throw InputError("--jobs", fmt::format("expected a number of threads from 0 (all cores) to {}, found {}", kMaxJobs,
                                            options.jobs));
+  const CommandInputs inputs;  // no output of this run is written onto a file it reads
   SuiteRun run;
   run.suite = load_suite(suite_path);
   if (!options.baseline.empty()) {

@@ -112,9 +112,11 @@ TEST_CASE("baseline: a case keeps the whole safe range of its summary, and write
   Results r;
   CaseResult c;
   c.id = "a/none/gd";
-  double v = 0.125;
-  for (const SafeRangeField& f : safe_range_fields()) c.summary.*f.member = (v *= 1.5);
-  c.summary.edge_lo = 0.7, c.summary.edge_hi = 0.71, c.summary.ragged_top = 0.9;
+  // Distinct values that obey the range checks (headroom = edge / pinned, floor <= edge, ...).
+  const double values[] = {0.01, 0.5, 0.8, 0.3, 100, 0.25, 120, 2.0, 1.2, 0.1};
+  REQUIRE(safe_range_fields().size() == std::size(values));
+  for (std::size_t i = 0; i < std::size(values); ++i) c.summary.*safe_range_fields()[i].member = values[i];
+  c.summary.edge_lo = 0.5, c.summary.edge_hi = 0.51, c.summary.ragged_top = 0.6;
   c.theory.predicted_blowup = 0.8;
   r.cases = {c};
   const Baseline b = baseline_from_results(r, "2026-12-03T06:00:00Z");
@@ -124,15 +126,15 @@ TEST_CASE("baseline: a case keeps the whole safe range of its summary, and write
     INFO(f.key);
     CHECK(x.*f.member == c.summary.*f.member);
   }
-  CHECK(x.edge_lo == 0.7);
-  CHECK(x.edge_hi == 0.71);
-  CHECK(x.ragged_top == 0.9);
+  CHECK(x.edge_lo == 0.5);
+  CHECK(x.edge_hi == 0.51);
+  CHECK(x.ragged_top == 0.6);
   CHECK(x.predicted_blowup == 0.8);
   // Written and read again, every field survives.
   const Baseline again = baseline_from_json(to_json(b), "b.json");
   for (const SafeRangeField& f : safe_range_fields()) CHECK(again.cases[0].*f.member == x.*f.member);
-  CHECK(again.cases[0].ragged_top == 0.9);
-  CHECK(again.cases[0].edge_hi == 0.71);
+  CHECK(again.cases[0].ragged_top == 0.6);
+  CHECK(again.cases[0].edge_hi == 0.51);
   // The results' summary writes the same keys for the same fields.
   const json results = to_json(r);
   for (const SafeRangeField& f : safe_range_fields())

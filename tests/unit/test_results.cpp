@@ -2,6 +2,8 @@
 // "results.json"), null for values that do not exist, trace thinning, strict reading with JSON
 // pointers, atomic writing, and the tool/host facts.
 #include <catch2/catch.hpp>
+#include <algorithm>
+#include <tuple>
 #include <sys/stat.h>
 #include <unistd.h>
 
@@ -106,7 +108,7 @@ Results sample_results(long trace_length = 100000) {
   a.summary.seeds = {{kBigSeed, 1e-4, 1.0, 2.0, 0.99, 1.01, 0.5, 2},
                      {3, kMissing, 1.1, kInf, 1.0, 1.2, 0.5, 1}};
   StoredRun converged = run(0.5, Outcome::converged, RunRole::refine, long_trace(trace_length));
-  converged.record.iterations = 812;
+  converged.record.iterations = std::min(812L, converged.record.steps);  // a converged run has converged_at <= steps
   a.runs.push_back(std::move(converged));
   StoredRun diverged = run(2.0, Outcome::diverged, RunRole::blowup, long_trace(4));
   diverged.record.trace[2].cost = kMissing;
@@ -117,6 +119,16 @@ Results sample_results(long trace_length = 100000) {
   a.runs.push_back(std::move(diverged));
   a.runs.push_back(run(1e-3, Outcome::slow, RunRole::fixed, {}));
   a.runs.push_back(run(0.9, Outcome::converged, RunRole::verify, {}));
+  a.runs.back().record.iterations = 0;
+  // What the seeds' summaries say of their runs is so (results_from_json checks it): each
+  // seed's edge is a rate where it converged, the top of its bracket one where it did not.
+  for (const auto& [index, edge, hi] : {std::tuple{0L, 1.0, 1.01}, std::tuple{1L, 1.1, 1.2}}) {
+    a.runs.push_back(run(edge, Outcome::converged, RunRole::edge, {}));
+    a.runs.back().record.seed_index = index;
+    a.runs.back().record.iterations = 0;
+    a.runs.push_back(run(hi, Outcome::oscillating, RunRole::edge, {}));
+    a.runs.back().record.seed_index = index;
+  }
   BaselineCheck check;  // a check that disagreed: the case was then searched
   check.disagreement = "the rate just inside the edge 0.9524 was slow for seed 3";
   check.baseline_edge = 1.0;
@@ -204,7 +216,7 @@ TEST_CASE("results: to_json -> dump -> parse -> results_from_json -> to_json is 
   CHECK(a.verification->probes[1].kind == ProbeKind::edge_inside);
   CHECK(a.verification->probes[1].outcome == Outcome::slow);
   CHECK_FALSE(a.verification->probes[1].as_expected);
-  CHECK(a.runs.back().role == RunRole::verify);
+  CHECK(a.runs[3].role == RunRole::verify);
   CHECK(first["cases"][1]["verification"].is_null());
   CHECK(first["cases"][0]["verification"]["proves"].get<std::string>().find("searched: the baseline check disagreed") == 0);
 }

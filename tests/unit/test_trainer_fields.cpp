@@ -332,6 +332,7 @@ Results results_with_failures() {
   RunRecord good;
   good.rate = 0.01;
   good.outcome = Outcome::converged;
+  good.iterations = 0;  // a converged run has converged_at
   good.reason = "cost criterion";
   c.runs.push_back({good, RunRole::grid});
   const std::string torch = "Traceback (most recent call last):\n  File \"train.py\", line 3, in <module>\n"
