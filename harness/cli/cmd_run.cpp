@@ -14,6 +14,7 @@
 #include "stepgate/cli/progress_line.hpp"
 #include "stepgate/core/error.hpp"
 #include "stepgate/core/interrupt.hpp"
+#include "stepgate/core/quote_text.hpp"
 #include "stepgate/report/summary_table.hpp"
 #include "stepgate/sweep/plan.hpp"
 #include "stepgate/sweep/run_suite.hpp"
@@ -48,7 +49,17 @@ std::pair<int, int> shard_from_slurm() {
   if (id == nullptr || count == nullptr)
     throw InputError("--shard slurm", "expected SLURM_ARRAY_TASK_ID and SLURM_ARRAY_TASK_COUNT in the environment "
                                       "(set by sbatch --array); outside a job array give --shard K/N");
-  const std::string text = fmt::format("{}/{}", std::atol(id) - (min ? std::atol(min) : 0) + 1, count);
+  // Whole decimal numbers only: "abc" is not task 0, nor "1x" task 1.
+  const auto whole = [](const char* name, const char* v) {
+    const std::string s = v;
+    if (s.empty() || s.size() > 9 || s.find_first_not_of("0123456789") != std::string::npos)
+      throw InputError("--shard slurm", fmt::format("found {}={}; expected a whole number (as sbatch --array sets it)",
+                                                    name, quote_text(s, 40)));
+    return std::stol(s);
+  };
+  const long task = whole("SLURM_ARRAY_TASK_ID", id), first = min ? whole("SLURM_ARRAY_TASK_MIN", min) : 0;
+  whole("SLURM_ARRAY_TASK_COUNT", count);
+  const std::string text = fmt::format("{}/{}", task - first + 1, count);
   const auto kn = stepgate::parse_shard(text);
   if (!kn)
     throw InputError("--shard slurm", fmt::format("the job array gives shard {} (task {} from {} of {}); expected "

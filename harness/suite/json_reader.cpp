@@ -151,6 +151,9 @@ bool is_valid_name(std::string_view name) {
 }
 
 void check_name(const Node& node, const std::string& name, std::string_view what) {
+  if (name == "." || name == "..")  // a name becomes a folder or file name: these two are folders already
+    node.fail(fmt::format("found {} {}, which names a folder itself; expected a name with a letter, digit, '_' or '-'",
+                          what, quote_text(name, 200)));
   if (!is_valid_name(name))
     node.fail(
         fmt::format("found {} {}; expected letters, digits, '.', '_' or '-' only (at least one)",

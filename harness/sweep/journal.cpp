@@ -236,15 +236,28 @@ void Journal::append(const std::string& text, int lines) {
     length = cut;
     kill = true;
   }
+  if (!failed_.empty()) throw JournalWriteError(failed_);
+  // On a failed write (disk full) the part of this batch already written is cut off again, so
+  // that the journal ends with whole lines, and the sweep stops here.
+  const auto fail = [&](const char* what, int error) {
+    const off_t end = ::lseek(fd_, 0, SEEK_CUR);
+    if (end >= 0 && static_cast<std::size_t>(end) > bytes_) (void)!::ftruncate(fd_, static_cast<off_t>(bytes_));
+    failed_ = fmt::format("cannot {} the journal {}: {}; the sweep stopped there, and the {} runs written before "
+                          "are kept (continue with --resume once there is room)",
+                          what, path_, std::strerror(error), written_);
+    throw JournalWriteError(failed_);
+  };
+  if (bytes_ == 0) bytes_ = static_cast<std::size_t>(std::max<off_t>(0, ::lseek(fd_, 0, SEEK_END)));
   std::size_t done = 0;
   while (done < length) {
     const ssize_t n = ::write(fd_, text.data() + done, length - done);
     if (n < 0 && errno == EINTR) continue;
-    if (n < 0) throw ToolError(fmt::format("cannot append to {}: {}", path_, std::strerror(errno)));
+    if (n < 0) fail("append to", errno);
     done += static_cast<std::size_t>(n);
   }
-  if (::fdatasync(fd_) != 0) throw ToolError(fmt::format("cannot flush {}: {}", path_, std::strerror(errno)));
+  if (::fdatasync(fd_) != 0) fail("flush", errno);
   if (kill) ::raise(SIGKILL);
+  bytes_ += done;
   written_ += lines;
 }
 

@@ -18,6 +18,7 @@
 #include <utility>
 #include <vector>
 
+#include "stepgate/core/error.hpp"
 #include "stepgate/core/results.hpp"
 #include "stepgate/search/case_search.hpp"
 
@@ -33,6 +34,12 @@ struct JournalIdentity {
   std::string tool;   ///< "version (build)"
   std::string shard;  ///< "K/N" or "" for the whole suite
   std::vector<std::pair<std::string, std::string>> datasets;  ///< (name, sha256) of the data read
+};
+
+/// A journal write that failed (a full disk): the sweep stops at the first one, the whole run
+/// ends with exit 3 naming the journal, and what was written before stays whole.
+struct JournalWriteError : ToolError {
+  using ToolError::ToolError;
 };
 
 class Journal {
@@ -73,6 +80,8 @@ class Journal {
   std::map<std::string, std::vector<RunRecord>> batches_;  // whole batches read back
   long available_ = 0;
   std::size_t good_bytes_ = 0;             // length of the file up to its last whole line
+  std::size_t bytes_ = 0;                  // the file's length after the last whole append
+  std::string failed_;                     // the first failed append's message: later ones fail alike
   int fd_ = -1;
   mutable std::mutex mutex_;
   long recalled_ = 0, written_ = 0;

@@ -3,13 +3,39 @@
 #include <algorithm>
 #include <map>
 #include <set>
+#include <tuple>
 
 #include <fmt/format.h>
 
 #include "stepgate/core/error.hpp"
+#include "stepgate/core/gate_tolerances_json.hpp"
 #include "stepgate/sweep/plan.hpp"
 
 namespace stepgate {
+
+namespace {
+
+// Shards of one run come from one stepgate build, read the same data and gate with the same
+// tolerances; a merge of anything else would keep the first shard's fields silently.
+void refuse_mixed_shards(const Results& first, const Results& other, const std::string& first_path,
+                         const std::string& path) {
+  const auto differ = [&](const std::string& pointer, const std::string& mine, const std::string& theirs) {
+    throw InputError(path + "#" + pointer, fmt::format("is '{}' here and '{}' in {}; expected shards of one run (one "
+                                                       "stepgate build, the same data sets and gate tolerances)",
+                                                       mine, theirs, first_path));
+  };
+  for (auto [key, mine, theirs] : {std::tuple{"version", &other.tool.version, &first.tool.version},
+                                   std::tuple{"compiler", &other.tool.compiler, &first.tool.compiler},
+                                   std::tuple{"build", &other.tool.build, &first.tool.build}})
+    if (*mine != *theirs) differ(std::string("/tool/") + key, *mine, *theirs);
+  if (const auto a = to_json(other.gate).dump(), b = to_json(first.gate).dump(); a != b) differ("/gate", a, b);
+  for (std::size_t i = 0; i < other.datasets.size(); ++i)
+    for (const DatasetInfo& d : first.datasets)
+      if (d.name == other.datasets[i].name && d.sha256 != other.datasets[i].sha256)
+        differ(fmt::format("/datasets/{}/sha256", i), other.datasets[i].sha256, d.sha256);
+}
+
+}  // namespace
 
 Results merge_shards(std::vector<Results> shards, const std::vector<std::string>& paths) {
   if (shards.empty()) throw InputError("command line", "merge needs at least one results file");
@@ -35,6 +61,7 @@ Results merge_shards(std::vector<Results> shards, const std::vector<std::string>
       throw InputError(paths[i], fmt::format("a shard of another suite file ('{}', sha256 {} against '{}', {})",
                                              shards[i].suite.name, shards[i].suite.sha256, shards[0].suite.name,
                                              shards[0].suite.sha256));
+    refuse_mixed_shards(shards[0], shards[i], paths[0], paths[i]);
     if (shards[i].plan_cases != shards[0].plan_cases)
       throw InputError(paths[i] + "#/plan_cases", "lists another plan than the first shard's; expected shards of one run");
     if (index_of_shard[static_cast<std::size_t>(k - 1)] >= 0)

@@ -15,6 +15,7 @@
 #include "stepgate/run/command_runner.hpp"
 #include "stepgate/search/case_search.hpp"
 #include "stepgate/search/verify.hpp"
+#include "stepgate/core/error.hpp"
 #include "stepgate/sweep/journal.hpp"
 #include "stepgate/sweep/prepare.hpp"
 
@@ -89,6 +90,10 @@ CaseResult run_case(const Suite& suite, const PlannedCase& c, const PreparedProb
       r.summary.pinned = c.pinned;
       take(runner ? search_case_with(runner, nullptr, in, on_batch) : search_case(*problem, in, on_batch));
     }
+  } catch (const InputError&) {
+    throw;  // bad input (a journal of another plan) ends the whole run with exit 2, not one case
+  } catch (const JournalWriteError&) {
+    throw;  // a full disk ends the whole run at once (exit 3), not one case
   } catch (const std::exception& e) {
     r.error = e.what();
   }

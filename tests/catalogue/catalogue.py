@@ -248,11 +248,18 @@ def limits():
     resource.setrlimit(resource.RLIMIT_CORE, (0, 0))
 
 
-def run_binary(argv, cwd, timeout=120, env=None):
-    """Runs stepgate; returns (exit code or CRASH-signal, stdout, stderr, seconds, timed_out)."""
+def run_binary(argv, cwd, timeout=120, env=None, fsize=None):
+    """Runs stepgate; returns (exit code or CRASH-signal, stdout, stderr, seconds, timed_out).
+    fsize: a file size limit in bytes; a write past it fails with EFBIG (SIGXFSZ ignored), as
+    on a full disk."""
+    def setup():
+        limits()
+        if fsize is not None:
+            signal.signal(signal.SIGXFSZ, signal.SIG_IGN)
+            resource.setrlimit(resource.RLIMIT_FSIZE, (fsize, fsize))
     start = time.monotonic()
     proc = subprocess.Popen([BIN] + list(argv), cwd=cwd, stdin=subprocess.DEVNULL,
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, preexec_fn=limits,
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, preexec_fn=setup,
                             env=None if env is None else {**os.environ, **env})
     timed_out = False
     try:
@@ -365,7 +372,7 @@ class Cache:
 class Entry:
     def __init__(self, name, argv, code, err=(), err_not=(), files=None, setup=None, check=None,
                  allow=(), allow_on_error=(), max_seconds=None, timeout=60, skip=None, watch=(),
-                 note="", env=None, finishes_commit=False):
+                 note="", env=None, finishes_commit=False, fsize=None):
         self.name, self.argv, self.code = name, argv, code
         self.err, self.err_not = list(err), list(err_not)
         self.files = files            # dict, or callable(ctx) -> dict
@@ -379,6 +386,7 @@ class Entry:
         # The command is expected to finish an interrupted commit: the staged files and the
         # manifest it leaves may go (renamed into place or removed); none may be added.
         self.finishes_commit = finishes_commit
+        self.fsize = fsize            # bytes: RLIMIT_FSIZE (a full disk, as writes see it), or None
 
 
 class Ctx:
@@ -520,7 +528,7 @@ def run_entry(entry, cache, keep=False):
             return "FAIL", None, f"setup: {e}", [f"setup: {e}"]
         argv = entry.argv(ctx) if callable(entry.argv) else entry.argv
         before = snapshot(tmp, entry.watch)
-        code, out, err, seconds, timed_out = run_binary(argv, tmp, entry.timeout, entry.env)
+        code, out, err, seconds, timed_out = run_binary(argv, tmp, entry.timeout, entry.env, entry.fsize)
         after = snapshot(tmp, entry.watch)
         ctx.state.update(stdout=out, stderr=err, seconds=seconds)
         if timed_out:
@@ -1622,10 +1630,10 @@ def catalogue():
     add(Entry("produce-command-writes-a-bad-csv", runq, 2, err=["made.csv:2:1", "field"],
               files=produced({"argv": ["sh", "-c", "printf 'temp_dev,pressure_dev,flow_dev,valve_m,output\\n1\\n' > made.csv"]}),
               allow_on_error=["made.csv"]))
-    # A program that cannot be started at all is the tool's run-time failure (exit 3, design).
-    add(Entry("produce-program-does-not-exist", runq, 3,
-              err=["/nonexistent/prog", "cannot execute"],
-              files=produced({"argv": ["/nonexistent/prog"]})))
+    # A program that does not exist is found at validation, before any run (exit 2, its pointer).
+    add(Entry("produce-program-does-not-exist", runq, 2,
+              err=["suite.json#/datasets/plant/produce/argv/0", "/nonexistent/prog", "not an executable file"],
+              files=produced({"argv": ["/nonexistent/prog"]}), max_seconds=2))
     add(validate("produce-timeout-negative", produced({"argv": ["true"], "timeout": -1})["suite.json"],
                  ["suite.json#/datasets/plant/produce/timeout"]))
     add(validate("produce-env-not-strings", produced({"argv": ["true"], "env": {"A": 1}})["suite.json"],

@@ -6,11 +6,17 @@ Entries for the classes of defects of that campaign, added to the catalogue by c
   2. a commit killed between its renames is finished by the next reader, never read mixed;
   3. trainer and produce processes: the timeout holds, a run ends when its process exits,
      and no process started for a suite outlives it;
-  4. trainer output that breaks the protocol makes the run failed with a reason saying what.
+  4. trainer output that breaks the protocol makes the run failed with a reason saying what;
+  5. impossible values in files stepgate reads (journal, results, baseline) are refused;
+  6. merge refuses shards of different builds, data sets or gate tolerances;
+  8. names and paths: a suite named "." or "..", a Slurm task id that is not a number, a NUL in
+     an argument, a trainer that does not exist: refused before any run;
+  10. a journal write that fails (a full disk) stops the run at once, keeping what was written.
 """
 import hashlib
 import json
 import os
+import re
 import subprocess
 import time
 from pathlib import Path
@@ -382,10 +388,233 @@ def protocol_breaks(c):
     return E
 
 
+# ---------------------------------------------------------------------------------------------
+# 5. Impossible values in files stepgate reads.
+
+def impossible_values(c):
+    E = []
+    resume = ["run", "suite.json", "--out", "out", "--resume", "--quiet", "--jobs", "1"]
+
+    def journal_with(change):
+        """The tiny suite's journal with line 2's entry changed (not the last line: a torn last
+        line is dropped, not refused)."""
+        def files(ctx):
+            lines = ctx.cache.journal("tiny", c.tiny_suite())["lines"]
+            if len(lines) < 3:
+                raise C.SetupError("setup: the journal has fewer than 3 lines")
+            entry = json.loads(lines[1])
+            text = change(entry)
+            return {"suite.json": c.tiny_suite(),
+                    "out/journal.jsonl": lines[0] + (text if isinstance(text, str) else json.dumps(entry)) + "\n"
+                    + "".join(lines[2:])}
+        return files
+
+    def set_run(key, value):
+        def change(e):
+            e["run"][key] = value(e["run"]) if callable(value) else value
+        return change
+
+    def rate_of_another_lane(e):
+        e["run"]["rate"] = e["run"]["rate"] * 1.5
+
+    E.append(c.Entry("resume-journal-run-rate-differs-from-its-lane", resume, 2,
+                     err=["journal.jsonl:2", "/run/rate", "rate of its lane"],
+                     files=journal_with(rate_of_another_lane), max_seconds=5))
+    E.append(c.Entry("resume-journal-steps-far-above-the-budget", resume, 2, err=["journal.jsonl", "budget"],
+                     files=journal_with(set_run("steps", 10 ** 12)), max_seconds=5))
+    E.append(c.Entry("resume-journal-another-rng-seed", resume, 2, err=["journal.jsonl", "rng_seed"],
+                     files=journal_with(set_run("rng_seed", lambda r: (r["rng_seed"] + 1) % 2 ** 64)), max_seconds=5))
+
+    def converged_without_at(e):
+        e["run"]["outcome"] = "converged"
+        e["run"]["converged_at"] = None
+
+    E.append(c.Entry("resume-journal-converged-without-converged-at", resume, 2,
+                     err=["journal.jsonl:2", "converged_at"], files=journal_with(converged_without_at), max_seconds=5))
+    E.append(c.Entry("resume-journal-key-given-twice", resume, 2, err=["journal.jsonl:2", "second time"],
+                     files=journal_with(lambda e: json.dumps(e)[:-1] + ', "lane": 0}'), max_seconds=5))
+
+    check = ["check", "r.json", "--baseline", "base.json"]
+
+    def results_with(change, baseline_change=None):
+        def files(ctx):
+            r = json.loads(ctx.cache.tiny()["results"])
+            b = json.loads(ctx.cache.tiny()["baseline"])
+            text = change(r) if change else None
+            if baseline_change:
+                baseline_change(b)
+            return {"r.json": text if isinstance(text, str) else r, "base.json": b}
+        return files
+
+    def first_with_edge(doc):
+        for i, case in enumerate(doc["cases"]):
+            s = case.get("summary", case)
+            if s.get("edge") is not None:
+                return i, case
+        raise C.SetupError("setup: no case with an edge")
+
+    def negative_edge(b):
+        i, case = first_with_edge(b)
+        case["edge"] = -case["edge"]
+
+    E.append(c.Entry("check-baseline-with-a-negative-edge", check, 2,
+                     err=[re.compile(r"base\.json#/cases/\d+/edge"), "rate > 0"],
+                     files=results_with(None, negative_edge)))
+
+    def headroom_off(b):
+        for case in b["cases"]:
+            if case.get("headroom") is not None:
+                case["headroom"] *= 2
+                return
+        raise C.SetupError("setup: no case with a headroom")
+
+    E.append(c.Entry("check-baseline-headroom-not-edge-over-pinned", check, 2,
+                     err=[re.compile(r"base\.json#/cases/\d+/headroom"), "edge / pinned"],
+                     files=results_with(None, headroom_off)))
+
+    def precision_huge(r):
+        r["cases"][0]["summary"]["precision"] = 1e308
+
+    E.append(c.Entry("check-results-precision-1e308", check, 2,
+                     err=["r.json#/cases/0/summary/precision", "(0, 1]"], files=results_with(precision_huge)))
+
+    def ragged_off_edge(r):
+        i, case = first_with_edge(r)
+        edge = case["summary"]["edge"]
+        case["summary"]["ragged_zone"] = [edge / 2, edge * 2]
+
+    E.append(c.Entry("check-results-ragged-zone-not-starting-at-the-edge", check, 2,
+                     err=[re.compile(r"r\.json#/cases/\d+/summary/ragged_zone/0"), "starts at the edge"],
+                     files=results_with(ragged_off_edge)))
+
+    def key_twice(r):
+        return json.dumps(r)[:-1] + ', "format": "stepgate.results/2"}'
+
+    E.append(c.Entry("check-results-key-given-twice", check, 2, err=["r.json#/format", "second time"],
+                     files=results_with(key_twice)))
+
+    def every_outcome_flipped(r):
+        for case in r["cases"]:
+            for run in case["runs"]:
+                run["outcome"] = "diverged" if run["outcome"] == "converged" else "converged"
+                if run["outcome"] == "converged":
+                    run["converged_at"] = 0
+                else:
+                    run["converged_at"] = None
+
+    E.append(c.Entry("check-results-every-run-outcome-changed-under-the-same-summary", check, 2,
+                     err=[re.compile(r"r\.json#/cases/\d+/summary/(seeds/\d+/edge|pinned_outcome)")],
+                     files=results_with(every_outcome_flipped)))
+    return E
+
+
+# ---------------------------------------------------------------------------------------------
+# 6. merge of shards that are not of one run.
+
+def mixed_shards(c):
+    E = []
+    merge = ["merge", "s1/results.json", "s2/results.json", "--out", "m"]
+
+    def shards_with(change):
+        def files(ctx):
+            a, b = (json.loads(t) for t in ctx.cache.shards())
+            change(a, b)
+            return {"s1/results.json": a, "s2/results.json": b}
+        return files
+
+    def other_build(a, b):
+        b["tool"]["version"] = b["tool"]["version"] + "-other"
+
+    def other_gate(a, b):
+        b["gate"]["edge_moved"] = 0.5
+
+    def other_data(a, b):
+        # The tiny suite's data set is used by shard 2 alone: shard 1 is given the same data
+        # set with other bytes, as a shard run on a changed copy of the data would list it.
+        if not b.get("datasets"):
+            raise C.SetupError("setup: shard 2 lists no data set")
+        a["datasets"] = [dict(b["datasets"][0], sha256="0" * 64)]
+
+    for name, change, pointer in (("another-stepgate-build", other_build, "s2/results.json#/tool/version"),
+                                  ("other-gate-tolerances", other_gate, "s2/results.json#/gate"),
+                                  ("another-data-set", other_data, "s2/results.json#/datasets/0/sha256")):
+        E.append(c.Entry(f"merge-shards-of-{name}", merge, 2, err=[pointer, "s1/results.json", "one run"],
+                         files=shards_with(change)))
+    return E
+
+
+# ---------------------------------------------------------------------------------------------
+# 8. Names and paths.
+
+def names_and_paths(c):
+    E = []
+    for name in (".", ".."):
+        suite = c.quad_suite()
+        suite["name"] = name
+        E.append(c.Entry(f"suite-named-{'dot' if name == '.' else 'dotdot'}", ["run", "suite.json", "--quiet"], 2,
+                         err=["suite.json#/name", "names a folder"], files={"suite.json": suite}, max_seconds=2))
+    slurm = ["run", "suite.json", "--out", "out", "--shard", "slurm", "--quiet"]
+    for value in ("abc", "1x", "-1", ""):
+        E.append(c.Entry(f"slurm-task-id-{value or 'empty'}", slurm, 2,
+                         err=["--shard slurm", "SLURM_ARRAY_TASK_ID", "whole number"],
+                         files={"suite.json": c.quad_suite()}, max_seconds=2,
+                         env={"SLURM_ARRAY_TASK_ID": value, "SLURM_ARRAY_TASK_COUNT": "2"}))
+
+    def command_suite_with(argv=None, env=None):
+        def files(ctx):
+            s = command_suite(ctx, "trainer.py")
+            if argv is not None:
+                s["problems"][0]["command"]["argv"] = argv
+            if env is not None:
+                s["problems"][0]["command"]["env"] = env
+            return {"suite.json": s, "trainer.py": TRAINER_HEAD + "converge()\n"}
+        return files
+
+    runq = ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1"]
+    E.append(c.Entry("trainer-program-does-not-exist", runq, 2,
+                     err=["suite.json#/problems/0/command/argv/0", "not an executable file"],
+                     files=command_suite_with(argv=["/nonexistent/train", "--lr", "{rate}"]), max_seconds=2))
+    E.append(c.Entry("trainer-program-not-on-path", runq, 2,
+                     err=["suite.json#/problems/0/command/argv/0", "not on PATH"],
+                     files=command_suite_with(argv=["stepgate-no-such-trainer", "--lr", "{rate}"]), max_seconds=2))
+    E.append(c.Entry("trainer-argument-with-a-nul", runq, 2,
+                     err=["suite.json#/problems/0/command/argv/1", "NUL"],
+                     files=command_suite_with(argv=["/usr/bin/python3", "trainer.py\u0000--evil", "--lr", "{rate}"]),
+                     max_seconds=2))
+    E.append(c.Entry("trainer-env-with-a-nul", runq, 2,
+                     err=["suite.json#/problems/0/command/env/A", "NUL"],
+                     files=command_suite_with(env={"A": "x\u0000y"}), max_seconds=2))
+    return E
+
+
+# ---------------------------------------------------------------------------------------------
+# 10. A journal write that fails.
+
+def journal_write_fails(c):
+    def whole_lines_kept(ctx, code):
+        path = ctx.p("out/journal.jsonl")
+        if not path.exists():
+            return ["the journal is gone"]
+        text = path.read_text()
+        if not text.endswith("\n"):
+            return ["the journal ends in a torn line"]
+        try:
+            lines = [json.loads(line) for line in text.splitlines()]
+        except ValueError as e:
+            return [f"a journal line does not parse: {e}"]
+        return [] if len(lines) >= 2 else ["no run was kept in the journal"]
+
+    # 96 kB: the header and the first batches fit (the whole journal is about 230 kB).
+    return [c.Entry("run-journal-write-fails-disk-full", ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1"],
+                    3, err=["journal.jsonl", "File too large", "kept"], files={"suite.json": c.tiny_suite()},
+                    fsize=96 << 10, allow_on_error=["out", "out/journal.jsonl"], check=whole_lines_kept, timeout=60)]
+
+
 C = None  # the catalogue module, set by entries()
 
 
 def entries(c):
     global C
     C = c
-    return onto_inputs(c) + interrupted_commits(c) + trainer_processes(c) + protocol_breaks(c)
+    return (onto_inputs(c) + interrupted_commits(c) + trainer_processes(c) + protocol_breaks(c)
+            + impossible_values(c) + mixed_shards(c) + names_and_paths(c) + journal_write_fails(c))

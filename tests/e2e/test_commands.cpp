@@ -234,13 +234,22 @@ TEST_CASE("commands: bad command entries are exit 2 with the JSON pointer", "[co
   expect_bad(p, "#/problems/0/command", "shell");
   p = command_problem("t", "ok.py", {{"dim", 3}});
   expect_bad(p, "#/problems/0", "dim");
-  // A program that cannot be started at all is the tool's failure: exit 3, naming it.
+  // A program that does not exist is found at validation (exit 2, its pointer), before any run;
+  // so is a NUL inside an argument.
   p = command_problem("t", "ok.py");
   p["command"]["argv"] = {"/no/such/program", "--lr", "{rate}"};
-  write_json(dir / "missing.json", suite_of("missing", json::array({p}), defaults));
-  const CliResult r = e2e::stepgate("run missing.json --out m --quiet", dir.path());
-  INFO(r.out << r.err);
-  CHECK(r.exit_code == 3);
-  const json m = read_json(dir / "m" / "results.json");
-  CHECK(m["cases"][0]["error"].get<std::string>().find("cannot execute '/no/such/program'") != std::string::npos);
+  expect_bad(p, "#/problems/0/command/argv/0", "not an executable file");
+  p["command"]["argv"] = {"no-such-program-on-path", "--lr", "{rate}"};
+  expect_bad(p, "#/problems/0/command/argv/0", "not on PATH");
+  p = command_problem("t", "ok.py");
+  p["command"]["argv"][1] = std::string("ok.py\0--evil", 13);
+  expect_bad(p, "#/problems/0/command/argv/1", "NUL");
+  // A file that is not executable, likewise (the run-time failure to start, exit 3, is
+  // tests/unit/test_command_parts.cpp's).
+  const fs::path prog = dir.path() / "trainer.sh";
+  { std::ofstream(prog) << "#!/bin/sh\nexit 0\n"; }
+  fs::permissions(prog, fs::perms::owner_read | fs::perms::owner_write);
+  p = command_problem("t", "ok.py");
+  p["command"]["argv"] = {prog.string(), "--lr", "{rate}"};
+  expect_bad(p, "#/problems/0/command/argv/0", "not an executable file");
 }
