@@ -31,6 +31,7 @@ int validate_command(const Args& args) {
   if (help) return kExitPass;
   const Suite suite = load_suite(path);
   const Plan plan = make_plan(suite);
+  check_plan_memory(suite, plan, 0);
   std::cout << fmt::format("{}: valid suite '{}': {} problems, {} cases (sha256 {})\n", path, suite.name,
                            suite.problems.size(), plan.cases.size(), suite.sha256);
   return kExitPass;

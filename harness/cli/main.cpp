@@ -3,6 +3,7 @@
 
 #include <cstdio>
 #include <iostream>
+#include <new>
 #include <string>
 #include <vector>
 
@@ -71,6 +72,11 @@ int main(int argc, char** argv) {
     return kExitBadInput;
   } catch (const ToolError& e) {
     std::cerr << "stepgate: failure: " << e.what() << "\n";
+    return kExitToolFailure;
+  } catch (const std::bad_alloc&) {
+    std::cerr << "stepgate: failure: out of memory: this command needed more memory than the machine or the "
+                 "process's limits give (ulimit -v); `stepgate plan` shows what each case may run, and data sets "
+                 "can be cut with max_rows\n";
     return kExitToolFailure;
   } catch (const std::exception& e) {
     std::cerr << "stepgate: failure: " << e.what() << "\n";

@@ -222,7 +222,9 @@ CsvTable parse_csv(std::string_view text, const std::string& path_for_messages,
 }
 
 CsvTable read_csv(const std::string& path, const CsvOptions& options) {
-  const std::string content = read_text_file(path);
+  const std::string content = options.max_rows > 0
+                                  ? read_text_lines(path, options.max_rows + (options.header ? 1 : 0), options.quote)
+                                  : read_text_file(path);
   CsvTable table;
   table.path = path;
   CsvParser(content, options, table).run();

@@ -20,6 +20,9 @@ struct CsvOptions {
   /// header == false: the column names to use (their count must match the rows);
   /// empty = "col1", "col2", ...
   std::vector<std::string> column_names;
+  /// read_csv: read only the first max_rows rows of data (0 = all); the rest of the file is
+  /// never read, though it is hashed.
+  long max_rows = 0;
 };
 
 struct CsvTable {

@@ -14,7 +14,19 @@ std::string read_raw_file(const std::string& path);
 std::string read_gzip_file(const std::string& path);
 
 /// The file's content: decompressed when the name ends in ".gz", else as stored. The result
-/// holds bytes (text or binary) in a std::string.
+/// holds bytes (text or binary) in a std::string. Refused before it is read (InputError with
+/// the size and the estimate) when its content is larger than max_read_bytes(): a gzip file by
+/// the size its trailer states, and by what it expands to while it is read (a lying trailer).
 std::string read_text_file(const std::string& path);
+
+/// As read_text_file, but only up to the end of the `lines`-th line that holds more than
+/// blanks, counting only line ends outside `quote`d fields ('\0': no quoting); all of it when
+/// it has fewer. What follows is never read, so a data set's max_rows bounds memory and time.
+std::string read_text_lines(const std::string& path, long lines, char quote);
+
+/// Most bytes of one data file's content held in memory: the smaller of physical memory and
+/// the process's address-space limit, divided by 9 (the text, its values parsed into doubles,
+/// up to 4 times the text for values like "1,", and one scaled copy of those).
+std::size_t max_read_bytes();
 
 }  // namespace stepgate

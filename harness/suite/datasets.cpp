@@ -182,12 +182,21 @@ std::map<std::string, DatasetSpec> read_datasets(const Node& node, const std::st
 
 }  // namespace suite_detail
 
+namespace {
+
+CsvOptions with_max_rows(CsvOptions o, long max_rows) {
+  o.max_rows = max_rows;
+  return o;
+}
+
+}  // namespace
+
 Dataset load_dataset(const DatasetSpec& spec) {
   try {
     Dataset data;
     switch (spec.source) {
       case DatasetSpec::Source::csv:
-        data = load_csv_dataset(spec.path, spec.csv, spec.target, spec.features, spec.name);
+        data = load_csv_dataset(spec.path, with_max_rows(spec.csv, spec.max_rows), spec.target, spec.features, spec.name);
         break;
       case DatasetSpec::Source::idx:
         // load_idx_dataset applies max_rows itself, before scaling the pixels.

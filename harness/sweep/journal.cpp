@@ -18,6 +18,7 @@
 #include "stepgate/core/interrupt.hpp"
 #include "stepgate/core/json_node.hpp"
 #include "stepgate/core/json_text.hpp"
+#include "stepgate/data/sha256.hpp"
 #include "stepgate/core/run_record_json.hpp"
 
 namespace stepgate {
@@ -62,11 +63,10 @@ class CaseJournal final : public RunStore {
   std::string where() const override { return journal_.path(); }
 
   void keep(long seed_index, std::span<const double> rates, const std::vector<RunRecord>& records) override {
-    json rate_list = json::array();
-    for (double r : rates) rate_list.push_back(number_json(r, kJournalStyle));
+    const std::string digest = rates_digest(rates);
     std::string text;
     for (std::size_t lane = 0; lane < records.size(); ++lane)
-      text += json{{"case", case_}, {"seed_index", seed_index}, {"rates", rate_list}, {"lane", lane},
+      text += json{{"case", case_}, {"seed_index", seed_index}, {"batch", digest}, {"lanes", rates.size()}, {"lane", lane},
                    {"run", to_json(records[lane], style_)}}
                   .dump(-1, ' ', false, json::error_handler_t::replace) +
               "\n";
@@ -101,10 +101,22 @@ std::string differs(const json& found, const json& wanted) {
 
 }  // namespace
 
+namespace {
+
+std::string key_of(const std::string& case_id, long seed_index, std::size_t lanes, const std::string& digest) {
+  return fmt::format("{}\x1f{}\x1f{}\x1f{}", case_id, seed_index, lanes, digest);
+}
+
+}  // namespace
+
+std::string rates_digest(std::span<const double> rates) {
+  std::string text;
+  for (double r : rates) text += fmt::format("{:a};", r);
+  return sha256_hex(text);
+}
+
 std::string batch_key(const std::string& case_id, long seed_index, std::span<const double> rates) {
-  std::string key = fmt::format("{}\x1f{}", case_id, seed_index);
-  for (double r : rates) key += fmt::format("\x1f{:a}", r);
-  return key;
+  return key_of(case_id, seed_index, rates.size(), rates_digest(rates));
 }
 
 Journal::Journal(std::string path, bool resume) : path_(std::move(path)), resume_(resume) {
@@ -144,19 +156,20 @@ Journal::Journal(std::string path, bool resume) : path_(std::move(path)), resume
         const JsonField e(j, where);
         const std::string case_id = e["case"].string();
         const long seed_index = e["seed_index"].integer_as<long>();
-        std::vector<double> rates;
-        const JsonField rate_list = e["rates"];
-        for (std::size_t i = 0; i < rate_list.array_size(); ++i) rates.push_back(number_from_json(rate_list[i], kJournalStyle));
+        const std::string digest = e["batch"].string();
+        if (digest.size() != 64 || digest.find_first_not_of("0123456789abcdef") != std::string::npos)
+          e["batch"].expected("the SHA-256 of the batch's rates (64 lower-case hex digits)");
+        const long lanes = e["lanes"].integer_as<long>();
+        if (lanes < 1 || lanes > kMaxJournalLanes)
+          e["lanes"].expected(fmt::format("the number of runs in the batch, from 1 to {}", kMaxJournalLanes));
         const auto lane = e["lane"].integer_as<std::size_t>();
-        if (rates.empty() || lane >= rates.size()) e["lane"].expected("a lane of the batch's rates");
-        Partial& p = partial[batch_key(case_id, seed_index, rates)];
+        if (lane >= static_cast<std::size_t>(lanes)) e["lane"].expected(fmt::format("a lane of the batch, below {}", lanes));
+        Partial& p = partial[key_of(case_id, seed_index, static_cast<std::size_t>(lanes), digest)];
         RunRecord record = run_record_from(e["run"], kJournalStyle);
-        if (record.rate != rates[lane])
-          e["run"]["rate"].expected(fmt::format("the rate of its lane, {} (rates[{}])", rates[lane], lane));
         if (record.seed_index != seed_index) e["run"]["seed_index"].expected(fmt::format("the entry's seed_index {}", seed_index));
         const bool whole = !p.lanes.empty() && p.filled == p.lanes.size();  // a later copy changes nothing
         if (!whole) {
-          if (p.lanes.empty() || p.lanes[lane]) p.lanes.assign(rates.size(), std::nullopt), p.filled = 0;  // run again after a cut
+          if (p.lanes.empty() || p.lanes[lane]) p.lanes.assign(static_cast<std::size_t>(lanes), std::nullopt), p.filled = 0;  // run again after a cut
           p.lanes[lane] = std::move(record);
           ++p.filled;
         }

@@ -4,9 +4,12 @@
 // for the same batches in the same order (it is deterministic), finds them in the journal and
 // runs only what is missing, so the results equal an uninterrupted run's (timings aside).
 //
-// Header: {"format": "stepgate.journal/1", "suite": {name, sha256}, "tool", "shard",
+// Header: {"format": "stepgate.journal/3", "suite": {name, sha256}, "tool", "shard",
 //          "datasets": [[name, sha256], ...]}
-// Run:    {"case", "seed_index", "rates": [the batch's rates in order], "lane", "run": {...}}
+// Run:    {"case", "seed_index", "batch": SHA-256 of the batch's rates in order, "lanes": their
+//          count, "lane", "run": {...}}; the lane's rate is its run's own. The batch is named by
+//          its digest, not its rate list, so that the journal grows with the runs alone (a list
+//          on every line made it quadratic: 365 MB for 5,000 fixed rates).
 // A batch is replayed only when every lane of it is present; a torn last line (a kill while
 // writing) is dropped, and the file is cut back to the last whole line before appending.
 #pragma once
@@ -24,7 +27,9 @@
 
 namespace stepgate {
 
-inline constexpr const char* kJournalFormat = "stepgate.journal/2";
+inline constexpr const char* kJournalFormat = "stepgate.journal/3";
+/// Most lanes a journal line may claim for its batch (a batch holds one case's rates).
+inline constexpr long kMaxJournalLanes = 1'000'000;
 inline constexpr const char* kJournalFile = "journal.jsonl";
 
 /// What a journal's runs depend on: a journal is resumed only by the same suite file, tool
@@ -91,5 +96,7 @@ class Journal {
 
 /// The key of a batch: case, seed index and the rates in order (exactly, as hex floats).
 std::string batch_key(const std::string& case_id, long seed_index, std::span<const double> rates);
+/// The SHA-256 (hex) of the rates in order, each as its exact hex-float text: a batch's name.
+std::string rates_digest(std::span<const double> rates);
 
 }  // namespace stepgate

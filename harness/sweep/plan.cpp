@@ -1,10 +1,19 @@
 #include "stepgate/sweep/plan.hpp"
 
+#include <sys/resource.h>
+#include <unistd.h>
+
 #include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <numeric>
 #include <stdexcept>
+#include <thread>
+
+#include <fmt/format.h>
+
+#include "stepgate/core/error.hpp"
+#include "stepgate/core/run_record.hpp"
 
 namespace stepgate {
 
@@ -135,6 +144,33 @@ Plan shard_of(const Plan& plan, int k, int n) {
   for (std::size_t i = 0; i < plan.cases.size(); ++i)
     if (shard[i] == k) out.cases.push_back(plan.cases[i]);
   return out;
+}
+
+double max_trace_bytes(const PlannedCase& c) { return c.max_iterations * double(sizeof(TracePoint)); }
+
+void check_plan_memory(const Suite& suite, const Plan& plan, int jobs) {
+  if (plan.cases.empty()) return;
+  double available = double(::sysconf(_SC_PHYS_PAGES)) * double(::sysconf(_SC_PAGESIZE));
+  if (struct rlimit r {}; ::getrlimit(RLIMIT_AS, &r) == 0 && r.rlim_cur != RLIM_INFINITY)
+    available = std::min(available, double(r.rlim_cur));
+  std::vector<std::size_t> order(plan.cases.size());
+  std::iota(order.begin(), order.end(), std::size_t{0});
+  std::sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
+    return max_trace_bytes(plan.cases[a]) > max_trace_bytes(plan.cases[b]);
+  });
+  const std::size_t at_once = std::min<std::size_t>(order.size(), jobs > 0 ? std::size_t(jobs) : std::max(1u, std::thread::hardware_concurrency()));
+  double total = 0;
+  for (std::size_t i = 0; i < at_once; ++i) total += max_trace_bytes(plan.cases[order[i]]);
+  if (total <= 0.8 * available) return;
+  const PlannedCase& worst = plan.cases[order.front()];
+  const ProblemSpec& p = suite.problems[worst.problem];
+  const auto gib = [](double b) { return fmt::format("{:.1f} GiB", b / double(1 << 30)); };
+  throw InputError(suite.path + "#" + p.pointer,
+                   fmt::format("its runs could need {} of memory ({} for case {} alone: {} runs of up to {} iterations, "
+                               "each kept as a trace until the case ends; {} case(s) at once), more than the {} this "
+                               "machine or the process's limits allow; expected fewer rates or seeds, a smaller budget, or "
+                               "fewer --jobs", gib(total), gib(max_trace_bytes(worst)), worst.id, worst.max_runs,
+                               p.run.budget, at_once, gib(0.8 * available)));
 }
 
 }  // namespace stepgate

@@ -31,6 +31,17 @@ struct Plan {
 /// Expands the suite. Order: problems as listed, then their scalings, then optimizers.
 Plan make_plan(const Suite& suite);
 
+/// Bytes the runs of one case may hold at once at most: every iteration of every run of the
+/// case kept as a trace point until the case ends (max_iterations × 32 bytes).
+double max_trace_bytes(const PlannedCase& c);
+
+/// Refuses a plan whose runs could not be held in memory (InputError at the problem's JSON
+/// pointer, with the estimate): the `jobs` cases with the largest max_trace_bytes run at once
+/// (jobs 0: every core), and their sum must stay within 80% of the smaller of physical memory
+/// and the process's address-space limit. A suite of 20,000 fixed rates is found here, at
+/// validation, not as an allocation failure in the sweep.
+void check_plan_memory(const Suite& suite, const Plan& plan, int jobs);
+
 /// Most shards a suite is split into (--shard K/N, and what merge accepts).
 inline constexpr int kMaxShards = 10000;
 

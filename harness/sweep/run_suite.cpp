@@ -34,6 +34,7 @@ SuiteRun run_suite(const std::string& suite_path, const RunSuiteOptions& options
                                    "for this suite", run.baseline->suite.name, run.suite.name));
   }
   Plan plan = make_plan(run.suite);
+  check_plan_memory(run.suite, plan, options.jobs);
   SweepOptions sweep;
   sweep.jobs = options.jobs;
   std::vector<std::string> plan_cases;  // a shard records the whole plan's order for merge

@@ -9,6 +9,9 @@ Entries for the classes of defects of that campaign, added to the catalogue by c
   4. trainer output that breaks the protocol makes the run failed with a reason saying what;
   5. impossible values in files stepgate reads (journal, results, baseline) are refused;
   6. merge refuses shards of different builds, data sets or gate tolerances;
+  7. resources: a data file or a gzip bomb too large to hold is refused up front with the
+     estimate, max_rows bounds what is read, and a suite whose runs cannot be held in memory
+     is refused at validation;
   8. names and paths: a suite named "." or "..", a Slurm task id that is not a number, a NUL in
      an argument, a trainer that does not exist: refused before any run;
   10. a journal write that fails (a full disk) stops the run at once, keeping what was written.
@@ -544,6 +547,73 @@ def mixed_shards(c):
 
 
 # ---------------------------------------------------------------------------------------------
+# 7. Resources.
+
+def gzip_of_zeros(gib, trailer=None):
+    import zlib
+    c = zlib.compressobj(9, zlib.DEFLATED, 31)
+    block = b"\0" * (1 << 24)
+    out = [c.compress(block) for _ in range(int(gib * 64))] + [c.flush()]
+    data = b"".join(out)
+    if trailer is not None:  # a trailer that lies about the size
+        data = data[:-4] + int(trailer).to_bytes(4, "little")
+    return data
+
+
+def resources(c):
+    E = []
+    under_asan = lambda: "the address space is not capped under AddressSanitizer" if "ASAN_OPTIONS" in os.environ else None
+    runq = ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1"]
+
+    def plant_with_csv(csv_name):
+        s = c.plant_suite()
+        s["datasets"]["plant"]["csv"] = csv_name
+        return s
+
+    def sparse(size):
+        def setup(ctx):
+            with open(ctx.p("big.csv"), "wb") as f:
+                f.write(c.plant_csv().encode() if isinstance(c.plant_csv(), str) else c.plant_csv())
+                f.truncate(size)
+        return setup
+
+    E.append(c.Entry("data-file-of-4-gib", runq, 2, err=["big.csv", "GiB", "max_rows"],
+                     files={"suite.json": plant_with_csv("big.csv")}, setup=sparse(4 << 30), max_seconds=3))
+    E.append(c.Entry("data-gzip-that-states-1-gib", runq, 2, err=["big.csv.gz", "expands to", "GiB"],
+                     files=lambda ctx: {"suite.json": plant_with_csv("big.csv.gz"), "big.csv.gz": gzip_of_zeros(1)},
+                     skip=under_asan, max_seconds=5))
+    E.append(c.Entry("data-gzip-bomb-with-a-lying-trailer", runq, 2, err=["big.csv.gz", "expands to more than"],
+                     files=lambda ctx: {"suite.json": plant_with_csv("big.csv.gz"),
+                                        "big.csv.gz": gzip_of_zeros(1, trailer=1000)},
+                     skip=under_asan, max_seconds=20, timeout=60))
+
+    def max_rows_then_hole(ctx):
+        # 1,000 rows of data, then a 3 GiB hole: with max_rows 1000 only the rows are read.
+        text = c.plant_csv()
+        header, rows = text.split("\n", 1)[0], [l for l in text.split("\n")[1:] if l.strip()]
+        body = "\n".join([header] + [rows[i % len(rows)] for i in range(1000)]) + "\n"
+        with open(ctx.p("big.csv"), "wb") as f:
+            f.write(body.encode())
+            f.truncate(3 << 30)
+
+    def limited(ctx):
+        s = plant_with_csv("big.csv")
+        s["datasets"]["plant"]["max_rows"] = 1000
+        return {"suite.json": s}
+
+    E.append(c.Entry("max-rows-bounds-what-is-read", runq, (0, 1), files=limited, setup=max_rows_then_hole,
+                     allow=["out", "out/*"], max_seconds=30, timeout=120,
+                     check=lambda ctx, code: [] if json.loads(ctx.p("out/results.json").read_text())["datasets"][0]["rows"]
+                     == 1000 else ["the data set does not have 1000 rows"]))
+
+    many = c.quad_suite()
+    many["defaults"] = {"seeds": 1, "budget": 10000, "rates": {"grid": None, "fixed": [1e-3 * (1 + i / 1e5) for i in range(100000)]}}
+    E.append(c.Entry("suite-of-100000-fixed-rates", ["validate", "suite.json"], 2,
+                     err=["suite.json#/problems/0", "GiB", "fewer rates"], files={"suite.json": many}, max_seconds=5))
+    return E
+
+
+# ---------------------------------------------------------------------------------------------
 # 8. Names and paths.
 
 def names_and_paths(c):
@@ -617,4 +687,4 @@ def entries(c):
     global C
     C = c
     return (onto_inputs(c) + interrupted_commits(c) + trainer_processes(c) + protocol_breaks(c)
-            + impossible_values(c) + mixed_shards(c) + names_and_paths(c) + journal_write_fails(c))
+            + impossible_values(c) + mixed_shards(c) + resources(c) + names_and_paths(c) + journal_write_fails(c))
