@@ -125,10 +125,17 @@ int run_command(const Args& args) {
     run = run_suite(suite_path, options);
   } catch (const SuiteInterrupted& stop) {
     line.finish();
-    std::cerr << fmt::format("stepgate: stopped: {} finished runs are kept in {}; nothing else was written.\n"
-                             "  continue with: stepgate run {} --out {} --resume{}\n",
-                             stop.runs_kept, stop.journal, suite_path, stop.out_dir,
-                             options.shard ? fmt::format(" --shard {}", p.vm["shard"].as<std::string>()) : "");
+    std::cerr << fmt::format("stepgate: stopped: {} finished runs are kept in {}; nothing else was written.\n",
+                             stop.runs_kept, visible_line(stop.journal));
+    // The hint is pasted into a shell: every word quoted for it.
+    const auto suite_word = shell_word(suite_path), out_word = shell_word(stop.out_dir);
+    const auto shard_word = options.shard ? shell_word(p.vm["shard"].as<std::string>()) : std::optional<std::string>("");
+    if (suite_word && out_word && shard_word)
+      std::cerr << fmt::format("  continue with: stepgate run {} --out {} --resume{}\n", *suite_word, *out_word,
+                               options.shard ? " --shard " + *shard_word : "");
+    else
+      std::cerr << "  continue with `stepgate run` on the same suite, --out and --shard, adding --resume (a path "
+                   "holds control characters, so no line to paste is shown)\n";
     return kExitInterrupted;
   }
   line.finish();

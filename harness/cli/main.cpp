@@ -9,6 +9,7 @@
 
 #include "stepgate/cli/commands.hpp"
 #include "stepgate/core/input_file.hpp"
+#include "stepgate/core/quote_text.hpp"
 #include "stepgate/core/visible_output.hpp"
 #include "stepgate/core/error.hpp"
 
@@ -68,7 +69,8 @@ int main(int argc, char** argv) {
     if (command == "merge") return cli::merge_command(args);
     throw InputError("command line", fmt::format("unknown command '{}'\n{}", command, kUsage));
   } catch (const InputError& e) {
-    std::cerr << "stepgate: error: " << e.text() << "\n";
+    // The place (a path, a name from a file) on one line: it cannot forge a line of its own.
+    std::cerr << "stepgate: error: " << (e.where().empty() ? "" : visible_line(e.where()) + ": ") << e.message() << "\n";
     return kExitBadInput;
   } catch (const ToolError& e) {
     std::cerr << "stepgate: failure: " << e.what() << "\n";

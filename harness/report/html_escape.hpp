@@ -8,7 +8,8 @@ namespace stepgate {
 
 /// Replaces & < > " ' by their character references (&amp; &lt; &gt; &quot; &#39;), so the
 /// result is safe both as element text and inside a quoted attribute value. Control bytes other
-/// than tab and newline become the visible text \xNN; other bytes (UTF-8 included) pass unchanged.
+/// than tab and newline become the visible text \xNN; invalid UTF-8 becomes U+FFFD; valid UTF-8
+/// passes unchanged.
 std::string html_escape(std::string_view s);
 
 }  // namespace stepgate

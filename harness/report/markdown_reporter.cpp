@@ -14,6 +14,7 @@
 #include "stepgate/report/failures.hpp"
 #include "stepgate/report/format.hpp"
 #include "stepgate/report/reporter.hpp"
+#include "stepgate/report/text_safety.hpp"
 
 namespace stepgate {
 
@@ -30,30 +31,11 @@ std::string edge_with_bracket(double edge, double lo, double hi) {
   return fmt::format("{} [{}, {}]", number(edge), number(lo), number(hi));
 }
 
-// Suite strings on one line (a newline would end a table row or a list item), with & and <
-// as character references so that a name cannot open raw HTML (or an entity) in the comment,
-// and other control bytes as visible \\xNN.
-std::string text(const std::string& s) {
-  std::string out;
-  out.reserve(s.size());
-  for (std::size_t i = 0; i < s.size(); ++i) {
-    if (s[i] == '\r' && i + 1 < s.size() && s[i + 1] == '\n') continue;
-    if (s[i] == '\n' || s[i] == '\r') out += ' ';
-    else if (s[i] == '&') out += "&amp;";
-    else if (s[i] == '<') out += "&lt;";
-    else append_visible(out, s[i]);  // any other control byte as visible \xNN
-  }
-  return out;
-}
-// Table cell content: as text, and a pipe escaped so that it does not split the cell.
-std::string cell(const std::string& s) {
-  std::string out;
-  for (char ch : text(s)) {
-    if (ch == '|') out += '\\';
-    out += ch;
-  }
-  return out;
-}
+// Suite strings and names as inert text on one line (report/text_safety.hpp): no table row
+// cut short, no raw HTML, no link or emphasis from a name. In a table cell the pipe is escaped
+// too (markdown_text escapes it everywhere).
+std::string text(const std::string& s) { return markdown_text(s); }
+std::string cell(const std::string& s) { return markdown_text(s); }
 // Inside a code span (hashes): no references there, only one line.
 std::string code(const std::string& s) {
   std::string out;

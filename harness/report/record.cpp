@@ -6,6 +6,7 @@
 
 #include "stepgate/report/format.hpp"
 #include "stepgate/report/reporter.hpp"
+#include "stepgate/report/text_safety.hpp"
 
 namespace stepgate {
 
@@ -16,26 +17,11 @@ constexpr const char* kHistory = "## History";
 
 std::string number(double v) { return format_number(v); }
 
-// Suite strings on one line (a newline could forge a heading such as "## History"), with & and
-// < as character references (no raw HTML from a suite), and pipes escaped in table cells.
-std::string one_line(const std::string& s) {
-  std::string out;
-  for (char ch : s) {
-    if (ch == '\n' || ch == '\r') out += ' ';
-    else if (ch == '&') out += "&amp;";
-    else if (ch == '<') out += "&lt;";
-    else out += ch;
-  }
-  return out;
-}
-std::string cell(const std::string& s) {
-  std::string out;
-  for (char ch : one_line(s)) {
-    if (ch == '|') out += '\\';
-    out += ch;
-  }
-  return out;
-}
+// Suite strings on one line (a newline could forge a heading such as "## History") and inert
+// (report/text_safety.hpp: no raw HTML, no link or emphasis, no raw control byte, pipes escaped
+// for table cells).
+std::string one_line(const std::string& s) { return markdown_text(s); }
+std::string cell(const std::string& s) { return markdown_text(s); }
 std::string or_none(const std::string& s) { return s.empty() ? kNone : s; }
 
 std::string edge_cell(const BaselineCase& b) {

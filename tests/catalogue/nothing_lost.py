@@ -14,6 +14,9 @@ Entries for the classes of defects of that campaign, added to the catalogue by c
      is refused at validation;
   8. names and paths: a suite named "." or "..", a Slurm task id that is not a number, a NUL in
      an argument, a trainer that does not exist: refused before any run;
+  9. escaping: a path with a line break stays on its line, the resume hint is quoted for a
+     POSIX shell, names are inert in report.md and the record, invalid UTF-8 from a trainer
+     never reaches report.html;
   10. a journal write that fails (a full disk) stops the run at once, keeping what was written.
 """
 import hashlib
@@ -658,6 +661,82 @@ def names_and_paths(c):
 
 
 # ---------------------------------------------------------------------------------------------
+# 9. Escaping.
+
+def escaping(c):
+    E = []
+    # A missing suite whose name holds a line break: the message stays one line.
+    E.append(c.Entry("validate-path-with-a-line-break-stays-on-its-line", ["validate", "a\nstepgate: error: forged.json"],
+                     2, err=["\\x0a"], check=lambda ctx, code: [] if ctx.state["stderr"].count("\n") == 1 else
+                     [f"the message spans {ctx.state['stderr'].count(chr(10))} lines"]))
+
+    hostile_suite, hostile_out = "s $(touch pwned) `touch pwned2`.json", "o'ut dir"
+
+    def resume_hint_is_quoted(ctx, code):
+        proc = subprocess.Popen([C.BIN, "run", hostile_suite, "--out", hostile_out, "--jobs", "1"], cwd=ctx.tmp,
+                                stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+        for _ in range(200):  # until the sweep has started (its journal exists); it takes about a second
+            if (ctx.p(hostile_out) / "journal.jsonl").exists():
+                break
+            time.sleep(0.005)
+        proc.send_signal(2)  # Ctrl-C
+        _, err = proc.communicate(timeout=60)
+        err = err.decode("utf-8", "replace")
+        hint = [line for line in err.splitlines() if "continue with: stepgate run" in line]
+        if proc.returncode != 130 or not hint:
+            return [f"no resume hint after Ctrl-C (exit {proc.returncode}): {err.strip()[:200]}"]
+        # Paste it into a shell with `stepgate` standing for a program that prints its arguments.
+        line = hint[0].split("continue with: ", 1)[1].replace("stepgate ", "printf '%s\\n' ", 1)
+        shown = subprocess.run(["sh", "-c", line], cwd=ctx.tmp, capture_output=True, text=True).stdout.splitlines()
+        problems = []
+        if shown != ["run", hostile_suite, "--out", hostile_out, "--resume"]:
+            problems.append(f"pasting the hint gives the arguments {shown}")
+        if (ctx.p("pwned")).exists() or (ctx.p("pwned2")).exists():
+            problems.append("pasting the hint ran a command substitution")
+        return problems
+
+    E.append(c.Entry("resume-hint-is-quoted-for-the-shell", ["validate", hostile_suite], 0,
+                     files={hostile_suite: c.slow_suite()}, check=resume_hint_is_quoted,
+                     allow=[hostile_out.replace("'", "?"), hostile_out.replace("'", "?") + "/*"], timeout=120))
+
+    markdown = "[click](http://evil.example) *em* _u_ `code` <b>x</b> \x1b[31mred"
+
+    def hostile_names(ctx):
+        r = json.loads(ctx.cache.tiny()["results"])
+        r["suite"]["path"] = markdown
+        return {"r.json": r}
+
+    def record_is_inert(ctx, code):
+        text = ctx.p("rec.md").read_text(errors="replace")
+        problems = []
+        if "\x1b" in text:
+            problems.append("a raw ESC in the record")
+        if "[click](http" in text or "<b>" in text or " *em* " in text:
+            problems.append("live Markdown or HTML from a name in the record")
+        return problems
+
+    E.append(c.Entry("accept-record-names-are-inert-markdown", ["accept", "r.json", "--baseline", "b.json", "--record", "rec.md"],
+                     0, files=hostile_names, check=record_is_inert, allow=["b.json", "rec.md"]))
+
+    def trainer_prints_invalid_utf8(ctx):
+        s = command_suite(ctx, "trainer.py")
+        return {"suite.json": s, "trainer.py": TRAINER_HEAD + "say(0, 0.5)\nsys.stderr.buffer.write(b'bad \\xff\\xfe \\xc3( bytes\\n')\nsys.exit(1)\n"}
+
+    def html_is_utf8(ctx, code):
+        data = ctx.p("out/report.html").read_bytes()
+        try:
+            data.decode("utf-8")
+        except UnicodeDecodeError as e:
+            return [f"report.html is not valid UTF-8: {e}"]
+        return [] if "bad" in data.decode() else ["the trainer's stderr is not in report.html"]
+
+    E.append(c.Entry("report-html-gets-no-invalid-utf8-from-a-trainer", ["run", "suite.json", "--out", "out", "--quiet", "--jobs", "1"],
+                     (0, 1, 3), files=trainer_prints_invalid_utf8, check=html_is_utf8, allow=["out", "out/*", "pids", "pids/*"],
+                     timeout=60))
+    return E
+
+
+# ---------------------------------------------------------------------------------------------
 # 10. A journal write that fails.
 
 def journal_write_fails(c):
@@ -687,4 +766,4 @@ def entries(c):
     global C
     C = c
     return (onto_inputs(c) + interrupted_commits(c) + trainer_processes(c) + protocol_breaks(c)
-            + impossible_values(c) + mixed_shards(c) + resources(c) + names_and_paths(c) + journal_write_fails(c))
+            + impossible_values(c) + mixed_shards(c) + resources(c) + names_and_paths(c) + escaping(c) + journal_write_fails(c))
