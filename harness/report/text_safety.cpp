@@ -45,7 +45,7 @@ std::string valid_utf8(std::string_view s) {
 
 std::string markdown_text(std::string_view raw) {
   const std::string s = valid_utf8(raw);
-  static constexpr std::string_view kSyntax = "\\`*_[]()!~#|";
+  static constexpr std::string_view kSyntax = "\\`*_[]~|";
   std::string out;
   out.reserve(s.size() + s.size() / 8);
   for (std::size_t i = 0; i < s.size(); ++i) {

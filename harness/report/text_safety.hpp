@@ -12,8 +12,10 @@ std::string valid_utf8(std::string_view s);
 
 /// Markdown text on one line that renders as exactly these characters: line breaks become
 /// spaces, & < > become character references (no raw HTML), the punctuation Markdown reads as
-/// syntax (\ ` * _ [ ] ( ) ! ~ # |) is escaped with a backslash (no link, emphasis, code span
-/// or table cell break from a name), other control bytes show as \xNN, invalid UTF-8 as U+FFFD.
+/// syntax mid-line (\ ` * _ [ ] ~ |) is escaped with a backslash (no link, image, emphasis,
+/// strike-through, code span or table cell break from a name; a heading or list needs its mark at
+/// the start of a line, where no name is written), other control bytes show as \xNN, invalid
+/// UTF-8 as U+FFFD.
 std::string markdown_text(std::string_view s);
 
 }  // namespace stepgate

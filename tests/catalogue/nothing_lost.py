@@ -424,7 +424,7 @@ def impossible_values(c):
         e["run"]["rate"] = e["run"]["rate"] * 1.5
 
     E.append(c.Entry("resume-journal-run-rate-differs-from-its-lane", resume, 2,
-                     err=["journal.jsonl:2", "/run/rate", "rate of its lane"],
+                     err=["journal.jsonl", "rate", "where the plan asks for"],
                      files=journal_with(rate_of_another_lane), max_seconds=5))
     E.append(c.Entry("resume-journal-steps-far-above-the-budget", resume, 2, err=["journal.jsonl", "budget"],
                      files=journal_with(set_run("steps", 10 ** 12)), max_seconds=5))

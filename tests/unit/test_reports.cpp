@@ -156,20 +156,20 @@ int cell_pipes(const std::string& row) {
   return n;
 }
 
-// How the reports write a suite string: & and < as references, and in a table cell | as \|.
+// How the reports write a suite string (README: names are inert Markdown): & < > as references,
+// and the characters Markdown reads as syntax mid-line backslash-escaped, | among them.
 std::string md_text(const std::string& s) {
   std::string out;
-  for (char ch : s) out += ch == '&' ? "&amp;" : ch == '<' ? "&lt;" : std::string(1, ch);
-  return out;
-}
-std::string escaped_cell(const std::string& s) {
-  std::string out;
-  for (char ch : md_text(s)) {
-    if (ch == '|') out += '\\';
-    out += ch;
+  for (char ch : s) {
+    if (ch == '&') out += "&amp;";
+    else if (ch == '<') out += "&lt;";
+    else if (ch == '>') out += "&gt;";
+    else if (std::string_view("\\`*_[]~|").find(ch) != std::string_view::npos) out += '\\', out += ch;
+    else out += ch;
   }
   return out;
 }
+std::string escaped_cell(const std::string& s) { return md_text(s); }
 
 std::string render(const Reporter& rep, const Results& r, const Baseline* b, const GateReport& g) {
   return rep.render(ReportInput{r, b, g});
@@ -239,14 +239,14 @@ TEST_CASE("reports: Markdown puts the verdict first and details only warn and fa
 
   const std::string details = section(md, "### Cases with findings", "### All cases");
   CHECK(details.find(kPassId) == std::string::npos);
-  CHECK(details.find("#### fail: " + kPipeId) != std::string::npos);
+  CHECK(details.find("#### fail: " + md_text(kPipeId)) != std::string::npos);
   CHECK(details.find("#### fail: " + md_text(kRefId)) != std::string::npos);
   // Every warn and fail finding appears with its severity, rule and message; data both hashes.
   for (const Finding& f : g.findings) {
     const std::string line = "- **" + std::string(to_string(f.severity)) + "** `" + std::string(to_string(f.rule)) + "`: " + md_text(f.message);
     CHECK((details.find(line) != std::string::npos) == (f.severity != Severity::pass));
   }
-  const std::string moved = section(details, "#### fail: " + kPipeId, "#### fail: " + md_text(kRefId));
+  const std::string moved = section(details, "#### fail: " + md_text(kPipeId), "#### fail: " + md_text(kRefId));
   CHECK(moved.find("data sha256 baseline: `" + std::string(64, 'b') + "`") != std::string::npos);
   CHECK(moved.find("data sha256 current:  `" + std::string(64, 'c') + "`") != std::string::npos);
   CHECK(moved.find("| edge [bracket] | 0.5 [0.5, 0.505] | 0.25 [0.25, 0.2525] |") != std::string::npos);
