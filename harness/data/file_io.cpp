@@ -130,6 +130,24 @@ std::string read_text_lines(const std::string& path, long lines, char quote) {
   return content;
 }
 
+std::optional<std::size_t> stated_content_size(const std::string& path) {
+  struct stat st {};
+  if (::stat(path.c_str(), &st) != 0 || !S_ISREG(st.st_mode)) return std::nullopt;
+  if (!ends_with(path, ".gz")) return static_cast<std::size_t>(st.st_size);
+  if (st.st_size < 18) return std::nullopt;  // shorter than a gzip header and trailer
+  return gzip_stated_size(path);
+}
+
+std::string read_text_prefix(const std::string& path, std::size_t bytes) {
+  std::string content;
+  if (bytes == 0) return content;
+  read_blocks(path, [&](const char* data, std::size_t n) {
+    content.append(data, std::min(n, bytes - content.size()));
+    return content.size() < bytes;
+  });
+  return content;
+}
+
 std::string read_raw_file(const std::string& path) { return read_input_file(path); }
 
 std::string read_gzip_file(const std::string& path) {

@@ -2,6 +2,8 @@
 // data shipped compressed (sklearn's diabetes_data_raw.csv.gz, MNIST-style *.idx.gz) reads
 // like any other file. Hashing the stored bytes is sha256_file's job (data/sha256.hpp).
 #pragma once
+#include <cstddef>
+#include <optional>
 #include <string>
 
 namespace stepgate {
@@ -23,6 +25,14 @@ std::string read_text_file(const std::string& path);
 /// blanks, counting only line ends outside `quote`d fields ('\0': no quoting); all of it when
 /// it has fewer. What follows is never read, so a data set's max_rows bounds memory and time.
 std::string read_text_lines(const std::string& path, long lines, char quote);
+
+/// As read_text_file, but only the first `bytes` bytes of the content (fewer when it is
+/// shorter); what follows is never read or decompressed.
+std::string read_text_prefix(const std::string& path, std::size_t bytes);
+
+/// The content's size without reading it: a plain file's size, or what a gzip file's trailer
+/// states (the size mod 2^32, as gzip keeps it). nullopt when it cannot be told.
+std::optional<std::size_t> stated_content_size(const std::string& path);
 
 /// Most bytes of one data file's content held in memory: the smaller of physical memory and
 /// the process's address-space limit, divided by 9 (the text, its values parsed into doubles,

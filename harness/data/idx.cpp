@@ -1,5 +1,6 @@
 #include "stepgate/data/idx.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 
@@ -28,8 +29,9 @@ std::string hex32(std::uint32_t v) {
 
 }  // namespace
 
-IdxArray read_idx(const std::string& path, int expected_dims) {
-  std::string bytes = read_text_file(path);
+IdxArray read_idx(const std::string& path, int expected_dims, long max_items) {
+  const std::size_t header_bytes = 4 + 4 * static_cast<std::size_t>(expected_dims);
+  std::string bytes = max_items > 0 ? read_text_prefix(path, header_bytes) : read_text_file(path);
   const auto expected_magic = static_cast<std::uint32_t>(0x0800 | expected_dims);
   const std::string what = expected_dims == 1   ? "a 1-D unsigned-byte array (labels)"
                            : expected_dims == 3 ? "a 3-D unsigned-byte array (images)"
@@ -55,6 +57,37 @@ IdxArray read_idx(const std::string& path, int expected_dims) {
     array.dims.push_back(dim);
     overflow = overflow || __builtin_mul_overflow(count, static_cast<std::size_t>(dim), &count);
   }
+  if (max_items > 0 && !overflow && !array.dims.empty() && array.dims[0] > 0) {
+    // Only the items wanted: the header's count stays, the values are the first max_items.
+    // The file's size is checked without reading it: a plain file's from the file system, a
+    // gzip file's from its trailer (mod 2^32).
+    if (const auto stated = stated_content_size(path)) {
+      const std::size_t whole = header_size + count;
+      const bool gz = path.size() > 3 && path.compare(path.size() - 3, 3, ".gz") == 0;
+      if (gz && (*stated & 0xffffffffu) != (whole & 0xffffffffu))
+        throw InputError(path, "its gzip trailer gives the content as " + std::to_string(*stated) + " bytes; the "
+                               "dimensions say " + std::to_string(whole) + " (a truncated or damaged gzip file?)");
+      if (!gz && *stated < whole)
+        throw InputError(at_byte(path, *stated), "found the end of the file after " +
+                                                     std::to_string(*stated - std::min(*stated, header_size)) +
+                                                     " data bytes; expected " + std::to_string(count) +
+                                                     " as the dimensions say (truncated file?)");
+      if (!gz && *stated > whole)
+        throw InputError(at_byte(path, whole), "found " + std::to_string(*stated - whole) +
+                                                   " bytes after the data; expected the file to end there");
+    }
+    const std::size_t item = count / array.dims[0];
+    const std::size_t wanted = std::min<std::size_t>(array.dims[0], static_cast<std::size_t>(max_items));
+    bytes = read_text_prefix(path, header_size + wanted * item);
+    if (bytes.size() < header_size + wanted * item)
+      throw InputError(at_byte(path, bytes.size()),
+                       "found the end of the file after " + std::to_string(bytes.size() - header_size) +
+                           " data bytes; expected at least " + std::to_string(wanted * item) + " for the first " +
+                           std::to_string(wanted) + " items (truncated file?)");
+    array.first = header_size;
+    array.bytes = std::move(bytes);
+    return array;
+  }
   const std::size_t available = bytes.size() - header_size;
   if (overflow || count > available)
     throw InputError(at_byte(path, bytes.size()),
@@ -79,8 +112,8 @@ Dataset load_idx_dataset(const std::string& images_path, const std::string& labe
   if (!std::isfinite(pixel_scale) || pixel_scale == 0.0)
     throw InputError(images_path, "found a pixel scale that is zero or not finite; expected a "
                                   "finite non-zero factor");
-  const IdxArray images = read_idx(images_path, 3);
-  const IdxArray labels = read_idx(labels_path, 1);
+  const IdxArray images = read_idx(images_path, 3, max_rows);
+  const IdxArray labels = read_idx(labels_path, 1, max_rows);
   if (images.dims[0] != labels.dims[0])
     throw InputError(at_byte(labels_path, 4),
                      "found " + std::to_string(labels.dims[0]) + " labels; expected " +
@@ -111,7 +144,7 @@ Dataset load_idx_dataset(const std::string& images_path, const std::string& labe
   data.target_file = labels_path;
   data.target_first_byte = 8;  // after the magic number and the one dimension
   data.map = FeatureMap::identity(d);
-  data.sha256 = sha256_hex(read_raw_file(images_path) + read_raw_file(labels_path));
+  data.sha256 = sha256_files({images_path, labels_path});  // streamed: neither file held again
   return data;
 }
 

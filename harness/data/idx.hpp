@@ -23,12 +23,14 @@ struct IdxArray {
 };
 
 /// Reads an unsigned-byte IDX array whose magic must be 0x0000 08 `expected_dims`.
-/// Errors: wrong magic, truncated header or data, bytes after the data.
-IdxArray read_idx(const std::string& path, int expected_dims);
+/// Errors: wrong magic, truncated header or data, bytes after the data. max_items > 0 reads
+/// only the header and the first max_items items (along the first dimension; `dims` still
+/// says the file's count): the rest is never read or decompressed, nor checked.
+IdxArray read_idx(const std::string& path, int expected_dims, long max_items = 0);
 
 /// Images and labels as a Dataset: X(i, r*cols + c) = pixel(i, r, c) * pixel_scale (default
 /// 1/255 maps bytes to [0, 1]), y(i) = label (a class id 0..255). max_rows > 0 keeps the first
-/// max_rows samples (0 = all). Features are named "px_R_C" (0-based row, column), the target
+/// max_rows samples (0 = all), reading no further into either file. Features are named "px_R_C" (0-based row, column), the target
 /// "label". sha256 = SHA-256 of the images file's stored bytes followed by the labels file's.
 /// Errors: as read_idx, image and label counts that differ, max_rows < 0.
 Dataset load_idx_dataset(const std::string& images_path, const std::string& labels_path,

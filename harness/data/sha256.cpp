@@ -41,19 +41,23 @@ std::string sha256_hex(std::string_view bytes) {
   return to_hex(digest, length);
 }
 
-std::string sha256_file(const std::string& path) {
-  remember_input(path);
-  std::unique_ptr<std::FILE, FileClose> file(std::fopen(path.c_str(), "rb"));
-  if (!file) throw InputError(path, std::string("cannot open the file: ") + std::strerror(errno));
+std::string sha256_file(const std::string& path) { return sha256_files({path}); }
+
+std::string sha256_files(const std::vector<std::string>& paths) {
   std::unique_ptr<EVP_MD_CTX, MdCtxFree> ctx(EVP_MD_CTX_new());
   if (!ctx || EVP_DigestInit_ex(ctx.get(), EVP_sha256(), nullptr) != 1)
     throw ToolError("OpenSSL EVP_DigestInit_ex(SHA-256) failed");
   std::string block(1 << 16, '\0');
-  std::size_t got;
-  while ((got = std::fread(block.data(), 1, block.size(), file.get())) > 0)
-    if (EVP_DigestUpdate(ctx.get(), block.data(), got) != 1)
-      throw ToolError("OpenSSL EVP_DigestUpdate failed");
-  if (std::ferror(file.get())) throw InputError(path, "cannot read the file (I/O error)");
+  for (const std::string& path : paths) {
+    remember_input(path);
+    std::unique_ptr<std::FILE, FileClose> file(std::fopen(path.c_str(), "rb"));
+    if (!file) throw InputError(path, std::string("cannot open the file: ") + std::strerror(errno));
+    std::size_t got;
+    while ((got = std::fread(block.data(), 1, block.size(), file.get())) > 0)
+      if (EVP_DigestUpdate(ctx.get(), block.data(), got) != 1)
+        throw ToolError("OpenSSL EVP_DigestUpdate failed");
+    if (std::ferror(file.get())) throw InputError(path, "cannot read the file (I/O error)");
+  }
   unsigned char digest[EVP_MAX_MD_SIZE];
   unsigned int length = 0;
   if (EVP_DigestFinal_ex(ctx.get(), digest, &length) != 1)
