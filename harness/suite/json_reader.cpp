@@ -16,6 +16,16 @@
 namespace stepgate::suite_detail {
 namespace {
 
+// A JSON pointer token back to its key (RFC 6901: ~1 is '/', ~0 is '~').
+std::string pointer_key(const std::string& token) {
+  std::string key;
+  for (std::size_t i = 0; i < token.size(); ++i) {
+    if (token[i] == '~' && i + 1 < token.size()) key += token[++i] == '1' ? '/' : '~';
+    else key += token[i];
+  }
+  return key;
+}
+
 // nlohmann's what() starts with "[json.exception.parse_error.101] parse error at line L,
 // column C: "; the location is ours, the rest is kept.
 std::string syntax_message(const std::string& what) {
@@ -24,69 +34,24 @@ std::string syntax_message(const std::string& what) {
   return message + " (expected valid JSON)";
 }
 
-// Tracks the JSON pointer while nlohmann parses, to report a repeated key where it is.
-struct Frame {
-  bool object = false;
-  std::string token;  // how the parent reaches this container
-  std::set<std::string> keys;
-  std::string key;
-  std::size_t index = 0;
-};
-
-std::string child_token(const std::vector<Frame>& stack) {
-  if (stack.empty()) return "";
-  const Frame& top = stack.back();
-  return top.object ? pointer_token(top.key) : fmt::format("/{}", top.index);
-}
-
-std::string path_of(const std::vector<Frame>& stack) {
-  std::string p;
-  for (const Frame& f : stack) p += f.token;
-  return p;
-}
-
 }  // namespace
 
 Json parse_json_text(const std::string& text, const std::string& file) {
-  std::vector<Frame> stack;
-  const Json::parser_callback_t track = [&](int, Json::parse_event_t event, Json& parsed) {
-    using E = Json::parse_event_t;
-    switch (event) {
-      case E::object_start:
-      case E::array_start: {
-        Frame f;
-        f.object = event == E::object_start;
-        f.token = child_token(stack);
-        stack.push_back(std::move(f));
-        break;
-      }
-      case E::object_end:
-      case E::array_end:
-        if (!stack.empty()) stack.pop_back();
-        if (!stack.empty() && !stack.back().object) ++stack.back().index;
-        break;
-      case E::key: {
-        Frame& top = stack.back();
-        top.key = parsed.get<std::string>();
-        if (!top.keys.insert(top.key).second)
-          throw InputError(file + "#" + path_of(stack) + pointer_token(top.key),
-                           "found the key '" + top.key +
-                               "' a second time in this object; expected each key once");
-        break;
-      }
-      case E::value:
-        if (!stack.empty() && !stack.back().object) ++stack.back().index;
-        break;
-    }
-    return true;
-  };
   check_json_limits(text, file);
+  Json parsed;
   try {
-    return Json::parse(text, track);
+    parsed = Json::parse(text);
   } catch (const Json::parse_error& e) {
     throw InputError(file + ":" + text_position(text, e.byte == 0 ? 0 : e.byte - 1),
                      syntax_message(e.what()));
   }
+  // nlohmann keeps the last of two equal keys; a suite gives each key once (core/json_text).
+  if (const std::string pointer = first_repeated_key(text); !pointer.empty()) {
+    const std::string key = pointer_key(pointer.substr(pointer.rfind('/') + 1));
+    throw InputError(file + "#" + pointer,
+                     "found the key '" + key + "' a second time in this object; expected each key once");
+  }
+  return parsed;
 }
 
 // ---- ObjectNode ----
